@@ -1,0 +1,26 @@
+#!/usr/bin/env bash
+# Installs the Debian packages that baleassay's tests and app need, only
+# those missing. Uses apt-get as root, sudo apt-get otherwise.
+set -euo pipefail
+
+# python3-cbor2: independent CBOR decoder for the sync-file interop test.
+packages=(python3 python3-cbor2)
+
+missing=()
+for p in "${packages[@]}"; do
+  dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
+done
+[ ${#missing[@]} -eq 0 ] && exit 0
+
+if [ "$(id -u)" -eq 0 ]; then
+  apt=(apt-get)
+elif command -v sudo >/dev/null 2>&1; then
+  apt=(sudo apt-get)
+else
+  echo "baleassay: these Debian packages are needed: ${missing[*]}" >&2
+  echo "run as root, or install sudo, or install them yourself: apt-get install -y ${missing[*]}" >&2
+  exit 1
+fi
+echo "baleassay: installing ${missing[*]}" >&2
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" update -q
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" install -y -q "${missing[@]}"
