@@ -1,0 +1,188 @@
+package data
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"slices"
+
+	"github.com/fxamacker/cbor/v2"
+)
+
+// Limits of the bundle reader. MaxBundleBytes caps the file size before
+// anything is read; DefaultPartBytes is the payload size at which export
+// starts a new part (well under the cap, so every part imports);
+// MaxBundleEvents caps the events array.
+const (
+	MaxBundleBytes   = 64 << 20
+	DefaultPartBytes = 16 << 20
+	MaxBundleEvents  = 1 << 21
+)
+
+// minEntryBytes is the smallest encoded [id, event] pair: array head,
+// 34-byte id string, and a 1-byte-head byte string of at least one byte.
+const minEntryBytes = 1 + 34 + 2
+
+// TrustFunc answers whether a key is trusted and under which name.
+type TrustFunc func(Fingerprint) (name string, ok bool)
+
+// OpenedBundle is a bundle that passed every check short of the store:
+// signature by a trusted key, strict decoding, deterministic encoding,
+// event ids. Raws are sub-slices of the file bytes (not copies), in
+// bundle order.
+type OpenedBundle struct {
+	Header     BundleHeader
+	Signer     Fingerprint
+	SignerName string
+	Hash       [32]byte // SHA-256 of the complete file
+	Raws       [][]byte
+}
+
+// buildBody returns the deterministic encoding of [header, [[id, event]...]].
+func buildBody(h BundleHeader, raws [][]byte) ([]byte, error) {
+	hdr, err := encodeHeader(h)
+	if err != nil {
+		return nil, err
+	}
+	size := 2 + len(hdr) + 9
+	for _, r := range raws {
+		size += 1 + 34 + 9 + len(r)
+	}
+	out := make([]byte, 0, size)
+	out = appendHead(out, majArray, 2)
+	out = append(out, hdr...)
+	out = appendHead(out, majArray, uint64(len(raws)))
+	for _, r := range raws {
+		id := sha256.Sum256(r)
+		out = appendHead(out, majArray, 2)
+		out = appendHead(out, majBytes, 32)
+		out = append(out, id[:]...)
+		out = appendHead(out, majBytes, uint64(len(r)))
+		out = append(out, r...)
+	}
+	return out, nil
+}
+
+// bodyOverhead is the encoded size of one event entry beyond its bytes.
+func bodyOverhead(rawLen int) int {
+	return 1 + 34 + len(appendHead(nil, majBytes, uint64(rawLen)))
+}
+
+// SealBundle encodes h and the events' stored bytes as a bundle body and
+// signs it with key. It fills h.Key and h.Count.
+func SealBundle(key *DeviceKey, h BundleHeader, raws [][]byte) ([]byte, error) {
+	h.Key = key.Fingerprint()
+	h.Count = uint64(len(raws))
+	body, err := buildBody(h, raws)
+	if err != nil {
+		return nil, err
+	}
+	return sealSign1(key.priv, body)
+}
+
+// OpenBundle checks a bundle file's bytes in the order the format
+// prescribes: envelope, signer in trust, signature, then the body. It
+// never modifies raw and never panics on any input.
+func OpenBundle(raw []byte, trusted TrustFunc) (*OpenedBundle, error) {
+	if len(raw) > MaxBundleBytes {
+		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", len(raw), MaxBundleBytes)
+	}
+	env, err := parseSign1(raw)
+	if err != nil {
+		return nil, err
+	}
+	fp := FingerprintOf(env.kid)
+	name, ok := trusted(fp)
+	if !ok {
+		return nil, &UnknownSignerError{Fingerprint: fp}
+	}
+	if err := verifySign1(env, env.kid); err != nil {
+		return nil, err
+	}
+	h, raws, err := decodeBody(env.payload, env.payloadOff)
+	if err != nil {
+		return nil, err
+	}
+	if h.Key != fp {
+		return nil, bundleErr(ErrBundleHeader, "header.key", env.payloadOff, "header names key %s, bundle is signed by %s", h.Key, fp)
+	}
+	return &OpenedBundle{Header: h, Signer: fp, SignerName: name, Hash: sha256.Sum256(raw), Raws: raws}, nil
+}
+
+// decodeBody walks a verified payload: the body array, the header (via
+// the strict decoder) and each [id, event] pair (sliced, not copied).
+func decodeBody(p []byte, base int) (BundleHeader, [][]byte, error) {
+	var h BundleHeader
+	w := &wire{buf: p, base: base, part: "body"}
+	if n, err := w.expect(majArray, "the body array"); err != nil {
+		return h, nil, err
+	} else if n != 2 {
+		return h, nil, bundleErr(ErrBundleMalformed, "body", base, "body array has %d items, want [header, events]", n)
+	}
+	hStart := w.off
+	var item cbor.RawMessage
+	rest, err := headerDec.UnmarshalFirst(p[hStart:], &item)
+	if err != nil {
+		return h, nil, cborErr(err, "header", base+hStart)
+	}
+	w.off = len(p) - len(rest)
+	if h, err = decodeHeader(p[hStart:w.off], base+hStart); err != nil {
+		return h, nil, err
+	}
+	w.part = "events"
+	at := w.off
+	n, err := w.expect(majArray, "the events array")
+	if err != nil {
+		return h, nil, err
+	}
+	if n > MaxBundleEvents {
+		return h, nil, bundleErr(ErrBundleTooMany, "events", base+at, "array claims %d events, limit %d", n, MaxBundleEvents)
+	}
+	if n*minEntryBytes > uint64(len(p)-w.off) {
+		return h, nil, bundleErr(ErrBundleTruncated, "events", base+at, "array claims %d events, only %d bytes remain", n, len(p)-w.off)
+	}
+	if n != h.Count {
+		return h, nil, bundleErr(ErrBundleEventCount, "events", base+at, "header says %d events, array has %d", h.Count, n)
+	}
+	raws := make([][]byte, 0, n)
+	ids := make([][32]byte, 0, n)
+	for i := range int(n) {
+		w.part = fmt.Sprintf("events[%d]", i)
+		if k, err := w.expect(majArray, "an [id, event] pair"); err != nil {
+			return h, nil, err
+		} else if k != 2 {
+			return h, nil, bundleErr(ErrBundleMalformed, w.part, base+w.off, "entry has %d items, want [id, event]", k)
+		}
+		id, idOff, err := w.bytes("the event id")
+		if err != nil {
+			return h, nil, err
+		}
+		if len(id) != 32 {
+			return h, nil, bundleErr(ErrBundleMalformed, w.part, idOff, "event id has %d bytes, want 32", len(id))
+		}
+		ev, evOff, err := w.bytes("the event bytes")
+		if err != nil {
+			return h, nil, err
+		}
+		sum := sha256.Sum256(ev)
+		if !bytes.Equal(sum[:], id) {
+			be := bundleErr(ErrBundleEventID, w.part, evOff, "id %s, bytes hash to %s", hex.EncodeToString(id), hex.EncodeToString(sum[:]))
+			be.Event = i
+			return h, nil, be
+		}
+		raws = append(raws, ev)
+		ids = append(ids, sum)
+	}
+	w.part = "body"
+	if err := w.end(); err != nil {
+		return h, nil, err
+	}
+	slices.SortFunc(ids, func(a, b [32]byte) int { return bytes.Compare(a[:], b[:]) })
+	for i := 1; i < len(ids); i++ {
+		if ids[i] == ids[i-1] {
+			return h, nil, bundleErr(ErrBundleDupEvent, "events", -1, "event %s appears twice", hex.EncodeToString(ids[i][:]))
+		}
+	}
+	return h, raws, nil
+}
