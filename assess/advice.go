@@ -32,7 +32,7 @@ func Advise(r Result, sv *SpecVerdict, e float64) Advice {
 	if sv != nil {
 		if lv, ok := governing(sv.Limits); ok {
 			a.Item = lv.Item
-			a.Why = fmt.Sprintf("%s limit %s %g governs the verdict (%s)", lv.Item, lv.Bound, lv.Limit, lv.Verdict)
+			a.Why = fmt.Sprintf("the %s %s of %.2f %% governs the verdict (%s)", lv.Item, lv.Bound, 100*lv.Limit, lv.Verdict)
 		}
 	}
 	sh, _ := r.Item(a.Item)

@@ -1,0 +1,62 @@
+package assess_test
+
+import (
+	"fmt"
+	"strings"
+
+	"baleassay/assess"
+)
+
+func ExampleAssess() {
+	// The same masses as the hand-worked example in
+	// testdata/ref/ratio_example.py: r = 0.005366, SE = 0.000689,
+	// t(0.95, 3) = 2.353.
+	csv := `pull,pet_clear,pvc,closures
+A,95.0,0.5,4.5
+B,112.0,0.9,7.1
+C,76.5,0.2,3.3
+D,104.0,0.6,5.4
+`
+	pulls, err := assess.ReadPulls(strings.NewReader(csv), "example.csv")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	res, _ := assess.Assess(assess.Audit{Pulls: pulls, BaleKg: 820}, assess.Options{})
+	pvc, _ := res.Category("pvc")
+	fmt.Printf("PVC %.3f %% (90 %%: %.3f–%.3f %%)\n", 100*pvc.Fraction, 100*pvc.Low, 100*pvc.High)
+	// Output:
+	// PVC 0.537 % (90 %: 0.375–0.699 %)
+}
+
+func ExampleJudge() {
+	csv := `pull,pet_clear,pet_green,pvc,liquid
+A,20.0,1.0,0.02,0.5
+B,22.5,0.8,0.01,0.4
+C,18.0,1.2,0.03,0.6
+`
+	pulls, _ := assess.ReadPulls(strings.NewReader(csv), "example.csv")
+	res, _ := assess.Assess(assess.Audit{Pulls: pulls, BaleKg: 500}, assess.Options{})
+	spec, _ := assess.BuiltinSpec("glycol-feed")
+	sv, _ := assess.Judge(res, spec)
+	fmt.Println("verdict:", sv.Verdict, "grade:", sv.Grade)
+	for _, l := range sv.Limits {
+		fmt.Printf("%s %s %.2f: %s\n", l.Item, l.Bound, l.Limit, l.Verdict)
+	}
+	// Output:
+	// verdict: undecided grade: first
+	// pet min 0.72: pass
+	// pvc max 0.01: pass
+	// pla max 0.02: pass
+	// liquid max 0.02: undecided
+	// non_plastics max 0.06: pass
+	// hazard zero 0.00: pass
+}
+
+func ExamplePullsForPrecision() {
+	// ASTM D5231's illustration: s = 0.004, x̄ = 0.01, ±10 % at 90 %.
+	n, _ := assess.PullsForPrecision(0.004, 0.01, 0.10, 0.90)
+	fmt.Println(n, "pulls")
+	// Output:
+	// 46 pulls
+}
