@@ -1,7 +1,12 @@
 # The two set-up commands of the README: `make run` and `make test`.
 GO ?= go
 
-.PHONY: run test deps check-imports bench
+.PHONY: run test deps check-imports bench fuzz-short
+
+# Fuzz targets run briefly in every `make test` (their committed seeds run
+# in plain `go test` too): package:target pairs.
+FUZZ_TARGETS = ./assess:FuzzReadPulls
+FUZZTIME ?= 8s
 
 deps:
 	@bash scripts/deps.sh
@@ -15,6 +20,14 @@ test: deps check-imports
 	CGO_ENABLED=0 $(GO) build -o /dev/null ./cmd/bale
 	$(GO) vet ./...
 	$(GO) test -count=1 ./...
+	$(MAKE) --no-print-directory fuzz-short
+
+fuzz-short:
+	@for t in $(FUZZ_TARGETS); do \
+		pkg=$${t%%:*}; name=$${t##*:}; \
+		echo "fuzz $$name ($$pkg) for $(FUZZTIME)"; \
+		$(GO) test -run '^$$' -fuzz "^$$name\$$" -fuzztime $(FUZZTIME) $$pkg || exit 1; \
+	done
 
 # Domain packages never import Gio.
 check-imports:
