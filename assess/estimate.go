@@ -167,17 +167,17 @@ func Assess(a Audit, opt Options) (Result, error) {
 		}
 		res.Categories[j] = res.share(c.Key, c.Code, col, w)
 	}
-	res.Groups = make([]Share, 0, len(Groups()))
-	for _, g := range Groups() {
-		for i, p := range a.Pulls {
-			col[i] = 0
-			for j, c := range catalogue {
-				if c.Group == g {
-					col[i] += p.Kg[j]
-				}
-			}
+	// Per-pull group totals in one pass, then one estimate per group.
+	groups := Groups()
+	totals := make([]float64, len(groups)*n)
+	for i, p := range a.Pulls {
+		for j, c := range catalogue {
+			totals[int(c.Group-GroupPET)*n+i] += p.Kg[j]
 		}
-		res.Groups = append(res.Groups, res.share(g.Key(), 0, col, w))
+	}
+	res.Groups = make([]Share, len(groups))
+	for k, g := range groups {
+		res.Groups[k] = res.share(g.Key(), 0, totals[k*n:(k+1)*n], w)
 	}
 	res.Pieces = pieceShares(a.Pulls, conf)
 	hz, _ := CategoryIndex("hazard")

@@ -2,6 +2,7 @@ package assess
 
 import (
 	"math"
+	"sync"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -10,8 +11,34 @@ import (
 // level c and df degrees of freedom: the (1 + c)/2 quantile of Student's
 // t distribution, from gonum's stat/distuv.
 func StudentT(c float64, df int) float64 {
-	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(df)}.Quantile((1 + c) / 2)
+	k := tKey{c, df}
+	tCache.Lock()
+	q, ok := tCache.m[k]
+	tCache.Unlock()
+	if ok {
+		return q
+	}
+	q = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(df)}.Quantile((1 + c) / 2)
+	tCache.Lock()
+	if len(tCache.m) > 4096 { // bound the memo; levels are few in practice
+		clear(tCache.m)
+	}
+	tCache.m[k] = q
+	tCache.Unlock()
+	return q
 }
+
+// tCache memoises t quantiles: the sample-size iteration asks for the
+// same few (level, df) pairs again and again.
+type tKey struct {
+	c  float64
+	df int
+}
+
+var tCache = struct {
+	sync.Mutex
+	m map[tKey]float64
+}{m: map[tKey]float64{}}
 
 // NormalZ returns the two-sided standard normal quantile for level c.
 func NormalZ(c float64) float64 {
