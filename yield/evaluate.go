@@ -1,0 +1,126 @@
+package yield
+
+import (
+	"math"
+
+	"baleassay/assess"
+)
+
+// DefaultGlycol and DefaultGlycolRatio are the glycolysis charge used
+// for a bale unless another is given: DEG at 1:1 by mass, one of the
+// charges in Hoang et al., Polymers 11 (2019) 236 and the worked example
+// of shared/REFERENCE.md.
+const (
+	DefaultGlycol      = "DEG"
+	DefaultGlycolRatio = 1.0
+)
+
+// Plan says what happens to a bale: the line, the flake spec to check
+// (nil for none), the glycolysis recipe (its PETKg, PVCKg and InertKg
+// are set from the flake; the glycol must be given as a ratio so that
+// it scales with the flake) and the reactor's charge per batch in kg of
+// PET plus glycol (0: batches not counted).
+type Plan struct {
+	Line      *Model
+	Spec      *FlakeSpec
+	Recipe    Recipe
+	ReactorKg float64
+}
+
+// DefaultPlan is the built-in line and flake spec with DEG 1:1 w/w and
+// 0.5 wt % zinc acetate.
+func DefaultPlan() Plan {
+	m, err := Compile(BuiltinLine())
+	if err != nil {
+		panic("yield: built-in line does not compile: " + err.Error())
+	}
+	spec := BuiltinFlakeSpec()
+	return Plan{Line: m, Spec: &spec, Recipe: DefaultRecipe(1, DefaultGlycol, DefaultGlycolRatio)}
+}
+
+// Report is the deterministic outcome for one bale: the audit's point
+// estimate through the line (parameters at their midpoints), the flake
+// checks and the glycolysis of the flake.
+type Report struct {
+	BaleKg float64
+	// BaleComposition is the bale's kg by catalogue index, from Cochran's
+	// ratio estimate of the pulls (assess.Assess, MethodRatio).
+	BaleComposition []float64
+	Balance         Balance
+	Checks          []FlakeCheck // nil without a spec
+	Glycolysate     Glycolysate
+	// Batches is the number of reactor batches for the bale's flake, 0
+	// when the plan states no reactor charge.
+	Batches int
+}
+
+// Evaluate runs one bale through the plan at the point estimate.
+func Evaluate(pulls []assess.Pull, baleKg float64, plan Plan) (Report, error) {
+	if err := plan.validate(); err != nil {
+		return Report{}, err
+	}
+	if !finite(baleKg) || baleKg <= 0 {
+		return Report{}, fieldErr("audit", "bale_kg", ErrBadAudit, "%v: give the bale's gross mass in kg, above 0", baleKg)
+	}
+	est, err := assess.Assess(assess.Audit{Pulls: pulls, BaleKg: baleKg}, assess.Options{Method: assess.MethodRatio})
+	if err != nil {
+		return Report{}, err
+	}
+	comp := make([]float64, assess.NumCategories())
+	for j, sh := range est.Categories {
+		comp[j] = sh.Fraction * baleKg
+	}
+	bal, err := plan.Line.Run(comp)
+	if err != nil {
+		return Report{}, err
+	}
+	rep := Report{BaleKg: baleKg, BaleComposition: comp, Balance: bal}
+	if plan.Spec != nil {
+		rep.Checks = plan.Spec.Check(bal)
+	}
+	if bal.PETKg <= 0 {
+		return rep, fieldErr("audit", "pulls", ErrBadAudit, "no PET reaches the flake; nothing to glycolyse")
+	}
+	r := plan.Recipe
+	r.PETKg = bal.PETKg
+	pvc, _ := assess.CategoryIndex("pvc")
+	r.PVCKg = bal.Flake[pvc]
+	r.InertKg = bal.FlakeDryKg - bal.PETKg - r.PVCKg
+	g, err := Glycolyse(r)
+	if err != nil {
+		return rep, err
+	}
+	rep.Glycolysate = g
+	if plan.ReactorKg > 0 {
+		rep.Batches = int(math.Ceil((g.PETKg + g.GlycolKg) / plan.ReactorKg))
+	}
+	return rep, nil
+}
+
+func (p Plan) validate() error {
+	if p.Line == nil {
+		return fieldErr("plan", "line", ErrBadLine, "no line profile")
+	}
+	if p.Spec != nil {
+		if err := p.Spec.Validate(); err != nil {
+			return err
+		}
+	}
+	if p.Recipe.GlycolKg != 0 {
+		return fieldErr("plan", "glycol_kg", ErrBadCharge, "for a bale give the glycol as a ratio to the PET, so it scales with the flake")
+	}
+	probe := p.Recipe
+	probe.PETKg = 1
+	probe.PVCKg, probe.InertKg = 0, 0
+	g, cat, err := probe.validate()
+	if err != nil {
+		return err
+	}
+	if err := newCharge(probe, g, cat).ok(); err != nil {
+		return err
+	}
+	if !finite(p.ReactorKg) || p.ReactorKg < 0 {
+		return fieldErr("plan", "reactor_kg", ErrOutOfRange, "%v: give the reactor charge in kg, above 0", p.ReactorKg)
+	}
+	return nil
+}
