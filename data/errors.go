@@ -1,0 +1,109 @@
+package data
+
+import (
+	"errors"
+	"fmt"
+	"strings"
+)
+
+// Sentinel errors. Errors returned by this package wrap one of them; test
+// with errors.Is. Validation errors also wrap ErrInvalid.
+var (
+	ErrInvalid        = errors.New("data: invalid record")
+	ErrDecode         = errors.New("data: malformed event encoding")
+	ErrNotCanonical   = errors.New("data: event bytes are not in deterministic encoding")
+	ErrTooLarge       = errors.New("data: event is too large")
+	ErrVersion        = errors.New("data: unknown event format version")
+	ErrKind           = errors.New("data: unknown entity kind")
+	ErrPayload        = errors.New("data: payload does not match the event kind")
+	ErrMissingID      = errors.New("data: id is missing")
+	ErrLatitude       = errors.New("data: latitude outside -90..90 degrees")
+	ErrLongitude      = errors.New("data: longitude outside -180..180 degrees")
+	ErrNonFinite      = errors.New("data: value is not a finite number")
+	ErrNegative       = errors.New("data: value is negative")
+	ErrNotPositive    = errors.New("data: value must be above zero")
+	ErrPullParts      = errors.New("data: pull parts exceed the stated pull mass")
+	ErrRequired       = errors.New("data: required field is empty")
+	ErrTooLong        = errors.New("data: text is too long")
+	ErrBadSetting     = errors.New("data: setting body is not valid JSON")
+	ErrTombstone      = errors.New("data: a deletion must supersede an event and carry no payload")
+	ErrKindMismatch   = errors.New("data: event kind differs from the entity's kind")
+	ErrNeedsConfirm   = errors.New("data: save has warnings that need confirming")
+	ErrStoreInUse     = errors.New("data: store in use by another process")
+	ErrStoreFailed    = errors.New("data: store stopped after a write failure")
+	ErrClosed         = errors.New("data: store is closed")
+	ErrNotFound       = errors.New("data: not found")
+	ErrMetaKey        = errors.New("data: meta key outside the allowed prefix")
+	ErrBadQuery       = errors.New("data: invalid query")
+	ErrAmbiguousID    = errors.New("data: id prefix matches more than one entity")
+	ErrUnknownSetting = errors.New("data: unknown setting kind")
+)
+
+// FieldError is a validation error located at one field of one record.
+type FieldError struct {
+	Field string // dotted path, e.g. "site.lat" or "pull.kg.pvc"
+	Value string // the offending value as text, may be empty
+	Err   error  // a sentinel of this package or of package assess
+}
+
+func (e *FieldError) Error() string {
+	msg := strings.TrimPrefix(e.Err.Error(), "data: ")
+	msg = strings.TrimPrefix(msg, "assess: ")
+	if e.Value != "" {
+		return fmt.Sprintf("%s = %s: %s", e.Field, e.Value, msg)
+	}
+	return fmt.Sprintf("%s: %s", e.Field, msg)
+}
+
+// Unwrap gives both ErrInvalid and the specific sentinel.
+func (e *FieldError) Unwrap() []error { return []error{ErrInvalid, e.Err} }
+
+// EventError locates an error at one event of a batch.
+type EventError struct {
+	Index int     // position in the batch
+	ID    EventID // zero when the bytes could not be decoded
+	Err   error
+}
+
+func (e *EventError) Error() string {
+	if e.ID == (EventID{}) {
+		return fmt.Sprintf("event %d: %v", e.Index, e.Err)
+	}
+	return fmt.Sprintf("event %d (%s): %v", e.Index, e.ID.Short(), e.Err)
+}
+
+func (e *EventError) Unwrap() error { return e.Err }
+
+// WarningsError refuses a save whose events have warnings the user has
+// not confirmed. It wraps ErrNeedsConfirm.
+type WarningsError struct {
+	Warnings []Warning
+}
+
+func (e *WarningsError) Error() string {
+	parts := make([]string, len(e.Warnings))
+	for i, w := range e.Warnings {
+		parts[i] = w.String()
+	}
+	return "needs confirming: " + strings.Join(parts, "; ")
+}
+
+func (e *WarningsError) Unwrap() error { return ErrNeedsConfirm }
+
+// StoreInUseError says which store is held by another process.
+type StoreInUseError struct {
+	Path string
+}
+
+func (e *StoreInUseError) Error() string {
+	return fmt.Sprintf("store %s is in use by another bale process; close it (or wait for it to finish) and try again", e.Path)
+}
+
+func (e *StoreInUseError) Unwrap() error { return ErrStoreInUse }
+
+// dataError marks an error found inside a write transaction that is about
+// the data, not the disk: it does not stop the store.
+type dataError struct{ err error }
+
+func (e dataError) Error() string { return e.err.Error() }
+func (e dataError) Unwrap() error { return e.err }

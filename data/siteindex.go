@@ -1,0 +1,342 @@
+package data
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"sort"
+	"sync"
+
+	"github.com/dhconnelly/rtreego"
+)
+
+// Branching factors of the R-tree (see BenchmarkNearest for the figures).
+const (
+	treeMinChildren = 8
+	treeMaxChildren = 16
+)
+
+// IndexedSite is what the index keeps of a site.
+type IndexedSite struct {
+	ID       EntityID
+	Name     string
+	Lat, Lon float64 // WGS 84 degrees
+}
+
+// Hit is a site found by a query, with its haversine distance from the
+// query point (0 for box queries).
+type Hit struct {
+	IndexedSite
+	Km float64
+}
+
+type siteObj struct {
+	IndexedSite
+	rect rtreego.Rect
+}
+
+func (o *siteObj) Bounds() rtreego.Rect { return o.rect }
+
+func newSiteObj(s IndexedSite) *siteObj {
+	u := UnitVector(s.Lat, s.Lon)
+	r, _ := rtreego.NewRectFromPoints(rtreego.Point{u[0], u[1], u[2]}, rtreego.Point{u[0], u[1], u[2]})
+	return &siteObj{IndexedSite: s, rect: r}
+}
+
+// SiteIndex is an R-tree (github.com/dhconnelly/rtreego) over the sites'
+// unit vectors. Queries are exact: the tree only proposes candidates, which
+// are then ranked by haversine distance. It is safe for concurrent use.
+type SiteIndex struct {
+	mu   sync.RWMutex
+	tree *rtreego.Rtree
+	byID map[EntityID]*siteObj
+}
+
+// NewSiteIndex bulk-loads sites (rtreego's overlap-minimising top-down
+// load). Invalid coordinates are the caller's error; sites from the store
+// are validated.
+func NewSiteIndex(sites []IndexedSite) *SiteIndex {
+	ix := &SiteIndex{byID: make(map[EntityID]*siteObj, len(sites))}
+	objs := make([]rtreego.Spatial, 0, len(sites))
+	for _, s := range sites {
+		if old, dup := ix.byID[s.ID]; dup {
+			*old = *newSiteObj(s) // a later entry for the same id wins
+			continue
+		}
+		o := newSiteObj(s)
+		ix.byID[s.ID] = o
+		objs = append(objs, o)
+	}
+	ix.tree = rtreego.NewTree(3, treeMinChildren, treeMaxChildren, objs...)
+	return ix
+}
+
+// Len is the number of indexed sites.
+func (ix *SiteIndex) Len() int {
+	ix.mu.RLock()
+	defer ix.mu.RUnlock()
+	return len(ix.byID)
+}
+
+// Get returns an indexed site.
+func (ix *SiteIndex) Get(id EntityID) (IndexedSite, bool) {
+	ix.mu.RLock()
+	defer ix.mu.RUnlock()
+	o, ok := ix.byID[id]
+	if !ok {
+		return IndexedSite{}, false
+	}
+	return o.IndexedSite, true
+}
+
+// Put adds a site or moves it.
+func (ix *SiteIndex) Put(s IndexedSite) {
+	ix.mu.Lock()
+	defer ix.mu.Unlock()
+	ix.putLocked(s)
+}
+
+func (ix *SiteIndex) putLocked(s IndexedSite) {
+	if old, ok := ix.byID[s.ID]; ok {
+		ix.tree.Delete(old)
+	}
+	o := newSiteObj(s)
+	ix.byID[s.ID] = o
+	ix.tree.Insert(o)
+}
+
+// Remove drops a site; it reports whether it was there.
+func (ix *SiteIndex) Remove(id EntityID) bool {
+	ix.mu.Lock()
+	defer ix.mu.Unlock()
+	return ix.removeLocked(id)
+}
+
+func (ix *SiteIndex) removeLocked(id EntityID) bool {
+	o, ok := ix.byID[id]
+	if !ok {
+		return false
+	}
+	delete(ix.byID, id)
+	return ix.tree.Delete(o)
+}
+
+type siteUpdate struct {
+	site   IndexedSite
+	remove bool
+}
+
+func siteUpdateOf(st EntityState) siteUpdate {
+	cur, ok := st.Current()
+	if !ok || cur.Site == nil {
+		return siteUpdate{site: IndexedSite{ID: st.ID}, remove: true}
+	}
+	return siteUpdate{site: IndexedSite{ID: st.ID, Name: cur.Site.Name, Lat: cur.Site.Lat, Lon: cur.Site.Lon}}
+}
+
+func (ix *SiteIndex) apply(ups []siteUpdate) {
+	if len(ups) == 0 {
+		return
+	}
+	ix.mu.Lock()
+	defer ix.mu.Unlock()
+	for _, u := range ups {
+		if u.remove {
+			ix.removeLocked(u.site.ID)
+		} else {
+			ix.putLocked(u.site)
+		}
+	}
+}
+
+// search returns the sites whose unit vectors lie in the box [lo, hi].
+func (ix *SiteIndex) search(lo, hi [3]float64, out []*siteObj) []*siteObj {
+	r, _ := rtreego.NewRectFromPoints(rtreego.Point{lo[0], lo[1], lo[2]}, rtreego.Point{hi[0], hi[1], hi[2]})
+	ix.tree.SearchIntersect(r, func(_ []rtreego.Spatial, obj rtreego.Spatial) (bool, bool) {
+		out = append(out, obj.(*siteObj))
+		return true, false // collect here, keep rtreego's result slice empty
+	})
+	return out
+}
+
+// cube returns the axis-aligned cube of half-side h around u, padded.
+func cube(u [3]float64, h float64) (lo, hi [3]float64) {
+	h += 1e-12
+	for i := range u {
+		lo[i], hi[i] = u[i]-h, u[i]+h
+	}
+	return
+}
+
+func sortHits(h []Hit) {
+	sort.Slice(h, func(i, j int) bool {
+		if h[i].Km != h[j].Km {
+			return h[i].Km < h[j].Km
+		}
+		return bytes.Compare(h[i].ID[:], h[j].ID[:]) < 0
+	})
+}
+
+func checkPoint(lat, lon float64) error {
+	if err := ValidateLatLon(lat, lon); err != nil {
+		return fmt.Errorf("%w: %w", ErrBadQuery, err)
+	}
+	return nil
+}
+
+// Nearest returns the k sites nearest to (lat, lon), nearest first, ties
+// broken by id: exactly the first k of a haversine scan of every site
+// sorted by (km, id).
+//
+// rtreego's own NearestNeighbors does not prune well in 3-D, so the query
+// is a cube of half-side r around the query's unit vector that doubles
+// until it holds k sites within chord r. Every site outside the cube has
+// chord > r, hence a great-circle distance above D(r) = 2R·asin(r/2), and
+// the k found within D(r) are certain; they are then ranked exactly by
+// haversine. The first r, √(4k/n)·1.5, would hold about 2k sites if they
+// were spread evenly (a cap of chord r has area π r², the sphere 4π).
+func (ix *SiteIndex) Nearest(lat, lon float64, k int) ([]Hit, error) {
+	if err := checkPoint(lat, lon); err != nil {
+		return nil, err
+	}
+	if k <= 0 {
+		return nil, fmt.Errorf("%w: k = %d, want at least 1", ErrBadQuery, k)
+	}
+	ix.mu.RLock()
+	defer ix.mu.RUnlock()
+	n := len(ix.byID)
+	if n == 0 {
+		return nil, nil
+	}
+	k = min(k, n)
+	u := UnitVector(lat, lon)
+	r := max(1.5*math.Sqrt(4*float64(k)/float64(n)), 1e-7)
+	var cands []*siteObj
+	var hits []Hit
+	for {
+		if r >= 2 {
+			r = 2 // the cube now holds the whole sphere
+		}
+		lo, hi := cube(u, r)
+		cands = ix.search(lo, hi, cands[:0])
+		hits = hits[:0]
+		limit := kmForChord(r)*(1-1e-6) - 0.001 // margin for rounding in haversine
+		inside := 0
+		for _, o := range cands {
+			d := HaversineKm(lat, lon, o.Lat, o.Lon)
+			hits = append(hits, Hit{o.IndexedSite, d})
+			if d <= limit {
+				inside++
+			}
+		}
+		if inside >= k || r == 2 {
+			sortHits(hits)
+			return append([]Hit(nil), hits[:k]...), nil
+		}
+		r *= 2
+	}
+}
+
+// Within returns the sites within km of (lat, lon) by haversine distance,
+// nearest first, ties broken by id.
+func (ix *SiteIndex) Within(lat, lon, km float64) ([]Hit, error) {
+	if err := checkPoint(lat, lon); err != nil {
+		return nil, err
+	}
+	if math.IsNaN(km) || math.IsInf(km, 0) || km < 0 {
+		return nil, fmt.Errorf("%w: radius %g km, want a finite value ≥ 0", ErrBadQuery, km)
+	}
+	ix.mu.RLock()
+	defer ix.mu.RUnlock()
+	u := UnitVector(lat, lon)
+	c := chordForKm(km*(1+1e-6) + 0.001)
+	lo, hi := cube(u, min(c, 2))
+	var hits []Hit
+	for _, o := range ix.search(lo, hi, nil) {
+		if d := HaversineKm(lat, lon, o.Lat, o.Lon); d <= km {
+			hits = append(hits, Hit{o.IndexedSite, d})
+		}
+	}
+	sortHits(hits)
+	return hits, nil
+}
+
+// InBox returns the sites with south ≤ lat ≤ north and west ≤ lon ≤ east,
+// in name then id order. A box with west > east crosses the antimeridian
+// (lon ≥ west or lon ≤ east).
+func (ix *SiteIndex) InBox(south, west, north, east float64) ([]Hit, error) {
+	if err := checkPoint(south, west); err != nil {
+		return nil, err
+	}
+	if err := checkPoint(north, east); err != nil {
+		return nil, err
+	}
+	if south > north {
+		return nil, fmt.Errorf("%w: south %g is north of north %g", ErrBadQuery, south, north)
+	}
+	lo, hi := boxAABB(south, west, north, east)
+	ix.mu.RLock()
+	defer ix.mu.RUnlock()
+	var hits []Hit
+	for _, o := range ix.search(lo, hi, nil) {
+		if inBox(o.Lat, o.Lon, south, west, north, east) {
+			hits = append(hits, Hit{IndexedSite: o.IndexedSite})
+		}
+	}
+	sort.Slice(hits, func(i, j int) bool {
+		if hits[i].Name != hits[j].Name {
+			return hits[i].Name < hits[j].Name
+		}
+		return bytes.Compare(hits[i].ID[:], hits[j].ID[:]) < 0
+	})
+	return hits, nil
+}
+
+func inBox(lat, lon, south, west, north, east float64) bool {
+	if lat < south || lat > north {
+		return false
+	}
+	if west <= east {
+		return lon >= west && lon <= east
+	}
+	return lon >= west || lon <= east
+}
+
+// boxAABB bounds the unit vectors of a latitude/longitude box: z from the
+// latitudes; x and y as products of the radius cos φ (range over the
+// latitudes) and cos λ, sin λ (range over the longitudes, with the
+// quadrant angles inside the range), padded for rounding.
+func boxAABB(south, west, north, east float64) (lo, hi [3]float64) {
+	cs, cn := math.Cos(south*degToRad), math.Cos(north*degToRad)
+	rmin, rmax := min(cs, cn), max(cs, cn)
+	if south <= 0 && north >= 0 {
+		rmax = 1
+	}
+	e := east
+	if e < west {
+		e += 360
+	}
+	angles := []float64{west, e}
+	for a := math.Ceil(west/90) * 90; a < e; a += 90 {
+		angles = append(angles, a)
+	}
+	cmin, cmax, smin, smax := 2.0, -2.0, 2.0, -2.0
+	for _, a := range angles {
+		c, s := math.Cos(a*degToRad), math.Sin(a*degToRad)
+		cmin, cmax = min(cmin, c), max(cmax, c)
+		smin, smax = min(smin, s), max(smax, s)
+	}
+	span := func(a, b float64) (float64, float64) {
+		p := []float64{rmin * a, rmin * b, rmax * a, rmax * b}
+		return min(p[0], p[1], p[2], p[3]), max(p[0], p[1], p[2], p[3])
+	}
+	const pad = 1e-9
+	lo[0], hi[0] = span(cmin, cmax)
+	lo[1], hi[1] = span(smin, smax)
+	lo[2], hi[2] = math.Sin(south*degToRad), math.Sin(north*degToRad)
+	for i := range lo {
+		lo[i] -= pad
+		hi[i] += pad
+	}
+	return
+}
