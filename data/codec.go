@@ -51,7 +51,7 @@ func init() {
 // to the library's error.
 type DecodeError struct{ Err error }
 
-func (e *DecodeError) Error() string  { return "malformed event: " + e.Err.Error() }
+func (e *DecodeError) Error() string   { return "malformed event: " + e.Err.Error() }
 func (e *DecodeError) Unwrap() []error { return []error{ErrDecode, e.Err} }
 
 // EncodeEvent encodes e in the core deterministic form of RFC 8949 §4.2

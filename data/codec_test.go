@@ -70,10 +70,10 @@ func TestDecodeEventRefuses(t *testing.T) {
 		{"empty", nil, ErrDecode},
 		{"truncated", good[:len(good)-3], ErrDecode},
 		{"trailing byte", append(bytes.Clone(good), 0x00), ErrDecode},
-		{"duplicate key", with(0xa7, 0x00, 0x01), ErrDecode},           // key 0 twice
-		{"unknown field", with(0xa7, 0x14, 0x00), ErrDecode},           // key 20
-		{"indefinite map", with(0xbf, 0xff), ErrDecode},                // 0xbf … 0xff
-		{"tag", append([]byte{0xc1}, good...), ErrDecode},              // tag 1 around the event
+		{"duplicate key", with(0xa7, 0x00, 0x01), ErrDecode}, // key 0 twice
+		{"unknown field", with(0xa7, 0x14, 0x00), ErrDecode}, // key 20
+		{"indefinite map", with(0xbf, 0xff), ErrDecode},      // 0xbf … 0xff
+		{"tag", append([]byte{0xc1}, good...), ErrDecode},    // tag 1 around the event
 		{"non-minimal integer", append([]byte{0xa6, 0x00, 0x18, 0x01}, good[3:]...), ErrNotCanonical},
 		{"NaN", mustEncode(t, nan), ErrDecode},
 		{"infinity", mustEncode(t, inf), ErrDecode},

@@ -24,14 +24,14 @@ const OpenTimeout = 300 * time.Millisecond
 
 // Bucket names. The layout is described in DEVELOPERS.md.
 var (
-	bEvents   = []byte("events")   // event id → deterministic CBOR bytes
-	bSeq      = []byte("seq")      // local insertion number (uint64 BE) → event id
-	bEntity   = []byte("entity")   // entity id → kind (1 byte)
-	bByEntity = []byte("byentity") // entity id ‖ event id → empty
-	bHeads    = []byte("heads")    // entity id ‖ event id → empty, for events nobody supersedes
-	bSupBy    = []byte("supby")    // entity id ‖ superseded id ‖ superseding id → empty
-	bMeta     = []byte("meta")     // key → value (device id, clock, "xfer/..." keys)
-	bDrafts   = []byte("drafts")   // draft name → CBOR of a PullRecord
+	bEvents    = []byte("events")   // event id → deterministic CBOR bytes
+	bSeq       = []byte("seq")      // local insertion number (uint64 BE) → event id
+	bEntity    = []byte("entity")   // entity id → kind (1 byte)
+	bByEntity  = []byte("byentity") // entity id ‖ event id → empty
+	bHeads     = []byte("heads")    // entity id ‖ event id → empty, for events nobody supersedes
+	bSupBy     = []byte("supby")    // entity id ‖ superseded id ‖ superseding id → empty
+	bMeta      = []byte("meta")     // key → value (device id, clock, "xfer/..." keys)
+	bDrafts    = []byte("drafts")   // draft name → CBOR of a PullRecord
 	allBuckets = [][]byte{bEvents, bSeq, bEntity, bByEntity, bHeads, bSupBy, bMeta, bDrafts}
 )
 
