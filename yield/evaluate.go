@@ -16,10 +16,14 @@ const (
 )
 
 // Plan says what happens to a bale: the line, the flake spec to check
-// (nil for none), the glycolysis recipe (its PETKg, PVCKg and InertKg
-// are set from the flake; the glycol must be given as a ratio so that
-// it scales with the flake) and the reactor's charge per batch in kg of
-// PET plus glycol (0: batches not counted).
+// (nil for none), the glycolysis recipe and the reactor's charge per
+// batch in kg of flake plus glycol (0: batches not counted).
+//
+// The recipe's PETKg, PVCKg and InertKg are set from the flake. Its
+// glycol must be a ratio, and for a bale the ratio applies to the dry
+// flake as charged, contaminants included, because a plant weighs flake,
+// not PET: glycol = R·m_flake (or, with Molar, R moles per 192.17 g of
+// flake). The flake's purity therefore moves the hydroxyl value.
 type Plan struct {
 	Line      *Model
 	Spec      *FlakeSpec
@@ -81,9 +85,9 @@ func Evaluate(pulls []assess.Pull, baleKg float64, plan Plan) (Report, error) {
 	if bal.PETKg <= 0 {
 		return rep, fieldErr("audit", "pulls", ErrBadAudit, "no PET reaches the flake; nothing to glycolyse")
 	}
-	r := plan.Recipe
-	r.PETKg = bal.PETKg
 	pvc, _ := assess.CategoryIndex("pvc")
+	gly, _ := LookupGlycol(plan.Recipe.Glycol) // checked by validate
+	r := plan.recipeFor(bal.PETKg, bal.FlakeDryKg, gly)
 	r.PVCKg = bal.Flake[pvc]
 	r.InertKg = bal.FlakeDryKg - bal.PETKg - r.PVCKg
 	g, err := Glycolyse(r)
@@ -92,7 +96,7 @@ func Evaluate(pulls []assess.Pull, baleKg float64, plan Plan) (Report, error) {
 	}
 	rep.Glycolysate = g
 	if plan.ReactorKg > 0 {
-		rep.Batches = int(math.Ceil((g.PETKg + g.GlycolKg) / plan.ReactorKg))
+		rep.Batches = int(math.Ceil((bal.FlakeDryKg + g.GlycolKg) / plan.ReactorKg))
 	}
 	return rep, nil
 }
@@ -123,4 +127,18 @@ func (p Plan) validate() error {
 		return fieldErr("plan", "reactor_kg", ErrOutOfRange, "%v: give the reactor charge in kg, above 0", p.ReactorKg)
 	}
 	return nil
+}
+
+// recipeFor is the plan's recipe for a flake holding petKg of PET in
+// dryKg of dry flake. It allocates nothing.
+func (p Plan) recipeFor(petKg, dryKg float64, g Glycol) Recipe {
+	r := p.Recipe
+	r.PETKg = petKg
+	if r.Molar {
+		r.GlycolKg = r.Ratio * dryKg / MolarMassPETUnit * g.MolarMass
+	} else {
+		r.GlycolKg = r.Ratio * dryKg
+	}
+	r.Ratio, r.Molar = 0, false
+	return r
 }

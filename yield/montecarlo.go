@@ -46,7 +46,7 @@ type MCResult struct {
 // allocates nothing.
 type simulator struct {
 	m       *Model
-	recipe  Recipe
+	plan    Plan
 	glycol  Glycol
 	cat     Catalyst
 	limits  [numFlakeItems]*float64
@@ -69,7 +69,7 @@ type simulator struct {
 func newSimulator(pulls []assess.Pull, baleKg float64, plan Plan, opt MCOptions) *simulator {
 	n, nc := len(pulls), assess.NumCategories()
 	s := &simulator{
-		m: plan.Line, recipe: plan.Recipe, nPulls: n, nCat: nc, baleKg: baleKg,
+		m: plan.Line, plan: plan, nPulls: n, nCat: nc, baleKg: baleKg,
 		kg: make([]float64, n*nc), w: make([]float64, n),
 		sum: make([]float64, nc), comp: make([]float64, nc),
 		par: make([]float64, len(plan.Line.params)), st: make([]float64, NumComponents()),
@@ -150,9 +150,7 @@ func (s *simulator) draw() (flake, product, ohv float64) {
 	if pet <= 0 {
 		return flake, 0, math.NaN()
 	}
-	r := s.recipe
-	r.PETKg = pet
-	c := newCharge(r, s.glycol, s.cat)
+	c := newCharge(s.plan.recipeFor(pet, dry, s.glycol), s.glycol, s.cat)
 	return flake, c.productG / 1000, c.hydroxylValue()
 }
 
