@@ -21,8 +21,8 @@ const (
 )
 
 // minEntryBytes is the smallest encoded [id, event] pair: array head,
-// 34-byte id string, and a 1-byte-head byte string of at least one byte.
-const minEntryBytes = 1 + 34 + 2
+// 34-byte id string, and the head of an (empty) byte string.
+const minEntryBytes = 1 + 34 + 1
 
 // TrustFunc answers whether a key is trusted and under which name.
 type TrustFunc func(Fingerprint) (name string, ok bool)

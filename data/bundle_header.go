@@ -35,7 +35,7 @@ var headerLabelName = map[int64]string{
 // place of this bundle in that device's sequence, and how many events
 // follow.
 type BundleHeader struct {
-	Device  [16]byte    // exporting device (the store's device id)
+	Device  DeviceID    // exporting device (the store's device id)
 	Key     Fingerprint // fingerprint of the signing key; must match the COSE kid
 	Seq     uint64      // per-device bundle sequence number, from 1
 	Prev    [32]byte    // SHA-256 of the device's previous bundle file; zero when Seq == 1
@@ -145,7 +145,10 @@ func decodeHeader(b []byte, off int) (BundleHeader, error) {
 		return h, cborErr(err, "header", off)
 	}
 	var format string
-	if err := headerDec.Unmarshal(m[hdrFormat], &format); err != nil || format != BundleFormat {
+	if err := headerDec.Unmarshal(m[hdrFormat], &format); err != nil && m[hdrFormat] != nil {
+		return h, cborErr(err, "header.format", off)
+	}
+	if format != BundleFormat {
 		return h, bundleErr(ErrBundleFormat, "header.format", off, "format name %q, want %q", format, BundleFormat)
 	}
 	var version uint64

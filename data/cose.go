@@ -123,7 +123,7 @@ func parseSign1(raw []byte) (envelope, error) {
 	if un != 0 {
 		var unprot map[int64]cbor.RawMessage
 		if _, err := headerDec.UnmarshalFirst(raw[uStart:], &unprot); err != nil {
-			return env, bundleErr(classifyCBOR(err), "unprotected header", uStart, "%v", err)
+			return env, cborErr(err, "unprotected header", uStart)
 		}
 		if _, ok := unprot[coseLabelAlg]; ok && !hasAlg(prot) {
 			return env, bundleErr(ErrAlgUnprotected, "unprotected header", uStart, "the algorithm must be in the protected header")
@@ -160,7 +160,7 @@ func parseProtected(prot []byte, off int) ([]byte, error) {
 		return nil, bundleErr(ErrUnexpectedAlg, "protected header", off, "no algorithm: protected header is empty")
 	}
 	if err := headerDec.Unmarshal(prot, &m); err != nil {
-		return nil, bundleErr(classifyCBOR(err), "protected header", off, "%v", err)
+		return nil, cborErr(err, "protected header", off)
 	}
 	for label := range m {
 		if label != coseLabelAlg && label != coseLabelKID {

@@ -20,7 +20,7 @@ const (
 	rfc8032Sig  = "e5564300c360ac729086e2cc806e828a84877f1eb8e5d974d873e065224901555fb8821590a33bacc61e39701cf9b46bd25bf5f0595bbe24655141438e7a100b"
 )
 
-func mustHex(t testing.TB, s string) []byte {
+func xHex(t testing.TB, s string) []byte {
 	t.Helper()
 	b, err := hex.DecodeString(s)
 	if err != nil {
@@ -30,7 +30,7 @@ func mustHex(t testing.TB, s string) []byte {
 }
 
 func TestDeviceKeyRFC8032Vector(t *testing.T) {
-	k, err := NewDeviceKeyFromSeed(mustHex(t, rfc8032Seed))
+	k, err := NewDeviceKeyFromSeed(xHex(t, rfc8032Seed))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -49,7 +49,7 @@ func TestDeviceKeyRFC8032Vector(t *testing.T) {
 // TestSign1MatchesSigStructure rebuilds the RFC 9052 §4.4 Sig_structure by
 // hand, independently of go-cose, and checks the signature against it.
 func TestSign1MatchesSigStructure(t *testing.T) {
-	k, _ := NewDeviceKeyFromSeed(mustHex(t, rfc8032Seed))
+	k, _ := NewDeviceKeyFromSeed(xHex(t, rfc8032Seed))
 	payload := []byte("a payload")
 	msg, err := sealSign1(k.priv, payload)
 	if err != nil {
@@ -89,7 +89,7 @@ func TestSign1MatchesSigStructure(t *testing.T) {
 	}
 }
 
-func testKey(t testing.TB, b byte) *DeviceKey {
+func xKey(t testing.TB, b byte) *DeviceKey {
 	t.Helper()
 	k, err := NewDeviceKeyFromSeed(bytes.Repeat([]byte{b}, 32))
 	if err != nil {
@@ -98,7 +98,7 @@ func testKey(t testing.TB, b byte) *DeviceKey {
 	return k
 }
 
-func trustOnly(keys ...*DeviceKey) TrustFunc {
+func xTrustOnly(keys ...*DeviceKey) TrustFunc {
 	return func(fp Fingerprint) (string, bool) {
 		for i, k := range keys {
 			if k.Fingerprint() == fp {
@@ -110,14 +110,14 @@ func trustOnly(keys ...*DeviceKey) TrustFunc {
 }
 
 func TestSealOpenRoundTrip(t *testing.T) {
-	k := testKey(t, 1)
-	h := BundleHeader{Device: [16]byte{1, 2, 3}, Seq: 2, Prev: [32]byte{9}, WallMs: 1_780_000_000_000, Logical: 3, Part: 1, Parts: 1}
+	k := xKey(t, 1)
+	h := BundleHeader{Device: DeviceID{1, 2, 3}, Seq: 2, Prev: [32]byte{9}, WallMs: 1_780_000_000_000, Logical: 3, Part: 1, Parts: 1}
 	raws := [][]byte{[]byte("first"), []byte("second event bytes")}
 	b, err := SealBundle(k, h, raws)
 	if err != nil {
 		t.Fatal(err)
 	}
-	ob, err := OpenBundle(b, trustOnly(k))
+	ob, err := OpenBundle(b, xTrustOnly(k))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -131,19 +131,19 @@ func TestSealOpenRoundTrip(t *testing.T) {
 }
 
 func TestOpenRefusesSigners(t *testing.T) {
-	k, other := testKey(t, 1), testKey(t, 2)
+	k, other := xKey(t, 1), xKey(t, 2)
 	b, err := SealBundle(k, BundleHeader{Seq: 1, Part: 1, Parts: 1}, [][]byte{[]byte("x")})
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, err = OpenBundle(b, trustOnly(other))
+	_, err = OpenBundle(b, xTrustOnly(other))
 	var use *UnknownSignerError
 	if !errors.As(err, &use) || use.Fingerprint != k.Fingerprint() || !errors.Is(err, ErrUnknownSigner) {
 		t.Fatalf("untrusted signer: got %v", err)
 	}
 	bad := bytes.Clone(b)
 	bad[len(bad)-1] ^= 0x01 // last signature byte
-	if _, err := OpenBundle(bad, trustOnly(k)); !errors.Is(err, ErrBadSignature) {
+	if _, err := OpenBundle(bad, xTrustOnly(k)); !errors.Is(err, ErrBadSignature) {
 		t.Fatalf("flipped signature: got %v, want ErrBadSignature", err)
 	}
 	// The same body signed by go-cose's own EdDSA (-8) signer is refused:
@@ -159,13 +159,13 @@ func TestOpenRefusesSigners(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := OpenBundle(m8, trustOnly(k)); !errors.Is(err, ErrUnexpectedAlg) {
+	if _, err := OpenBundle(m8, xTrustOnly(k)); !errors.Is(err, ErrUnexpectedAlg) {
 		t.Fatalf("alg -8: got %v, want ErrUnexpectedAlg", err)
 	}
 }
 
 func TestFingerprintText(t *testing.T) {
-	k := testKey(t, 7)
+	k := xKey(t, 7)
 	fp := k.Fingerprint()
 	s := fp.String()
 	if len(s) != 71 { // common practice: 8 groups of 8 hex digits and 7 dashes
