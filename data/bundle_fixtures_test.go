@@ -33,7 +33,6 @@ func fixtureStore(t testing.TB, g *fixGen) (*Store, *Importer) {
 // fails on any difference (run `go test ./data -run Fixtures -update`
 // after changing the format or the event encoding, and review the diff).
 func TestBundleFixturesGenerate(t *testing.T) {
-	g := newFixGen(t)
 	cases := fixCases()
 	if *updateFixtures {
 		if err := os.MkdirAll(fixtureDir, 0o755); err != nil {
@@ -43,6 +42,7 @@ func TestBundleFixturesGenerate(t *testing.T) {
 		for _, f := range old {
 			os.Remove(f)
 		}
+		writeFuzzSeeds(t, cases)
 	}
 	names := map[string]bool{}
 	for _, c := range cases {
@@ -50,7 +50,7 @@ func TestBundleFixturesGenerate(t *testing.T) {
 			t.Fatalf("fixture name %s used twice", c.name)
 		}
 		names[c.name] = true
-		b := c.build(g)
+		b := c.build(newFixGen(t)) // a fresh generator per case: builds do not depend on each other
 		path := filepath.Join(fixtureDir, c.name+BundleExt)
 		if *updateFixtures {
 			if err := os.WriteFile(path, b, 0o644); err != nil {
