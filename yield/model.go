@@ -238,7 +238,7 @@ func closes(where string, s Stage, cs cstage, params []Param) error {
 		}
 		if total > 1+1e-12 {
 			return fieldErr(where, "removal."+ComponentKey(c), ErrNotClosed,
-				"the shares sent away add up to %.4g (removal, pet_loss and dust_made together), more than all of it; lower them so they sum to at most 1", total)
+				"the stage does not close: the shares sent away add up to %.4g (removal, pet_loss and dust_made together), more than all of it; lower them so they sum to at most 1", total)
 		}
 	}
 	return nil

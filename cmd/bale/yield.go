@@ -1,0 +1,320 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strings"
+	"text/tabwriter"
+
+	"baleassay/assess"
+	"baleassay/yield"
+)
+
+func init() {
+	register(command{
+		name: "yield",
+		usage: "PULLS.csv --bale-kg N [--line FILE] [--flake-spec FILE|none] [--glycol KEY --glycol-ratio R [--molar]] " +
+			"[--strip-eg F] [--conversion X] [--catalyst-pct P] [--reactor-kg K] [--draws N] [--seed S] [--fixed-line] [--json]",
+		summary: "put an audited bale through the wash line and the glycolysis reactor, with P10/P50/P90",
+		run:     runYield,
+	})
+}
+
+// yieldJSON is the stable JSON output of bale yield (see README).
+type yieldJSON struct {
+	BaleKg           float64            `json:"bale_kg"`
+	Line             string             `json:"line"`
+	Draws            int                `json:"draws"`
+	Seed             uint64             `json:"seed"`
+	FixedLine        bool               `json:"fixed_line"`
+	FlakeKg          summaryJSON        `json:"flake_kg"`
+	GlycolysateKg    summaryJSON        `json:"glycolysate_kg"`
+	HydroxylValue    summaryJSON        `json:"hydroxyl_value"`
+	Point            pointJSON          `json:"point"`
+	FlakeComposition map[string]float64 `json:"flake_composition"`
+	ResidualPPM      map[string]float64 `json:"residual_ppm"`
+	Streams          map[string]float64 `json:"streams"`
+	ProcessWaterKg   float64            `json:"process_water_kg"`
+	Closure          float64            `json:"closure"`
+	FlakeSpec        *flakeSpecJSON     `json:"flake_spec"`
+	Glycolysis       glycolysisJSON     `json:"glycolysis"`
+	Warnings         []string           `json:"warnings"`
+	Cautions         []string           `json:"cautions"`
+}
+
+type summaryJSON struct {
+	P10  *float64 `json:"p10"`
+	P50  *float64 `json:"p50"`
+	P90  *float64 `json:"p90"`
+	Mean *float64 `json:"mean"`
+}
+
+// jnum is a JSON number, null for NaN or ±Inf.
+func jnum(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+func summaryOf(s yield.Summary) summaryJSON {
+	return summaryJSON{jnum(s.P10), jnum(s.P50), jnum(s.P90), jnum(s.Mean)}
+}
+
+type pointJSON struct {
+	FlakeKg       float64 `json:"flake_kg"`
+	FlakeDryKg    float64 `json:"flake_dry_kg"`
+	FlakeShare    float64 `json:"flake_share"`
+	PETKg         float64 `json:"pet_kg"`
+	MoistureKg    float64 `json:"moisture_kg"`
+	GlycolysateKg float64 `json:"glycolysate_kg"`
+	HydroxylValue float64 `json:"hydroxyl_value"`
+	Batches       *int    `json:"batches"`
+	ReactorKg     float64 `json:"reactor_kg"`
+}
+
+type flakeSpecJSON struct {
+	Name   string           `json:"name"`
+	Pass   bool             `json:"pass"`
+	Checks []flakeCheckJSON `json:"checks"`
+}
+
+type flakeCheckJSON struct {
+	Item      string   `json:"item"`
+	Limit     float64  `json:"limit"`
+	Value     float64  `json:"value"`
+	Pass      bool     `json:"pass"`
+	PassShare *float64 `json:"pass_share"`
+}
+
+func runYield(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("yield")
+	baleKg := fs.Float64("bale-kg", 0, "gross mass of the bale in kg (required)")
+	lineFile := fs.String("line", "", "line profile JSON file (default: the illustrative built-in line)")
+	specFile := fs.String("flake-spec", "", "flake spec JSON file, or 'none' (default: the illustrative built-in spec)")
+	rf := addRecipeFlags(fs, true)
+	reactor := fs.Float64("reactor-kg", 0, "reactor charge per batch, kg of flake plus glycol (0: batches not counted)")
+	draws := fs.Int("draws", yield.DefaultDraws, "Monte Carlo draws")
+	seed := fs.Uint64("seed", 1, "random seed; the same seed gives the same numbers")
+	fixed := fs.Bool("fixed-line", false, "hold the line's efficiencies at their midpoints (carry only the audit's uncertainty)")
+	asJSON := fs.Bool("json", false, "print JSON")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 1 {
+		return usagef("give exactly one pulls CSV file")
+	}
+	if !flagSet(fs, "bale-kg") {
+		return usagef("--bale-kg is required: the bale's gross mass in kg")
+	}
+	if !(*baleKg > 0) || math.IsInf(*baleKg, 0) {
+		return fmt.Errorf("--bale-kg %g: give the bale's gross mass in kg, above 0", *baleKg)
+	}
+	if *draws < 1 || *draws > yield.MaxDraws {
+		return fmt.Errorf("--draws %d: give 1 to %d Monte Carlo draws", *draws, yield.MaxDraws)
+	}
+	plan := yield.DefaultPlan()
+	if *lineFile != "" {
+		l, err := yield.ReadLineFile(*lineFile)
+		if err != nil {
+			return err
+		}
+		if plan.Line, err = yield.Compile(l); err != nil {
+			return err
+		}
+	}
+	switch *specFile {
+	case "":
+	case "none":
+		plan.Spec = nil
+	default:
+		s, err := yield.ReadFlakeSpecFile(*specFile)
+		if err != nil {
+			return err
+		}
+		plan.Spec = &s
+	}
+	recipe, err := rf.recipe(fs, 0)
+	if err != nil {
+		return err
+	}
+	plan.Recipe = recipe
+	plan.ReactorKg = *reactor
+	pulls, err := assess.ReadPullsFile(pos[0])
+	if err != nil {
+		return err
+	}
+	if s := (assess.Audit{Pulls: pulls}).SampledKg(); *baleKg < s*(1-1e-9) {
+		return fmt.Errorf("--bale-kg %g is below the %.3f kg sampled in %s; check the bale's mass or the pull masses", *baleKg, s, pos[0])
+	}
+	rep, err := yield.Evaluate(pulls, *baleKg, plan)
+	if err != nil {
+		return fmt.Errorf("%s: %w", pos[0], err)
+	}
+	mc, err := yield.Simulate(pulls, *baleKg, plan, yield.MCOptions{Draws: *draws, Seed: *seed, FixedLine: *fixed})
+	if err != nil {
+		return err
+	}
+	out := buildYieldJSON(rep, mc, plan, *fixed)
+	if *asJSON {
+		return writeJSON(stdout, out)
+	}
+	printYield(stdout, out, rep, plan)
+	return nil
+}
+
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
+}
+
+func buildYieldJSON(rep yield.Report, mc yield.MCResult, plan yield.Plan, fixed bool) yieldJSON {
+	b, g := rep.Balance, rep.Glycolysate
+	out := yieldJSON{
+		BaleKg: rep.BaleKg, Line: plan.Line.Line().Name, Draws: mc.Draws, Seed: mc.Seed, FixedLine: fixed,
+		FlakeKg: summaryOf(mc.FlakeKg), GlycolysateKg: summaryOf(mc.GlycolysateKg), HydroxylValue: summaryOf(mc.HydroxylValue),
+		Point: pointJSON{FlakeKg: b.FlakeKg, FlakeDryKg: b.FlakeDryKg, FlakeShare: b.FlakeShare, PETKg: b.PETKg, MoistureKg: b.MoistureKg,
+			GlycolysateKg: g.GlycolysateKg, HydroxylValue: g.HydroxylValue, ReactorKg: plan.ReactorKg},
+		FlakeComposition: b.Composition(), ResidualPPM: b.ResidualPPM(), Streams: map[string]float64{},
+		ProcessWaterKg: b.ProcessWaterKg, Closure: b.Closure,
+		Glycolysis: glycolysisOut(g),
+		Warnings:   append([]string{}, g.Warnings...),
+		Cautions:   []string{yield.CautionCaustic, yield.CautionHotGlycol},
+	}
+	if plan.ReactorKg > 0 {
+		n := rep.Batches
+		out.Point.Batches = &n
+	}
+	for _, s := range b.Streams {
+		out.Streams[s.Name] = s.Kg
+	}
+	if plan.Spec != nil {
+		fsj := &flakeSpecJSON{Name: plan.Spec.Name, Pass: true}
+		for _, c := range rep.Checks {
+			fsj.Checks = append(fsj.Checks, flakeCheckJSON{Item: c.Item.String(), Limit: c.Limit, Value: c.Value, Pass: c.Pass, PassShare: jnum(mc.SpecPass[c.Item])})
+			fsj.Pass = fsj.Pass && c.Pass
+		}
+		out.FlakeSpec = fsj
+	}
+	if g.HClKg > 0 {
+		out.Cautions = append(out.Cautions, yield.CautionPVC)
+	}
+	return out
+}
+
+func printYield(w io.Writer, o yieldJSON, rep yield.Report, plan yield.Plan) {
+	p := o.Point
+	fmt.Fprintf(w, "Bale %.0f kg through %s\n", o.BaleKg, plan.Line)
+	mode := "audit resampled and line efficiencies drawn from their ranges"
+	if o.FixedLine {
+		mode = "audit resampled, line efficiencies fixed at their midpoints"
+	}
+	fmt.Fprintf(w, "%d draws, seed %d (%s)\n\n", o.Draws, o.Seed, mode)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "\tpoint\tP10\tP50\tP90\tmean\t\n")
+	row := func(name, f string, point float64, s summaryJSON) {
+		v := func(x *float64) string {
+			if x == nil {
+				return "–"
+			}
+			return fmt.Sprintf(f, *x)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t\n", name, fmt.Sprintf(f, point), v(s.P10), v(s.P50), v(s.P90), v(s.Mean))
+	}
+	row("clean flake, kg", "%.1f", p.FlakeKg, o.FlakeKg)
+	row("glycolysate, kg", "%.1f", p.GlycolysateKg, o.GlycolysateKg)
+	row("hydroxyl value, mg KOH/g", "%.1f", p.HydroxylValue, o.HydroxylValue)
+	tw.Flush()
+	fmt.Fprintf(w, "\nFlake: %.1f %% of the bale; %.1f kg PET, %.2f kg moisture (%.2f %%)\n", 100*p.FlakeShare, p.PETKg, p.MoistureKg, 100*p.MoistureKg/p.FlakeKg)
+	fmt.Fprintf(w, "Reject streams, kg:")
+	for _, s := range rep.Balance.Streams {
+		fmt.Fprintf(w, "  %s %.2f", s.Name, s.Kg)
+	}
+	fmt.Fprintf(w, "\nBalance: bale %.3f kg + process water %.3f kg = flake + streams (relative error %.1e)\n", o.BaleKg, o.ProcessWaterKg, o.Closure)
+	keys := make([]string, 0, len(o.ResidualPPM))
+	for k, v := range o.ResidualPPM {
+		if v > 0 {
+			keys = append(keys, k)
+		}
+	}
+	sort.Slice(keys, func(i, j int) bool { return o.ResidualPPM[keys[i]] > o.ResidualPPM[keys[j]] })
+	fmt.Fprintf(w, "Residual contaminants, ppm of dry flake:")
+	for _, k := range keys {
+		fmt.Fprintf(w, "  %s %.1f", k, o.ResidualPPM[k])
+	}
+	fmt.Fprintln(w)
+	if s := o.FlakeSpec; s != nil {
+		verdict := "PASS"
+		if !s.Pass {
+			verdict = "FAIL"
+		}
+		fmt.Fprintf(w, "\nFlake spec %q: %s at the point estimate\n", s.Name, verdict)
+		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+		fmt.Fprintf(tw, "  item\tlimit\tvalue\tverdict\tdraws meeting it\n")
+		for _, c := range s.Checks {
+			v := "fail"
+			if c.Pass {
+				v = "pass"
+			}
+			share := "–"
+			if c.PassShare != nil {
+				share = fmt.Sprintf("%.1f %%", 100**c.PassShare)
+			}
+			fmt.Fprintf(tw, "  %s\t%g\t%.3g\t%s\t%s\n", c.Item, c.Limit, c.Value, v, share)
+		}
+		tw.Flush()
+	}
+	g := rep.Glycolysate
+	fmt.Fprintf(w, "\nGlycolysis: %s at %s, %g %% %s, conversion %g, EG stripped %g\n", g.Glycol.Name, ratioText(plan.Recipe), g.Recipe.CatalystPct, g.Catalyst.Name, g.Recipe.Conversion, g.Recipe.StripEG)
+	printGlycolysate(w, g)
+	if p.Batches != nil {
+		fmt.Fprintf(w, "  reactor batches of %g kg: %d\n", p.ReactorKg, *p.Batches)
+	}
+	printNotes(w, o.Warnings, o.Cautions)
+}
+
+func ratioText(r yield.Recipe) string {
+	if r.Molar {
+		return fmt.Sprintf("%g mol per mol of PET repeat units of the dry flake", r.Ratio)
+	}
+	return fmt.Sprintf("%g kg per kg of dry flake", r.Ratio)
+}
+
+func printNotes(w io.Writer, warnings, cautions []string) {
+	if len(warnings) > 0 {
+		fmt.Fprintln(w)
+	}
+	for _, s := range warnings {
+		fmt.Fprintf(w, "Warning: %s\n", s)
+	}
+	fmt.Fprintln(w)
+	for _, c := range cautions {
+		fmt.Fprintln(w, wrap(c, 100))
+	}
+}
+
+// wrap breaks s into lines of at most width runes at spaces.
+func wrap(s string, width int) string {
+	var b strings.Builder
+	n := 0
+	for i, word := range strings.Fields(s) {
+		l := len([]rune(word))
+		if i > 0 {
+			if n+1+l > width {
+				b.WriteString("\n  ")
+				n = 2
+			} else {
+				b.WriteByte(' ')
+				n++
+			}
+		}
+		b.WriteString(word)
+		n += l
+	}
+	return b.String()
+}
