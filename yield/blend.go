@@ -230,10 +230,10 @@ func scaleToShare(ps []Polyol, target float64) error {
 	if free <= 0 {
 		return fieldErr("blend", "target_pet_share", ErrBadBlend, "no PET-free polyol to dilute with; add one (e.g. castor:1)")
 	}
-	if own := pet / fixed; target > own {
+	if own := pet / fixed; target > own*(1+1e-12) {
 		return fieldErr("blend", "target_pet_share", ErrOutOfRange, "%g is above the %.3g the PET-bearing polyols reach on their own; lower the target", target, own)
 	}
-	lambda := (pet/target - fixed) / free
+	lambda := max(0, (pet/target-fixed)/free)
 	for i := range ps {
 		if ps[i].PETShare == 0 {
 			ps[i].Kg *= lambda

@@ -51,3 +51,12 @@ water = 2 * 2000 / (2 * H + O)
 ew = 100 * nco / (200 * nco / mdi)
 print(f"blend OHV {KOH*oh/200e3:.2f}; MDI kg at index 110: {1.10*(oh+water)*ew/1000:.3f}")
 print(f"PVC: HCl per g PVC {(H+Cl)/(2*C+3*H+Cl):.4f}")
+
+# ExampleMixBlend: glycolysate OHV 527.4, 20 kg, PET share 0.499, castor
+# scaled to 12 % recycled PET, 1.5 kg water, TDI at index 105.
+pet_kg = 20 * 0.499
+castor = pet_kg / 0.12 - 20
+oh = (20e3 * 527.4 + castor * 1e3 * 164) / KOH
+iso = 1.05 * (oh + 2 * 1500 / (2 * H + O)) * tdi / 2 / 1000
+print(f"castor {castor:.2f} kg; blend OHV {KOH*oh/((20+castor)*1e3):.1f}; TDI {iso:.2f} kg; "
+      f"PET in foam {100*pet_kg/(20+castor+1.5+iso):.1f} %")

@@ -1,0 +1,94 @@
+package yield_test
+
+import (
+	"fmt"
+
+	"baleassay/assess"
+	"baleassay/yield"
+)
+
+// One kilogram of PET glycolysed with one kilogram of DEG, without
+// catalyst. Source of the printed figures: shared/REFERENCE.md
+// 'Glycolysis' (528.7, p = 0.356, 64.4 / 22.9 / 8.2 %) and
+// testdata/ref/glycolysis_ref.py (EW, Mn, weight shares).
+func ExampleGlycolyse() {
+	r := yield.DefaultRecipe(1, "DEG", 1)
+	r.CatalystPct = 0
+	g, err := yield.Glycolyse(r)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("OHV %.1f mg KOH/g, EW %.1f g/eq, Mn %.1f g/mol\n", g.HydroxylValue, g.EquivalentWeight, g.Mn)
+	fmt.Printf("p = %.3f; n0 %.1f %%, n1 %.1f %%, n2 %.1f %%\n", g.Dist.P, 100*g.Dist.Number[0], 100*g.Dist.Number[1], 100*g.Dist.Number[2])
+	fmt.Printf("free glycol %.1f wt %%, 3+ units %.1f wt %%\n", 100*g.Dist.FreeGlycolWt, 100*g.Dist.LongOligomerWt)
+	// Output:
+	// OHV 528.7 mg KOH/g, EW 106.1 g/eq, Mn 212.2 g/mol
+	// p = 0.356; n0 64.4 %, n1 22.9 %, n2 8.2 %
+	// free glycol 27.5 wt %, 3+ units 18.5 wt %
+}
+
+// A glycolysate blended with castor oil to 12 % recycled PET, foamed with
+// water and TDI at index 105. Source of the printed figures:
+// testdata/ref/glycolysis_ref.py (same arithmetic in Python).
+func ExampleMixBlend() {
+	tdi, _ := yield.LookupIsocyanate("TDI")
+	r, err := yield.MixBlend(yield.Blend{
+		Polyols:        []yield.Polyol{{Name: "glycolysate", HydroxylValue: 527.4, Kg: 20, PETShare: 0.499}, yield.Castor(1)},
+		NCOPct:         tdi.NCOPct,
+		Index:          105,
+		WaterKg:        1.5,
+		TargetPETShare: 0.12,
+	})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("castor %.2f kg; blend %.2f kg at OHV %.1f\n", r.Polyols[1].Kg, r.BlendKg, r.HydroxylValue)
+	fmt.Printf("TDI %.2f kg; recycled PET %.1f %% of the blend, %.1f %% of the foam\n", r.IsocyanateKg, 100*r.RecycledPETShare, 100*r.FormulationPETShare)
+	// Output:
+	// castor 63.17 kg; blend 83.17 kg at OHV 251.4
+	// TDI 49.30 kg; recycled PET 12.0 % of the blend, 7.4 % of the foam
+}
+
+// Which categories sink in a water bath. Source: shared/REFERENCE.md
+// 'Densities' (polyolefins float, PET and PVC sink); labels 0.90–1.40
+// straddle water and split by overlap, (1.40 − 1.00)/(1.40 − 0.90).
+func ExampleSinkShare() {
+	for _, key := range []string{"pet_clear", "pvc", "closures", "labels"} {
+		c, _ := assess.LookupCategory(key)
+		s, _ := yield.SinkShare(c.Density, 1.00)
+		fmt.Printf("%s: %.0f %% sinks\n", key, 100*s)
+	}
+	// Output:
+	// pet_clear: 100 % sinks
+	// pvc: 100 % sinks
+	// closures: 0 % sinks
+	// labels: 80 % sinks
+}
+
+// An invented bale of 500 kg through the built-in line. The printed
+// figures are this model's own at the line's midpoints (regression
+// values, not outside data); the outside checks are in line_test.go.
+func ExampleModel_Run() {
+	m, err := yield.Compile(yield.BuiltinLine())
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	kg := make([]float64, assess.NumCategories())
+	for key, v := range map[string]float64{"pet_clear": 440, "closures": 20, "labels": 10, "pvc": 1, "liquid": 15, "fines": 14} {
+		i, _ := assess.CategoryIndex(key)
+		kg[i] = v
+	}
+	b, err := m.Run(kg)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("flake %.1f kg (%.1f %% of the bale), PVC %.0f ppm, closures %.0f ppm\n", b.FlakeKg, 100*b.FlakeShare, b.ResidualPPM()["pvc"], b.ResidualPPM()["closures"])
+	fmt.Printf("floats %.1f kg, balance closes: %v\n", b.StreamKg("floats"), b.Closure < yield.ClosureTolerance)
+	// Output:
+	// flake 410.6 kg (82.1 % of the bale), PVC 13 ppm, closures 17 ppm
+	// floats 27.7 kg, balance closes: true
+}
