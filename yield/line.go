@@ -26,15 +26,16 @@ const (
 	StageSinkFloat                        // density separation in a bath
 	StageDry                              // rinse and drying to a residual moisture
 	StageScreen                           // fines screening
+	stageKindEnd                          // one past the last kind; add new kinds above
 )
 
-var stageKeys = [...]string{"", "sort", "grind", "elutriate", "caustic_wash", "sink_float", "dry", "screen"}
+var stageKeys = [stageKindEnd]string{"", "sort", "grind", "elutriate", "caustic_wash", "sink_float", "dry", "screen"}
 
 // defaultStream is the reject stream a stage feeds unless it names one.
-var defaultStream = [...]string{"", "sorted_out", "fines", "lights", "water_and_dirt", "floats", "water_and_dirt", "fines"}
+var defaultStream = [stageKindEnd]string{"", "sorted_out", "fines", "lights", "water_and_dirt", "floats", "water_and_dirt", "fines"}
 
 func (k StageKind) String() string {
-	if k < StageSort || k > StageScreen {
+	if k < StageSort || k >= stageKindEnd {
 		return fmt.Sprintf("StageKind(%d)", int(k))
 	}
 	return stageKeys[k]
@@ -42,7 +43,7 @@ func (k StageKind) String() string {
 
 // ParseStageKind reads a stage kind key.
 func ParseStageKind(s string) (StageKind, error) {
-	for k := StageSort; k <= StageScreen; k++ {
+	for k := StageSort; k < stageKindEnd; k++ {
 		if stageKeys[k] == s {
 			return k, nil
 		}

@@ -306,3 +306,16 @@ func TestFlakeSpec(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+func TestStageKindsComplete(t *testing.T) {
+	// Source: common practice (every kind has a key, a stream and a round trip).
+	for k := StageSort; k < stageKindEnd; k++ {
+		back, err := ParseStageKind(k.String())
+		if stageKeys[k] == "" || defaultStream[k] == "" || err != nil || back != k {
+			t.Errorf("kind %d: key %q, stream %q, round trip %v %v", k, stageKeys[k], defaultStream[k], back, err)
+		}
+	}
+	if _, err := ParseStageKind("rinse"); !errors.Is(err, ErrUnknownKey) {
+		t.Errorf("unknown kind: %v", err)
+	}
+}

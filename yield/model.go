@@ -89,7 +89,7 @@ func compile(l Line) (*Model, error) {
 
 func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 	where := s.where(i)
-	if s.Kind < StageSort || s.Kind > StageScreen {
+	if s.Kind < StageSort || s.Kind >= stageKindEnd {
 		return cstage{}, fieldErr(where, "kind", ErrBadLine, "missing or unknown stage kind; use one of %s", strings.Join(stageKeys[1:], ", "))
 	}
 	only := func(field string, set bool, kind StageKind) error {
