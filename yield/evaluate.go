@@ -1,7 +1,9 @@
 package yield
 
 import (
+	"fmt"
 	"math"
+	"strings"
 
 	"baleassay/assess"
 )
@@ -56,6 +58,9 @@ type Report struct {
 	// Batches is the number of reactor batches for the bale's flake, 0
 	// when the plan states no reactor charge.
 	Batches int
+	// Warnings are about the bale and the line (hazards, aluminium in the
+	// caustic wash); the glycolysate carries its own.
+	Warnings []string
 }
 
 // Evaluate runs one bale through the plan at the point estimate.
@@ -79,6 +84,7 @@ func Evaluate(pulls []assess.Pull, baleKg float64, plan Plan) (Report, error) {
 		return Report{}, err
 	}
 	rep := Report{BaleKg: baleKg, BaleComposition: comp, Balance: bal}
+	rep.Warnings = lineWarnings(pulls, comp, bal)
 	if plan.Spec != nil {
 		rep.Checks = plan.Spec.Check(bal)
 	}
@@ -141,4 +147,29 @@ func (p Plan) recipeFor(petKg, dryKg float64, g Glycol) Recipe {
 	}
 	r.Ratio, r.Molar = 0, false
 	return r
+}
+
+// lineWarnings flags what the grader and the line crew must act on:
+// hazards in the audit or, worse, in the flake, and aluminium reaching
+// the caustic wash.
+func lineWarnings(pulls []assess.Pull, comp []float64, bal Balance) []string {
+	var w []string
+	hz, _ := assess.CategoryIndex("hazard")
+	var labels []string
+	for _, p := range pulls {
+		if p.Kg[hz] > 0 || (p.Pieces != nil && p.Pieces[hz] > 0) {
+			labels = append(labels, p.Label)
+		}
+	}
+	if len(labels) > 0 {
+		w = append(w, fmt.Sprintf("hazards were found in pulls %s: the bale must be sorted by hand before it goes on the line; the model assumes only what the line profile removes", strings.Join(labels, ", ")))
+	}
+	if bal.Flake[hz] > 0 {
+		w = append(w, fmt.Sprintf("%.3g kg of hazard items reach the flake: this line profile does not remove them; add a sort stage with removal hazard = 1", bal.Flake[hz]))
+	}
+	al, _ := assess.CategoryIndex("aluminium")
+	if comp[al] > 0 {
+		w = append(w, "aluminium in the bale: what the sort misses releases hydrogen in the caustic wash; ventilate the wash tanks")
+	}
+	return w
 }

@@ -3,6 +3,7 @@ package yield
 import (
 	"errors"
 	"math"
+	"strings"
 	"testing"
 
 	"baleassay/assess"
@@ -97,5 +98,31 @@ func TestEvaluateBatchesAndErrors(t *testing.T) {
 	}
 	if _, err := Evaluate(pulls, 10, DefaultPlan()); !errors.Is(err, assess.ErrBaleLighter) {
 		t.Errorf("bale lighter than pulls: %v", err)
+	}
+}
+
+func TestHazardWarnings(t *testing.T) {
+	pulls := inventedPulls(t, 4, 2)
+	hz := catIdx(t, "hazard")
+	pulls[2].Kg = append([]float64(nil), pulls[2].Kg...)
+	pulls[2].Kg[hz] = 0.3
+	plan := DefaultPlan()
+	rep, err := Evaluate(pulls, 548, plan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Source: shared/REFERENCE.md 'Cautions to show' (hazardous items in
+	// bales are safety flags, common practice).
+	if len(rep.Warnings) < 1 || !strings.Contains(rep.Warnings[0], pulls[2].Label) {
+		t.Errorf("no hazard warning naming the pull: %q", rep.Warnings)
+	}
+	if rep.Balance.Flake[hz] != 0 {
+		t.Errorf("built-in sort left %g kg hazards in the flake", rep.Balance.Flake[hz])
+	}
+	m, _ := Compile(waterBathOnly(1))
+	plan.Line = m
+	rep, _ = Evaluate(pulls, 548, plan)
+	if !strings.Contains(strings.Join(rep.Warnings, "\n"), "reach the flake") {
+		t.Errorf("hazards in the flake not flagged: %q", rep.Warnings)
 	}
 }

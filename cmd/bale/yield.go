@@ -183,7 +183,7 @@ func buildYieldJSON(rep yield.Report, mc yield.MCResult, plan yield.Plan, fixed 
 		FlakeComposition: b.Composition(), ResidualPPM: b.ResidualPPM(), Streams: map[string]float64{},
 		ProcessWaterKg: b.ProcessWaterKg, Closure: b.Closure,
 		Glycolysis: glycolysisOut(g),
-		Warnings:   append([]string{}, g.Warnings...),
+		Warnings:   append(append([]string{}, rep.Warnings...), g.Warnings...),
 		Cautions:   []string{yield.CautionCaustic, yield.CautionHotGlycol},
 	}
 	if plan.ReactorKg > 0 {
