@@ -35,46 +35,38 @@ func (m *Model) eval(in, par, st, streams []float64) (water, processWater float6
 	for i := range streams {
 		streams[i] = 0
 	}
+	dry := -1.0 // dry mass, tracked once a dryer has run
 	for si := range m.stages {
 		s := &m.stages[si]
-		out := &streams[s.stream]
 		sent := 0.0
-		for c, t := range s.rem {
-			r := t[0].coef*par[t[0].param] + t[1].coef*par[t[1].param]
-			if r == 0 {
-				continue
-			}
-			moved := st[c] * r
-			st[c] -= moved
+		for _, o := range s.ops {
+			r := o.t[0].coef*par[o.t[0].param] + o.t[1].coef*par[o.t[1].param]
+			moved := st[o.c] * r
+			st[o.c] -= moved
 			sent += moved
 		}
-		*out += sent
-		if water > 0 && sent > 0 {
+		streams[s.stream] += sent
+		if dry >= 0 && sent > 0 {
 			// Flake taken out after a dryer takes its moisture along.
-			dry := 0.0
-			for _, v := range st {
-				dry += v
-			}
-			w := water * sent / (dry + sent)
+			w := water * sent / dry
+			dry -= sent
 			water -= w
-			*out += w
+			streams[s.stream] += w
 		}
 		switch s.kind {
 		case StageGrind:
 			if s.dust >= 0 {
 				d := par[s.dust]
-				for c := 0; c < m.nCat; c++ {
-					if isPETCat[c] {
-						moved := st[c] * d
-						st[c] -= moved
-						st[m.nCat+1] += moved
-					}
+				for _, c := range petCats {
+					moved := st[c] * d
+					st[c] -= moved
+					st[m.nCat+1] += moved
 				}
 			}
 		case StageDry:
-			*out += water + st[m.liquid]
+			streams[s.stream] += water + st[m.liquid]
 			st[m.liquid] = 0
-			dry := 0.0
+			dry = 0
 			for _, v := range st {
 				dry += v
 			}
@@ -86,13 +78,15 @@ func (m *Model) eval(in, par, st, streams []float64) (water, processWater float6
 	return water, processWater
 }
 
-// isPETCat caches IsTargetPET by catalogue index.
-var isPETCat = func() []bool {
-	b := make([]bool, assess.NumCategories())
-	for i := range b {
-		b[i] = assess.CategoryAt(i).IsTargetPET()
+// petCats lists the catalogue indices of target PET.
+var petCats = func() []int {
+	var out []int
+	for i := 0; i < assess.NumCategories(); i++ {
+		if assess.CategoryAt(i).IsTargetPET() {
+			out = append(out, i)
+		}
 	}
-	return b
+	return out
 }()
 
 // Stream is one reject stream of the line.

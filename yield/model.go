@@ -20,8 +20,25 @@ type cstage struct {
 	kind   StageKind
 	stream int
 	rem    [][2]term
-	dust   int // parameter of dust_made (grind), -1 if none
-	moist  int // parameter of moisture (dry), -1 if none
+	ops    []op // the components with a non-zero term, for eval
+	dust   int  // parameter of dust_made (grind), -1 if none
+	moist  int  // parameter of moisture (dry), -1 if none
+}
+
+// op is one component a stage acts on, with its two terms.
+type op struct {
+	c int
+	t [2]term
+}
+
+// sparse lists the components of rem that have a non-zero term.
+func (cs *cstage) sparse() {
+	cs.ops = cs.ops[:0]
+	for c, t := range cs.rem {
+		if t[0].coef != 0 || t[1].coef != 0 {
+			cs.ops = append(cs.ops, op{c, t})
+		}
+	}
 }
 
 // Model is a validated, compiled line profile ready to run.
@@ -175,6 +192,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 			return cstage{}, err
 		}
 	}
+	cs.sparse()
 	return cs, closes(where, s, cs, m.params)
 }
 
