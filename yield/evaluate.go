@@ -95,7 +95,7 @@ func Evaluate(pulls []assess.Pull, baleKg float64, plan Plan) (Report, error) {
 	gly, _ := LookupGlycol(plan.Recipe.Glycol) // checked by validate
 	r := plan.recipeFor(bal.PETKg, bal.FlakeDryKg, gly)
 	r.PVCKg = bal.Flake[pvc]
-	r.InertKg = bal.FlakeDryKg - bal.PETKg - r.PVCKg
+	r.InertKg = max(0, bal.FlakeDryKg-bal.PETKg-r.PVCKg) // rounding can dip below 0
 	g, err := Glycolyse(r)
 	if err != nil {
 		return rep, err

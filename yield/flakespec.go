@@ -136,6 +136,9 @@ func ReadFlakeSpec(r io.Reader, name string) (FlakeSpec, error) {
 	if err := dec.Decode(&s); err != nil {
 		return FlakeSpec{}, fieldErr(name, "", ErrBadSpec, "not a valid flake spec: %v", jsonMsg(err))
 	}
+	if dec.More() {
+		return FlakeSpec{}, fieldErr(name, "", ErrBadSpec, "text after the spec's closing brace; a file holds one spec")
+	}
 	if err := s.Validate(); err != nil {
 		var fe *FieldError
 		if errors.As(err, &fe) {

@@ -166,6 +166,9 @@ func ReadLine(r io.Reader, name string) (Line, error) {
 	if err := dec.Decode(&l); err != nil {
 		return Line{}, fieldErr(name, "", ErrBadLine, "not a valid line profile: %v", jsonMsg(err))
 	}
+	if dec.More() {
+		return Line{}, fieldErr(name, "", ErrBadLine, "text after the profile's closing brace; a file holds one profile")
+	}
 	if err := l.Validate(); err != nil {
 		var fe *FieldError
 		if errors.As(err, &fe) {

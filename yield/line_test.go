@@ -319,3 +319,18 @@ func TestStageKindsComplete(t *testing.T) {
 		t.Errorf("unknown kind: %v", err)
 	}
 }
+
+func TestLineJSONOddities(t *testing.T) {
+	// Source: common practice (strict reading: no nulls, one document).
+	for _, j := range []string{
+		`{"name": "x", "stages": [{"kind": "grind", "pet_loss": null}]}`,
+		`{"name": "x", "stages": [{"kind": "grind", "pet_loss": [0.1]}]}`,
+		`{"name": "x", "stages": [{"kind": "grind", "pet_loss": "1 %"}]}`,
+		`{"name": "x", "stages": [{"kind": "grind"}]} {"name": "y"}`,
+		`{"name": "x", "stages": [{"kind": "rinse"}]}`,
+	} {
+		if _, err := ReadLine(bytes.NewReader([]byte(j)), "l.json"); !errors.Is(err, ErrBadLine) {
+			t.Errorf("%s: got %v", j, err)
+		}
+	}
+}

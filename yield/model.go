@@ -223,7 +223,8 @@ func (m *Model) compileSinkFloat(where string, s Stage, keep string, cs *cstage)
 		}
 		loss = m.addParam(where+" product_loss", s.ProductLoss)
 	}
-	petRange := assess.CategoryAt(0).Density
+	pc, _ := assess.CategoryIndex("pet_clear")
+	petRange := assess.CategoryAt(pc).Density // dust is bottle PET
 	for c := range cs.rem {
 		var sink float64
 		var ok bool

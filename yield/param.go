@@ -33,6 +33,9 @@ func (p Param) Varies() bool { return p.Hi > p.Lo }
 // UnmarshalJSON reads a number or a [lo, hi] pair.
 func (p *Param) UnmarshalJSON(b []byte) error {
 	b = bytes.TrimSpace(b)
+	if string(b) == "null" {
+		return fmt.Errorf("want a number or [low, high], not null; leave the field out instead")
+	}
 	if len(b) > 0 && b[0] == '[' {
 		var r []float64
 		if err := json.Unmarshal(b, &r); err != nil {
