@@ -145,7 +145,13 @@ type BlendResult struct {
 	// RecycledPETKg, its share of the blend and of the whole formulation
 	// (polyols + water + isocyanate).
 	RecycledPETKg, RecycledPETShare, FormulationKg, FormulationPETShare float64
+	Warnings                                                            []string
 }
+
+// FoamPETShareCaution is the recycled-PET share of a polyol blend above
+// which MixBlend warns: about 10–15 % still gives good foam (common
+// practice, shared/REFERENCE.md 'Glycolysis'); the upper end is used.
+const FoamPETShareCaution = 0.15
 
 // MixBlend computes a polyol blend and its isocyanate demand:
 //
@@ -208,6 +214,9 @@ func MixBlend(b Blend) (BlendResult, error) {
 	r.RecycledPETShare = r.RecycledPETKg / r.BlendKg
 	r.FormulationKg = r.BlendKg + b.WaterKg + r.IsocyanateKg
 	r.FormulationPETShare = r.RecycledPETKg / r.FormulationKg
+	if r.RecycledPETShare > FoamPETShareCaution {
+		r.Warnings = append(r.Warnings, fmt.Sprintf("recycled PET is %.0f %% of the blend; above about 10–15 %% foams may turn brittle or coarse: trial it, or blend to a lower share", 100*r.RecycledPETShare))
+	}
 	return r, nil
 }
 

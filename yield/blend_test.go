@@ -131,3 +131,21 @@ func TestBlendErrors(t *testing.T) {
 		t.Errorf("castor: %+v %v", p, err)
 	}
 }
+
+func TestFoamShareWarning(t *testing.T) {
+	mk := func(castor float64) BlendResult {
+		r, err := MixBlend(Blend{Polyols: []Polyol{{HydroxylValue: 500, Kg: 10, PETShare: 0.5}, Castor(castor)}, NCOPct: 48.25, Index: 105})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	// Source: shared/REFERENCE.md 'Glycolysis': roughly 10–15 % recycled
+	// PET in the blend still gives good foam (common practice).
+	if r := mk(40); r.RecycledPETShare != 0.1 || len(r.Warnings) != 0 {
+		t.Errorf("10 %%: %v", r.Warnings)
+	}
+	if r := mk(15); len(r.Warnings) != 1 {
+		t.Errorf("20 %%: no warning")
+	}
+}

@@ -43,6 +43,7 @@ type blendJSON struct {
 	RecycledPETShare    float64      `json:"recycled_pet_share"`
 	FormulationKg       float64      `json:"formulation_kg"`
 	FormulationPETShare float64      `json:"formulation_pet_share"`
+	Warnings            []string     `json:"warnings"`
 	Cautions            []string     `json:"cautions"`
 }
 
@@ -107,6 +108,7 @@ func runBlend(args []string, stdout, stderr io.Writer) error {
 		Isocyanate: name, NCOPct: b.NCOPct, NCOEquivalentWeight: r.NCOEquivalentWeight, Index: b.Index,
 		IsocyanateKg: r.IsocyanateKg, RecycledPETKg: r.RecycledPETKg, RecycledPETShare: r.RecycledPETShare,
 		FormulationKg: r.FormulationKg, FormulationPETShare: r.FormulationPETShare,
+		Warnings: append([]string{}, r.Warnings...),
 		Cautions: []string{yield.CautionIsocyanate},
 	}
 	for _, p := range r.Polyols {
@@ -129,6 +131,6 @@ func runBlend(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintf(stdout, "Isocyanate %s (%.2f %% NCO, %.1f g/eq) at index %g: %.3f kg\n", o.Isocyanate, o.NCOPct, o.NCOEquivalentWeight, o.Index, o.IsocyanateKg)
 	fmt.Fprintf(stdout, "Recycled PET: %.3f kg, %.1f %% of the blend, %.1f %% of the formulation (%.3f kg)\n",
 		o.RecycledPETKg, 100*o.RecycledPETShare, 100*o.FormulationPETShare, o.FormulationKg)
-	printNotes(stdout, nil, o.Cautions)
+	printNotes(stdout, o.Warnings, o.Cautions)
 	return nil
 }

@@ -13,7 +13,7 @@ func init() {
 	register(command{
 		name: "glycolysis",
 		usage: "--pet-kg M --glycol KEY (--glycol-kg G | --glycol-ratio R [--molar]) [--strip-eg F] [--conversion X] " +
-			"[--catalyst-pct P] [--pet-mn MN] [--pvc-kg K] [--json]",
+			"[--catalyst-pct P] [--catalyst K] [--pet-mn MN] [--pvc-kg K] [--json]",
 		summary: "hydroxyl value, molar mass and chain-length distribution of a PET glycolysate",
 		run:     runGlycolysis,
 	})

@@ -17,7 +17,7 @@ func init() {
 	register(command{
 		name: "yield",
 		usage: "PULLS.csv --bale-kg N [--line FILE] [--flake-spec FILE|none] [--glycol KEY --glycol-ratio R [--molar]] " +
-			"[--strip-eg F] [--conversion X] [--catalyst-pct P] [--reactor-kg K] [--draws N] [--seed S] [--fixed-line] [--json]",
+			"[--strip-eg F] [--conversion X] [--catalyst-pct P] [--catalyst K] [--pet-mn MN] [--reactor-kg K] [--draws N] [--seed S] [--fixed-line] [--json]",
 		summary: "put an audited bale through the wash line and the glycolysis reactor, with P10/P50/P90",
 		run:     runYield,
 	})
