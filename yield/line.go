@@ -211,9 +211,11 @@ func (s Stage) where(i int) string {
 }
 
 // removalFor resolves the removal entries of a stage to one Param per
-// component (unset where none applies): category keys override group keys.
-func (s Stage) removalFor(where string) ([]Param, error) {
+// component (unset where none applies) and the entry each came from:
+// category keys override group keys.
+func (s Stage) removalFor(where string) ([]Param, []string, error) {
 	out := make([]Param, NumComponents())
+	from := make([]string, NumComponents())
 	keys := make([]string, 0, len(s.Removal))
 	for k := range s.Removal {
 		keys = append(keys, k)
@@ -222,21 +224,21 @@ func (s Stage) removalFor(where string) ([]Param, error) {
 	for _, k := range keys {
 		p := s.Removal[k]
 		if err := checkParam(where, "removal."+k, p); err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 		if g, ok := assess.LookupGroup(k); ok {
 			for i := 0; i < assess.NumCategories(); i++ {
 				if assess.CategoryAt(i).Group == g && !s.Removal[assess.CategoryAt(i).Key].set {
-					out[i] = p
+					out[i], from[i] = p, k
 				}
 			}
 			continue
 		}
 		i, ok := ComponentIndex(k)
 		if !ok {
-			return nil, fieldErr(where, "removal."+k, ErrUnknownKey, "%q is not a category, group, %q or %q; categories: %s", k, KeyGlue, KeyDust, strings.Join(assess.CategoryKeys(), ", "))
+			return nil, nil, fieldErr(where, "removal."+k, ErrUnknownKey, "%q is not a category, group, %q or %q; categories: %s", k, KeyGlue, KeyDust, strings.Join(assess.CategoryKeys(), ", "))
 		}
-		out[i] = p
+		out[i], from[i] = p, k
 	}
-	return out, nil
+	return out, from, nil
 }

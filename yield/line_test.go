@@ -129,6 +129,14 @@ func TestBuiltinLineOnTypicalBale(t *testing.T) {
 			t.Errorf("stream %s is empty", s)
 		}
 	}
+	// Source: common practice (shares of a whole sum to 1).
+	sum := 0.0
+	for _, v := range b.Composition() {
+		sum += v
+	}
+	if math.Abs(sum-1) > 1e-12 || len(m.Streams()) != len(want) {
+		t.Errorf("composition sums to %.15f; streams %v", sum, m.Streams())
+	}
 	// Source: common practice — drying leaves the stated moisture, 0.75 %
 	// at the range's midpoint, before the later stages take flake out.
 	var v [numFlakeItems]float64

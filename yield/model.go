@@ -45,7 +45,6 @@ func (cs *cstage) sparse() {
 type Model struct {
 	line    Line
 	params  []Param
-	names   []string // parameter names for reports
 	stages  []cstage
 	streams []string
 	glue    int // parameter of glue_share_of_labels, -1 if none
@@ -60,9 +59,9 @@ const zeroParam = 0
 // Compile validates a line profile and prepares it for evaluation.
 func Compile(l Line) (*Model, error) { return compile(l) }
 
-func (m *Model) addParam(name string, p Param) int {
+// addParam adds a parameter and returns its index.
+func (m *Model) addParam(p Param) int {
 	m.params = append(m.params, p)
-	m.names = append(m.names, name)
 	return len(m.params) - 1
 }
 
@@ -87,12 +86,12 @@ func compile(l Line) (*Model, error) {
 	m := &Model{line: l, glue: -1, nCat: assess.NumCategories()}
 	m.labels, _ = assess.CategoryIndex("labels")
 	m.liquid, _ = assess.CategoryIndex("liquid")
-	m.addParam("zero", Fixed(0))
+	m.addParam(Fixed(0))
 	if l.GlueShareOfLabels.set {
 		if err := checkParam("line", "glue_share_of_labels", l.GlueShareOfLabels); err != nil {
 			return nil, err
 		}
-		m.glue = m.addParam("glue_share_of_labels", l.GlueShareOfLabels)
+		m.glue = m.addParam(l.GlueShareOfLabels)
 	}
 	for i, s := range l.Stages {
 		cs, err := m.compileStage(i, s, nc)
@@ -148,7 +147,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 		return cstage{}, fieldErr(where, "stream", ErrBadLine, "%q: use lower-case letters, digits and _", stream)
 	}
 	cs := cstage{kind: s.Kind, stream: m.streamIndex(stream), rem: make([][2]term, nc), dust: -1, moist: -1}
-	removal, err := s.removalFor(where)
+	removal, from, err := s.removalFor(where)
 	if err != nil {
 		return cstage{}, err
 	}
@@ -157,12 +156,19 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 		if err := checkParam(where, "pet_loss", s.PETLoss); err != nil {
 			return cstage{}, err
 		}
-		pet = m.addParam(where+" pet_loss", s.PETLoss)
+		pet = m.addParam(s.PETLoss)
 	}
+	// One parameter per removal entry: a group's members share one draw.
+	entry := map[string]int{}
 	for c := 0; c < nc; c++ {
 		cs.rem[c] = [2]term{{zeroParam, 0}, {zeroParam, 0}}
 		if removal[c].set {
-			cs.rem[c][0] = term{m.addParam(where+" removal."+ComponentKey(c), removal[c]), 1}
+			pi, ok := entry[from[c]]
+			if !ok {
+				pi = m.addParam(removal[c])
+				entry[from[c]] = pi
+			}
+			cs.rem[c][0] = term{pi, 1}
 		}
 		if pet >= 0 && isPET(c) {
 			cs.rem[c][1] = term{pet, 1}
@@ -174,7 +180,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 			if err := checkParam(where, "dust_made", s.DustMade); err != nil {
 				return cstage{}, err
 			}
-			cs.dust = m.addParam(where+" dust_made", s.DustMade)
+			cs.dust = m.addParam(s.DustMade)
 		}
 	case StageDry:
 		if !s.Moisture.set {
@@ -186,7 +192,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 		if s.Moisture.Hi >= 1 {
 			return cstage{}, fieldErr(where, "moisture", ErrOutOfRange, "%g leaves only water; give the moisture share of the wet flake below 1", s.Moisture.Hi)
 		}
-		cs.moist = m.addParam(where+" moisture", s.Moisture)
+		cs.moist = m.addParam(s.Moisture)
 	case StageSinkFloat:
 		if err := m.compileSinkFloat(where, s, keep, &cs); err != nil {
 			return cstage{}, err
@@ -215,13 +221,13 @@ func (m *Model) compileSinkFloat(where string, s Stage, keep string, cs *cstage)
 	if err := checkParam(where, "efficiency", s.Efficiency); err != nil {
 		return err
 	}
-	eff := m.addParam(where+" efficiency", s.Efficiency)
+	eff := m.addParam(s.Efficiency)
 	loss := zeroParam
 	if s.ProductLoss.set {
 		if err := checkParam(where, "product_loss", s.ProductLoss); err != nil {
 			return err
 		}
-		loss = m.addParam(where+" product_loss", s.ProductLoss)
+		loss = m.addParam(s.ProductLoss)
 	}
 	pc, _ := assess.CategoryIndex("pet_clear")
 	petRange := assess.CategoryAt(pc).Density // dust is bottle PET
@@ -261,11 +267,6 @@ func closes(where string, s Stage, cs cstage, params []Param) error {
 		}
 	}
 	return nil
-}
-
-// Params returns the model's parameters with their names, for reports.
-func (m *Model) Params() (names []string, params []Param) {
-	return append([]string(nil), m.names[1:]...), append([]Param(nil), m.params[1:]...)
 }
 
 // Streams returns the names of the reject streams in first-use order.
