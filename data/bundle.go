@@ -186,3 +186,21 @@ func decodeBody(p []byte, base int) (BundleHeader, [][]byte, error) {
 	}
 	return h, raws, nil
 }
+
+// BundleSigner returns the fingerprint of the key that signed a bundle,
+// after checking that the signature verifies with that key, so that
+// `bale trust add FILE` never trusts the key of a damaged file. It does
+// not consult any trust list.
+func BundleSigner(raw []byte) (Fingerprint, error) {
+	if len(raw) > MaxBundleBytes {
+		return Fingerprint{}, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", len(raw), MaxBundleBytes)
+	}
+	env, err := parseSign1(raw)
+	if err != nil {
+		return Fingerprint{}, err
+	}
+	if err := verifySign1(env, env.kid); err != nil {
+		return Fingerprint{}, err
+	}
+	return FingerprintOf(env.kid), nil
+}

@@ -182,3 +182,9 @@ func ParsePublicKeyPEM(b []byte) (ed25519.PublicKey, error) {
 	}
 	return pub, nil
 }
+
+// LoadDeviceKey reads dir/device-key.pem without creating it; a missing
+// file gives an error matching fs.ErrNotExist.
+func LoadDeviceKey(dir string) (*DeviceKey, error) {
+	return loadDeviceKey(filepath.Join(dir, KeyFileName))
+}

@@ -1,0 +1,66 @@
+package main
+
+import (
+	"fmt"
+	"io"
+
+	"baleassay/data"
+)
+
+func init() {
+	register(command{
+		name:    "export",
+		usage:   "--to PATH [--since-last DEST | --all] [--part-mb N] [--store DIR]",
+		summary: "write this store's records as signed bundle files (to carry on a USB stick)",
+		run:     runExport,
+	})
+}
+
+func runExport(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("export")
+	store := storeFlag(fs)
+	to := fs.String("to", "", "bundle `PATH`: a file, or an existing folder for bale-<device>-<seq>.bale names")
+	since := fs.String("since-last", "", "only what destination `DEST` (e.g. lab) has not had from this store yet")
+	all := fs.Bool("all", false, "every event in the store (the default)")
+	partMB := fs.Int("part-mb", data.DefaultPartBytes>>20, "split into signed parts of at most `N` MiB")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	switch {
+	case len(pos) != 0:
+		return usagef("unexpected argument %q", pos[0])
+	case *to == "":
+		return usagef("give --to PATH")
+	case *all && *since != "":
+		return usagef("--all and --since-last exclude each other")
+	case *partMB < 1 || *partMB > data.MaxBundleBytes>>20:
+		return usagef("--part-mb must be 1 to %d", data.MaxBundleBytes>>20)
+	}
+	s, err := openExistingStore(*store)
+	if err != nil {
+		return err
+	}
+	defer s.Close()
+	key, _, err := deviceKey(s.Dir())
+	if err != nil {
+		return err
+	}
+	res, err := data.Export(s, key, *to, data.ExportOptions{SinceLast: *since, PartBytes: *partMB << 20})
+	if err != nil {
+		return err
+	}
+	if len(res.Files) == 0 {
+		if *since != "" {
+			fmt.Fprintf(stdout, "nothing new for %s since the last export; no file written\n", *since)
+		} else {
+			fmt.Fprintln(stdout, "the store has no events; no file written")
+		}
+		return nil
+	}
+	for i, f := range res.Files {
+		fmt.Fprintf(stdout, "wrote %s (bundle %d, part %d of %d)\n", f, res.Seqs[i], i+1, len(res.Files))
+	}
+	fmt.Fprintf(stdout, "%d events, %d bytes, signed by %s\n", res.Events, res.Bytes, key.Fingerprint())
+	return nil
+}

@@ -1,0 +1,142 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+
+	"baleassay/data"
+)
+
+func init() {
+	register(command{
+		name:    "import",
+		usage:   "FILE|FOLDER... [--store DIR] [--json]",
+		summary: "merge signed bundle files into this store (each file all or nothing; files are never changed)",
+		run:     runImport,
+	})
+}
+
+// fileJSON is one file of `bale import --json`.
+type fileJSON struct {
+	Path      string   `json:"path"`
+	Device    string   `json:"device,omitempty"`
+	Bundle    uint64   `json:"bundle,omitempty"`
+	Part      uint64   `json:"part,omitempty"`
+	Parts     uint64   `json:"parts,omitempty"`
+	Signer    string   `json:"signer,omitempty"`
+	Events    int      `json:"events"`
+	New       int      `json:"new"`
+	Present   int      `json:"present"`
+	Conflicts int      `json:"conflicts"`
+	Replay    bool     `json:"replay"`
+	Flags     []string `json:"flags"`
+	Error     string   `json:"error,omitempty"`
+}
+
+func runImport(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("import")
+	store := storeFlag(fs)
+	asJSON := fs.Bool("json", false, "print JSON: {files: [{path, device, bundle, part, parts, signer, events, new, present, conflicts, replay, flags, error}], gaps: [text]}")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) == 0 {
+		return usagef("give at least one bundle file or folder")
+	}
+	files, err := data.ExpandPaths(pos)
+	if err != nil {
+		return err
+	}
+	if len(files) == 0 {
+		return fmt.Errorf("no %s files in %s", data.BundleExt, strings.Join(pos, ", "))
+	}
+	s, err := openStore(*store)
+	if err != nil {
+		return err
+	}
+	defer s.Close()
+	_, trust, err := trustFor(s.Dir())
+	if err != nil {
+		return err
+	}
+	im := &data.Importer{Store: s, Trust: trust, Progress: newProgress(stderr, len(files)).show}
+	rep := im.ImportFiles(files)
+	if *asJSON {
+		out := struct {
+			Files []fileJSON `json:"files"`
+			Gaps  []string   `json:"gaps"`
+		}{Files: []fileJSON{}, Gaps: []string{}}
+		for _, f := range rep.Files {
+			j := fileJSON{Path: f.Path, Events: f.Events, New: f.New, Present: f.Present, Conflicts: f.Conflicts, Replay: f.Replay, Flags: f.Flags}
+			if j.Flags == nil {
+				j.Flags = []string{}
+			}
+			if f.Err != nil {
+				j.Error = f.Err.Error()
+			} else {
+				j.Device, j.Bundle, j.Part, j.Parts, j.Signer = f.Device.String(), f.Seq, f.Part, f.Parts, f.Signer
+			}
+			out.Files = append(out.Files, j)
+		}
+		for _, g := range rep.Gaps {
+			out.Gaps = append(out.Gaps, g.String())
+		}
+		if err := json.NewEncoder(stdout).Encode(out); err != nil {
+			return err
+		}
+	} else {
+		for _, f := range rep.Files {
+			fmt.Fprintln(stdout, f.SummaryLine())
+		}
+		for _, g := range rep.Gaps {
+			fmt.Fprintln(stdout, "gap: "+g.String())
+		}
+	}
+	if n := rep.Refused(); n > 0 {
+		return fmt.Errorf("%d of %d files refused; nothing of a refused file was applied", n, len(rep.Files))
+	}
+	return nil
+}
+
+// progress shows import progress on stderr: a redrawn bar on a
+// terminal, plain lines otherwise (logs, pipes, tests).
+type progress struct {
+	w     io.Writer
+	tty   bool
+	files int
+}
+
+func newProgress(w io.Writer, files int) *progress {
+	p := &progress{w: w, files: files}
+	if f, ok := w.(*os.File); ok {
+		if st, err := f.Stat(); err == nil && st.Mode()&os.ModeCharDevice != 0 {
+			p.tty = true
+		}
+	}
+	return p
+}
+
+func (p *progress) show(e data.Progress) {
+	if p.tty {
+		const width = 24
+		done := e.Index - 1
+		if e.Step == "done" || e.Step == "refused" {
+			done = e.Index
+		}
+		n := width * done / max(1, e.Of)
+		fmt.Fprintf(p.w, "\r[%s%s] %d/%d files, %d events %-9s", strings.Repeat("#", n), strings.Repeat(" ", width-n), done, e.Of, e.EventsSoFar, e.Step)
+		if done == e.Of && (e.Step == "done" || e.Step == "refused") {
+			fmt.Fprintln(p.w)
+		}
+		return
+	}
+	// Plain lines only where an import takes a while: several files, or
+	// a large one.
+	if e.Step == "applying" && (p.files > 1 || e.Events >= 10_000) {
+		fmt.Fprintf(p.w, "import: file %d of %d: %s: checking and applying %d events\n", e.Index, e.Of, e.File, e.Events)
+	}
+}

@@ -1,0 +1,98 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
+
+	"baleassay/data"
+)
+
+func init() {
+	register(command{
+		name:    "key",
+		usage:   "[--store DIR] [--public FILE] [--json]",
+		summary: "show this device's id and signing-key fingerprint (the key is made on first use)",
+		run:     runKey,
+	})
+}
+
+// deviceKey loads or creates the signing key in a store folder.
+func deviceKey(dir string) (*data.DeviceKey, bool, error) {
+	k, created, err := data.LoadOrCreateDeviceKey(dir)
+	if err != nil {
+		return nil, false, fmt.Errorf("device signing key: %w", err)
+	}
+	return k, created, nil
+}
+
+// trustFor returns the trust list of a store folder and a TrustFunc that
+// also accepts the folder's own key, when it has one.
+func trustFor(dir string) (*data.TrustList, data.TrustFunc, error) {
+	tl, err := data.LoadTrust(dir)
+	if err != nil {
+		return nil, nil, err
+	}
+	var self data.Fingerprint
+	k, err := data.LoadDeviceKey(dir)
+	switch {
+	case err == nil:
+		self = k.Fingerprint()
+	case !errors.Is(err, fs.ErrNotExist):
+		return nil, nil, err
+	}
+	return tl, tl.Func(self), nil
+}
+
+func runKey(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("key")
+	store := storeFlag(fs)
+	public := fs.String("public", "", "also write the public key to `FILE` (PEM), for 'bale trust add FILE' elsewhere")
+	asJSON := fs.Bool("json", false, "print JSON: {device, fingerprint, key_file, created}")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 0 {
+		return usagef("no arguments expected, got %q", pos)
+	}
+	s, err := openStore(*store)
+	if err != nil {
+		return err
+	}
+	defer s.Close()
+	k, created, err := deviceKey(s.Dir())
+	if err != nil {
+		return err
+	}
+	if *public != "" {
+		if err := data.WriteFileAtomic(*public, k.PublicPEM(), 0o644); err != nil {
+			return err
+		}
+	}
+	keyFile := filepath.Join(s.Dir(), data.KeyFileName)
+	if *asJSON {
+		return json.NewEncoder(stdout).Encode(map[string]any{
+			"device": s.DeviceID().String(), "fingerprint": k.Fingerprint().String(), "key_file": keyFile, "created": created})
+	}
+	fmt.Fprintf(stdout, "device:      %s\nfingerprint: %s\nkey file:    %s (owner-only; never copy it to another device)\n",
+		s.DeviceID(), k.Fingerprint(), keyFile)
+	if created {
+		fmt.Fprintln(stdout, "A new signing key was made for this device.")
+	}
+	if *public != "" {
+		fmt.Fprintf(stdout, "public key written to %s\n", *public)
+	}
+	fmt.Fprintln(stdout, "Others trust this device with: bale trust add FINGERPRINT --name NAME (read the fingerprint to them by phone or in person)")
+	return nil
+}
+
+// statusFile reports whether path names an existing regular file.
+func statusFile(path string) bool {
+	st, err := os.Stat(path)
+	return err == nil && st.Mode().IsRegular()
+}

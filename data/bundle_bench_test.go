@@ -1,0 +1,346 @@
+package data
+
+import (
+	"crypto/sha256"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/fxamacker/cbor/v2"
+)
+
+// xBenchRaws returns n valid events of an invented grading week: a third
+// sites, a third bales, a third pulls weighed in six categories.
+func xBenchRaws(tb testing.TB, n int, seed uint64) ([][]byte, []Event) {
+	m := newXMaker(0x42, seed)
+	m.wall = xferNow.AddDate(-1, 0, 0).UnixMilli() // 100,000 stamps span about 35 days: all in the past
+	raws := make([][]byte, 0, n)
+	evs := make([]Event, 0, n)
+	var site, bale EntityID
+	for i := range n {
+		var e Event
+		switch i % 3 {
+		case 0:
+			site = m.entity()
+			e = m.site(site, fmt.Sprintf("Invented yard %d", i), 50+float64(i%900)/100, 3+float64(i%700)/100)
+		case 1:
+			bale = m.entity()
+			e = m.bale(bale, site, 480+float64(i%120))
+		default:
+			e = m.pull(m.entity(), bale, fmt.Sprintf("P%d", i%7), 9.5)
+			for j, k := range []string{"pet_tinted", "hdpe", "pp", "labels", "paper"} {
+				e.Pull.Kg[k] = 0.05 * float64(j+1)
+			}
+		}
+		raws = append(raws, xEnc(tb, e))
+		evs = append(evs, e)
+	}
+	return raws, evs
+}
+
+func xRawBytes(raws [][]byte) int64 {
+	var n int64
+	for _, r := range raws {
+		n += int64(len(r))
+	}
+	return n
+}
+
+// xBenchSetup is shared by the benchmarks: 100,000 events, their bundle
+// and their JSON.
+type xBenchSetup struct {
+	raws   [][]byte
+	evs    []Event
+	bundle []byte
+	key    *DeviceKey
+	js     []byte
+}
+
+var xBenchCache *xBenchSetup
+
+func xSetup100k(b *testing.B) *xBenchSetup {
+	if xBenchCache != nil {
+		return xBenchCache
+	}
+	raws, evs := xBenchRaws(b, 100_000, 1)
+	key := xKey(b, 0x11)
+	bundle, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: 1, WallMs: xferNow.UnixMilli(), Part: 1, Parts: 1}, raws)
+	if err != nil {
+		b.Fatal(err)
+	}
+	js, err := json.Marshal(evs)
+	if err != nil {
+		b.Fatal(err)
+	}
+	xBenchCache = &xBenchSetup{raws, evs, bundle, key, js}
+	return xBenchCache
+}
+
+func xReport(b *testing.B, events int) {
+	b.ReportMetric(float64(events)*float64(b.N)/b.Elapsed().Seconds(), "events/s")
+}
+
+// BenchmarkTransfer100k compares, on the same 100,000 events:
+//
+//	seal        encode the body and sign it (export without the store)
+//	export      Export from a store to a file (store read, seal, atomic write, meta)
+//	check       everything import checks: signature, strict body, ids,
+//	            strict DecodeEvent and ValidateEvent of every event
+//	import      check plus ApplyRaw into an empty store (one synced transaction)
+//	plain-cbor  cbor.Unmarshal of the same payload, then of each event, default options
+//	json        encoding/json Unmarshal of the same events as a JSON array
+//
+// MB/s is over the bundle's bytes (the JSON's for json).
+func BenchmarkTransfer100k(b *testing.B) {
+	st := xSetup100k(b)
+	n := len(st.raws)
+	b.Run("seal", func(b *testing.B) {
+		b.SetBytes(int64(len(st.bundle)))
+		for b.Loop() {
+			if _, err := SealBundle(st.key, BundleHeader{Seq: 1, Part: 1, Parts: 1}, st.raws); err != nil {
+				b.Fatal(err)
+			}
+		}
+		xReport(b, n)
+	})
+	b.Run("export", func(b *testing.B) {
+		dir := b.TempDir()
+		s := xferStore(b, dir, xferNow)
+		if _, err := s.ApplyRaw(st.raws, nil); err != nil {
+			b.Fatal(err)
+		}
+		out := filepath.Join(dir, "x.bale")
+		b.SetBytes(int64(len(st.bundle)))
+		for b.Loop() {
+			if _, err := Export(s, st.key, out, ExportOptions{}); err != nil {
+				b.Fatal(err)
+			}
+		}
+		xReport(b, n)
+	})
+	trust := xTrustOnly(st.key)
+	b.Run("check", func(b *testing.B) {
+		b.SetBytes(int64(len(st.bundle)))
+		for b.Loop() {
+			ob, err := OpenBundle(st.bundle, trust)
+			if err != nil {
+				b.Fatal(err)
+			}
+			for _, r := range ob.Raws {
+				e, err := DecodeEvent(r)
+				if err != nil {
+					b.Fatal(err)
+				}
+				if _, err := ValidateEventAt(e, xferNow); err != nil {
+					b.Fatal(err)
+				}
+			}
+		}
+		xReport(b, n)
+	})
+	b.Run("import", func(b *testing.B) {
+		b.SetBytes(int64(len(st.bundle)))
+		for b.Loop() {
+			b.StopTimer()
+			s := xferStore(b, b.TempDir(), xferNow)
+			im := &Importer{Store: s, Trust: trust, Now: func() time.Time { return xferNow }}
+			b.StartTimer()
+			if fr := im.ImportBytes(st.bundle); fr.Err != nil || fr.New != n {
+				b.Fatalf("%+v", fr)
+			}
+			b.StopTimer()
+			s.Close()
+			b.StartTimer()
+		}
+		xReport(b, n)
+	})
+	b.Run("plain-cbor", func(b *testing.B) {
+		env, err := parseSign1(st.bundle)
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.SetBytes(int64(len(st.bundle)))
+		for b.Loop() {
+			var body struct {
+				_      struct{} `cbor:",toarray"`
+				Header map[int]any
+				Events [][2][]byte
+			}
+			if err := cbor.Unmarshal(env.payload, &body); err != nil {
+				b.Fatal(err)
+			}
+			for _, e := range body.Events {
+				var ev Event
+				if err := cbor.Unmarshal(e[1], &ev); err != nil {
+					b.Fatal(err)
+				}
+			}
+		}
+		xReport(b, n)
+	})
+	b.Run("json", func(b *testing.B) {
+		b.SetBytes(int64(len(st.js)))
+		for b.Loop() {
+			var evs []Event
+			if err := json.Unmarshal(st.js, &evs); err != nil {
+				b.Fatal(err)
+			}
+		}
+		xReport(b, n)
+	})
+}
+
+// BenchmarkBundleSizes logs the sizes the figures refer to.
+func BenchmarkBundleSizes(b *testing.B) {
+	st := xSetup100k(b)
+	for b.Loop() {
+	}
+	b.ReportMetric(float64(len(st.bundle)), "bundle-bytes")
+	b.ReportMetric(float64(xRawBytes(st.raws)), "event-bytes")
+	b.ReportMetric(float64(len(st.js)), "json-bytes")
+}
+
+// TestImportPeakMemory1M (set BALE_MEM_1M=1; slow) imports 1,000,000
+// events from bundles of the default part size and records the peak Go
+// heap and the process's peak resident size.
+func TestImportPeakMemory1M(t *testing.T) {
+	if os.Getenv("BALE_MEM_1M") == "" {
+		t.Skip("set BALE_MEM_1M=1 to import 1,000,000 events and measure peak memory (minutes)")
+	}
+	per := 80_000 // about 13 MB per bundle, under DefaultPartBytes
+	if v, err := strconv.Atoi(os.Getenv("BALE_MEM_PART")); err == nil && v > 0 {
+		per = v
+	}
+	n := 1_000_000
+	if v, err := strconv.Atoi(os.Getenv("BALE_MEM_N")); err == nil && v > 0 {
+		n = v // for measuring how memory grows with the store
+	}
+	xPeakMemory(t, n, per, os.Getenv("BALE_MEM_1M") == "check")
+}
+
+// xPeakMemory writes n events as default-size parts, then imports them
+// into an empty store while sampling the Go heap; the generation phase
+// is excluded (GC before, peak RSS reset through /proc/self/clear_refs).
+//
+// With checkOnly, the files go through every check of the importer
+// (size cap, signature, strict body, ids, DecodeEvent and ValidateEvent
+// one event at a time) but not into a store, which separates the
+// reader's memory from the store's.
+func xPeakMemory(t *testing.T, n, perPart int, checkOnly bool) {
+	dir := t.TempDir()
+	key := xKey(t, 0x11)
+	var files []string
+	var largest, total int64
+	seq := uint64(0)
+	var prev [32]byte
+	for done := 0; done < n; {
+		k := min(n-done, perPart)
+		raws, evs := xBenchRaws(t, k, seq+100) // a seed per part: no duplicates
+		raws = raws[:k]
+		seq++
+		h := BundleHeader{Device: evs[0].Device, Seq: seq, Prev: prev, WallMs: xferNow.UnixMilli(), Part: 1, Parts: 1}
+		b, err := SealBundle(key, h, raws)
+		if err != nil {
+			t.Fatal(err)
+		}
+		prev = xSHA256(b)
+		f := filepath.Join(dir, fmt.Sprintf("part-%03d%s", seq, BundleExt))
+		if err := os.WriteFile(f, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		files = append(files, f)
+		largest, total = max(largest, int64(len(b))), total+int64(len(b))
+		done += k
+	}
+	s := xferStore(t, filepath.Join(dir, "lab"), xferNow)
+	im := &Importer{Store: s, Trust: xTrustOnly(key), Now: func() time.Time { return xferNow }}
+	runtime.GC()
+	var base runtime.MemStats
+	runtime.ReadMemStats(&base)
+	_ = os.WriteFile("/proc/self/clear_refs", []byte("5"), 0) // reset VmHWM where Linux allows it
+	stop := make(chan struct{})
+	peak := make(chan uint64)
+	go func() {
+		var m runtime.MemStats
+		var hi uint64
+		tick := time.NewTicker(2 * time.Millisecond)
+		defer tick.Stop()
+		for {
+			select {
+			case <-stop:
+				peak <- hi
+				return
+			case <-tick.C:
+				runtime.ReadMemStats(&m)
+				hi = max(hi, m.HeapInuse)
+			}
+		}
+	}()
+	start := time.Now()
+	var rep ImportReport
+	if checkOnly {
+		for _, f := range files {
+			fr := FileReport{Path: f}
+			raw, err := ReadBundleFile(f, 0)
+			if err == nil {
+				var ob *OpenedBundle
+				if ob, err = OpenBundle(raw, im.Trust); err == nil {
+					for _, r := range ob.Raws {
+						e, derr := DecodeEvent(r)
+						if derr == nil {
+							_, derr = ValidateEventAt(e, xferNow)
+						}
+						if derr != nil {
+							err = derr
+							break
+						}
+						fr.New++
+					}
+				}
+			}
+			fr.Err = err
+			rep.Files = append(rep.Files, fr)
+		}
+	} else {
+		rep = im.ImportFiles(files)
+	}
+	el := time.Since(start)
+	close(stop)
+	hi := <-peak
+	events := 0
+	for _, fr := range rep.Files {
+		if fr.Err != nil {
+			t.Fatalf("%s: %v", fr.Path, fr.Err)
+		}
+		events += fr.New
+	}
+	if events != n {
+		t.Fatalf("imported %d events, want %d", events, n)
+	}
+	t.Logf("check only: %v; %d events in %d bundles (%.1f MB, largest %.1f MB) imported in %v (%.0f events/s)",
+		checkOnly, n, len(files), float64(total)/1e6, float64(largest)/1e6, el.Round(time.Millisecond), float64(n)/el.Seconds())
+	t.Logf("peak Go heap in use %.1f MB (before import %.1f MB); peak RSS %s",
+		float64(hi)/1e6, float64(base.HeapInuse)/1e6, xVmHWM())
+}
+
+func xSHA256(b []byte) [32]byte { return sha256.Sum256(b) }
+
+// xVmHWM reads the peak resident set size from /proc/self/status.
+func xVmHWM() string {
+	b, err := os.ReadFile("/proc/self/status")
+	if err != nil {
+		return "unknown"
+	}
+	for _, l := range strings.Split(string(b), "\n") {
+		if strings.HasPrefix(l, "VmHWM:") {
+			return strings.TrimSpace(strings.TrimPrefix(l, "VmHWM:"))
+		}
+	}
+	return "unknown"
+}
