@@ -342,3 +342,35 @@ func TestLineJSONOddities(t *testing.T) {
 		}
 	}
 }
+
+func TestBathNotesShowWhatStaysWithPET(t *testing.T) {
+	m, err := Compile(waterBathOnly(0.99))
+	if err != nil {
+		t.Fatal(err)
+	}
+	notes := m.BathNotes(nil)
+	if len(notes) != 1 || notes[0].Keep != "sink" || notes[0].BathDensity != 1 {
+		t.Fatalf("notes %+v", notes)
+	}
+	got := map[string]float64{}
+	for _, s := range notes[0].WithPET {
+		got[s.Key] = s.Share
+	}
+	// Source: shared/REFERENCE.md 'Densities': PVC, PETG, PLA and PS sink
+	// with PET in water; polyolefins float. Labels 0.90–1.40: 0.8 by overlap.
+	for key, want := range map[string]float64{"pvc": 1, "ps": 1, "pla": 1, "other_resin": 1, "labels": 0.8} {
+		if math.Abs(got[key]-want) > 1e-12 {
+			t.Errorf("%s stays with PET at %g, want %g", key, got[key], want)
+		}
+	}
+	for _, key := range []string{"hdpe", "pp", "ldpe", "closures", "film", "pet_clear"} {
+		if _, ok := got[key]; ok {
+			t.Errorf("%s listed as staying with the PET", key)
+		}
+	}
+	kg := make([]float64, assess.NumCategories())
+	kg[catIdx(t, "pvc")] = 1
+	if n := m.BathNotes(kg); len(n[0].WithPET) != 1 || n[0].WithPET[0].Key != "pvc" {
+		t.Errorf("present-only notes: %+v", n)
+	}
+}

@@ -23,6 +23,9 @@ type cstage struct {
 	ops    []op // the components with a non-zero term, for eval
 	dust   int  // parameter of dust_made (grind), -1 if none
 	moist  int  // parameter of moisture (dry), -1 if none
+	where  string
+	bath   float64 // sink_float: bath density
+	keep   string  // sink_float: the side that goes on
 }
 
 // op is one component a stage acts on, with its two terms.
@@ -146,7 +149,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 	if !streamName.MatchString(stream) {
 		return cstage{}, fieldErr(where, "stream", ErrBadLine, "%q: use lower-case letters, digits and _", stream)
 	}
-	cs := cstage{kind: s.Kind, stream: m.streamIndex(stream), rem: make([][2]term, nc), dust: -1, moist: -1}
+	cs := cstage{kind: s.Kind, stream: m.streamIndex(stream), rem: make([][2]term, nc), dust: -1, moist: -1, where: where, bath: s.BathDensity, keep: keep}
 	removal, from, err := s.removalFor(where)
 	if err != nil {
 		return cstage{}, err
@@ -268,6 +271,49 @@ func closes(where string, s Stage, cs cstage, params []Param) error {
 	}
 	return nil
 }
+
+// BathNote says which categories a sink–float stage leaves on the PET's
+// side, wholly (Share 1) or in part, because their density range does
+// not clear the bath density.
+type BathNote struct {
+	Index       int // 1-based stage number
+	Stage       string
+	BathDensity float64
+	Keep        string // "sink" or "float": the PET's side
+	WithPET     []BathShare
+}
+
+// BathShare is a category and the share of it that stays with the PET
+// before the separation efficiency applies.
+type BathShare struct {
+	Key   string
+	Share float64
+}
+
+// BathNotes lists, for every sink–float stage, the non-PET categories
+// present in kg (by catalogue index; nil lists them all) that the bath
+// cannot separate from the PET.
+func (m *Model) BathNotes(kg []float64) []BathNote {
+	var out []BathNote
+	for i, s := range m.stages {
+		if s.kind != StageSinkFloat {
+			continue
+		}
+		n := BathNote{Index: i + 1, Stage: s.where, BathDensity: s.bath, Keep: s.keep}
+		for c := 0; c < m.nCat; c++ {
+			if isPETCatIdx(c) || (kg != nil && !(kg[c] > 0)) {
+				continue
+			}
+			if share := 1 - s.rem[c][0].coef; share > 0 {
+				n.WithPET = append(n.WithPET, BathShare{assess.CategoryAt(c).Key, share})
+			}
+		}
+		out = append(out, n)
+	}
+	return out
+}
+
+func isPETCatIdx(c int) bool { return assess.CategoryAt(c).IsTargetPET() }
 
 // Streams returns the names of the reject streams in first-use order.
 func (m *Model) Streams() []string { return append([]string(nil), m.streams...) }

@@ -37,6 +37,7 @@ type yieldJSON struct {
 	FlakeComposition map[string]float64 `json:"flake_composition"`
 	ResidualPPM      map[string]float64 `json:"residual_ppm"`
 	Streams          map[string]float64 `json:"streams"`
+	WithPET          []bathNoteJSON     `json:"with_pet"`
 	ProcessWaterKg   float64            `json:"process_water_kg"`
 	Closure          float64            `json:"closure"`
 	FlakeSpec        *flakeSpecJSON     `json:"flake_spec"`
@@ -74,6 +75,14 @@ type pointJSON struct {
 	HydroxylValue float64 `json:"hydroxyl_value"`
 	Batches       *int    `json:"batches"`
 	ReactorKg     float64 `json:"reactor_kg"`
+}
+
+// bathNoteJSON lists what a sink–float stage leaves with the PET.
+type bathNoteJSON struct {
+	Stage       string             `json:"stage"`
+	BathDensity float64            `json:"bath_density"`
+	Keep        string             `json:"keep"`
+	Shares      map[string]float64 `json:"shares"`
 }
 
 type flakeSpecJSON struct {
@@ -193,6 +202,14 @@ func buildYieldJSON(rep yield.Report, mc yield.MCResult, plan yield.Plan, fixed 
 	for _, s := range b.Streams {
 		out.Streams[s.Name] = s.Kg
 	}
+	out.WithPET = []bathNoteJSON{}
+	for _, n := range plan.Line.BathNotes(rep.Balance.Flake[:len(rep.BaleComposition)]) {
+		j := bathNoteJSON{Stage: n.Stage, BathDensity: n.BathDensity, Keep: n.Keep, Shares: map[string]float64{}}
+		for _, s := range n.WithPET {
+			j.Shares[s.Key] = s.Share
+		}
+		out.WithPET = append(out.WithPET, j)
+	}
 	if plan.Spec != nil {
 		fsj := &flakeSpecJSON{Name: plan.Spec.Name, Pass: true}
 		for _, c := range rep.Checks {
@@ -236,6 +253,7 @@ func printYield(w io.Writer, o yieldJSON, rep yield.Report, plan yield.Plan) {
 		fmt.Fprintf(w, "  %s %.2f", s.Name, s.Kg)
 	}
 	fmt.Fprintf(w, "\nBalance: bale %.3f kg + process water %.3f kg = flake + streams (relative error %.1e)\n", o.BaleKg, o.ProcessWaterKg, o.Closure)
+	printBathNotes(w, plan.Line.BathNotes(rep.Balance.Flake[:len(rep.BaleComposition)]))
 	keys := make([]string, 0, len(o.ResidualPPM))
 	for k, v := range o.ResidualPPM {
 		if v > 0 {
@@ -317,4 +335,42 @@ func wrap(s string, width int) string {
 		n += l
 	}
 	return b.String()
+}
+
+// printBathNotes says, once per bath density at which the PET sinks,
+// which contaminants left in the flake sink with it.
+func printBathNotes(w io.Writer, notes []yield.BathNote) {
+	type group struct {
+		stages []string
+		parts  []string
+	}
+	var order []float64
+	byBath := map[float64]*group{}
+	for _, n := range notes {
+		if n.Keep != "sink" || len(n.WithPET) == 0 {
+			continue
+		}
+		g, ok := byBath[n.BathDensity]
+		if !ok {
+			g = &group{}
+			for _, s := range n.WithPET {
+				if s.Share >= 1 {
+					g.parts = append(g.parts, s.Key)
+				} else {
+					g.parts = append(g.parts, fmt.Sprintf("%s (%.0f %%)", s.Key, 100*s.Share))
+				}
+			}
+			byBath[n.BathDensity] = g
+			order = append(order, n.BathDensity)
+		}
+		g.stages = append(g.stages, fmt.Sprint(n.Index))
+	}
+	for _, d := range order {
+		g := byBath[d]
+		st := "stage "
+		if len(g.stages) > 1 {
+			st = "stages "
+		}
+		fmt.Fprintf(w, "Sink with the PET at %.2f g/cm³ (%s%s); the bath cannot separate them: %s\n", d, st, strings.Join(g.stages, ", "), strings.Join(g.parts, ", "))
+	}
 }

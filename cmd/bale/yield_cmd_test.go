@@ -39,6 +39,11 @@ func TestYieldJSONFields(t *testing.T) {
 		} `json:"point"`
 		Draws    int      `json:"draws"`
 		Cautions []string `json:"cautions"`
+		WithPET  []struct {
+			BathDensity float64            `json:"bath_density"`
+			Keep        string             `json:"keep"`
+			Shares      map[string]float64 `json:"shares"`
+		} `json:"with_pet"`
 	}
 	if err := json.Unmarshal([]byte(out), &got); err != nil {
 		t.Fatal(err)
@@ -70,6 +75,11 @@ func TestYieldJSONFields(t *testing.T) {
 	// Source: common practice (mass balance closes within 1e-9).
 	if got.Closure > 1e-9 || got.Draws != 2000 || got.Point.Batches == nil || *got.Point.Batches < 1 {
 		t.Errorf("closure %g, draws %d, batches %v", got.Closure, got.Draws, got.Point.Batches)
+	}
+	// Source: shared/REFERENCE.md 'Densities': PVC sinks with PET in
+	// water, so the water tanks cannot separate it.
+	if len(got.WithPET) == 0 || got.WithPET[0].BathDensity != 1 || got.WithPET[0].Keep != "sink" || got.WithPET[0].Shares["pvc"] != 1 {
+		t.Errorf("with_pet: %+v", got.WithPET)
 	}
 	if !strings.Contains(strings.Join(got.Cautions, " "), yield.CautionHotGlycol) {
 		t.Error("no hot-glycol caution")
