@@ -172,12 +172,14 @@ func ReadBundleFile(path string, max int64) ([]byte, error) {
 	if st.Size() > max {
 		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", st.Size(), max)
 	}
-	b, err := io.ReadAll(io.LimitReader(f, max+1))
-	if err != nil {
-		return nil, err
+	// One allocation of the stated size; a file that grew meanwhile is
+	// noticed by the extra byte read after it.
+	b := make([]byte, st.Size())
+	if _, err := io.ReadFull(f, b); err != nil {
+		return nil, fmt.Errorf("data: reading %s: %w", path, err)
 	}
-	if int64(len(b)) > max {
-		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "more than %d bytes", max)
+	if n, _ := f.Read(make([]byte, 1)); n > 0 {
+		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%s grew while it was read; copy it again", path)
 	}
 	return b, nil
 }
