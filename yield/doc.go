@@ -52,6 +52,19 @@
 // For glycerol (three OH groups) the hydroxyl arithmetic holds but the
 // product is branched and the linear distribution is not given.
 //
+// For a bale (Plan, Evaluate, Simulate) the glycol ratio applies to the
+// dry flake as weighed into the reactor, contaminants included, because
+// a plant weighs flake, not PET; the flake's purity therefore moves the
+// hydroxyl value from draw to draw.
+//
+// # Uncertainty
+//
+// Simulate resamples the pulls with replacement (a nonparametric
+// bootstrap), takes Cochran's ratio estimate Σc/Σw of each resample,
+// draws every ranged line parameter uniformly, and reports P10, P50, P90
+// and the mean (Hyndman & Fan definition 7). A seeded math/rand/v2 PCG
+// source makes runs reproducible; the inner loop allocates nothing.
+//
 // # Blends
 //
 // MixBlend gives the hydroxyl value of a polyol blend, the isocyanate
