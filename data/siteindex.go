@@ -32,6 +32,7 @@ type Hit struct {
 
 type siteObj struct {
 	IndexedSite
+	u    [3]float64 // unit vector
 	rect rtreego.Rect
 }
 
@@ -40,7 +41,7 @@ func (o *siteObj) Bounds() rtreego.Rect { return o.rect }
 func newSiteObj(s IndexedSite) *siteObj {
 	u := UnitVector(s.Lat, s.Lon)
 	r, _ := rtreego.NewRectFromPoints(rtreego.Point{u[0], u[1], u[2]}, rtreego.Point{u[0], u[1], u[2]})
-	return &siteObj{IndexedSite: s, rect: r}
+	return &siteObj{IndexedSite: s, u: u, rect: r}
 }
 
 // SiteIndex is an R-tree (github.com/dhconnelly/rtreego) over the sites'
@@ -149,13 +150,25 @@ func (ix *SiteIndex) apply(ups []siteUpdate) {
 	}
 }
 
-// search returns the sites whose unit vectors lie in the box [lo, hi].
-func (ix *SiteIndex) search(lo, hi [3]float64, out []*siteObj) []*siteObj {
+// search returns the sites whose unit vectors lie in the box [lo, hi],
+// appended to out. With limit > 0 it stops once limit sites are found and
+// reports that it stopped.
+func (ix *SiteIndex) search(lo, hi [3]float64, out []*siteObj, limit int) ([]*siteObj, bool) {
 	r, _ := rtreego.NewRectFromPoints(rtreego.Point{lo[0], lo[1], lo[2]}, rtreego.Point{hi[0], hi[1], hi[2]})
+	start, stopped := len(out), false
 	ix.tree.SearchIntersect(r, func(_ []rtreego.Spatial, obj rtreego.Spatial) (bool, bool) {
+		if limit > 0 && len(out)-start >= limit {
+			stopped = true
+			return true, true
+		}
 		out = append(out, obj.(*siteObj))
 		return true, false // collect here, keep rtreego's result slice empty
 	})
+	return out, stopped
+}
+
+func (ix *SiteIndex) searchAll(lo, hi [3]float64) []*siteObj {
+	out, _ := ix.search(lo, hi, nil, 0)
 	return out
 }
 
@@ -184,17 +197,26 @@ func checkPoint(lat, lon float64) error {
 	return nil
 }
 
+// nearestCap bounds the candidates of one probe of Nearest: a probe that
+// finds more stops early and the cube shrinks.
+const nearestCap = 256
+
 // Nearest returns the k sites nearest to (lat, lon), nearest first, ties
 // broken by id: exactly the first k of a haversine scan of every site
 // sorted by (km, id).
 //
 // rtreego's own NearestNeighbors does not prune well in 3-D, so the query
-// is a cube of half-side r around the query's unit vector that doubles
-// until it holds k sites within chord r. Every site outside the cube has
-// chord > r, hence a great-circle distance above D(r) = 2R·asin(r/2), and
-// the k found within D(r) are certain; they are then ranked exactly by
-// haversine. The first r, √(4k/n)·1.5, would hold about 2k sites if they
-// were spread evenly (a cap of chord r has area π r², the sphere 4π).
+// probes a cube of half-side r around the query's unit vector u with
+// SearchIntersect. Every site outside the cube has chord > r, hence a
+// great-circle distance above D(r) = 2R·asin(r/2); once the cube holds k
+// sites within D(r) (less a rounding margin) those k are certain, and the
+// candidates are ranked exactly by haversine. The first r, ½·√(4k/n),
+// would hold about k/4 sites if they were spread evenly (a cap of chord r
+// has area π r², the sphere 4π): small probes are cheap, and rtreego
+// cannot stop a large one early. A probe with fewer than k sites grows r
+// by the density it saw; once it holds k sites, the k-th smallest chord
+// among them bounds the k-th nearest from above and sizes the next cube;
+// a probe stopped at nearestCap sites (a dense cluster) shrinks it.
 func (ix *SiteIndex) Nearest(lat, lon float64, k int) ([]Hit, error) {
 	if err := checkPoint(lat, lon); err != nil {
 		return nil, err
@@ -210,31 +232,94 @@ func (ix *SiteIndex) Nearest(lat, lon float64, k int) ([]Hit, error) {
 	}
 	k = min(k, n)
 	u := UnitVector(lat, lon)
-	r := max(1.5*math.Sqrt(4*float64(k)/float64(n)), 1e-7)
+	r := min(2, max(0.5*math.Sqrt(4*float64(k)/float64(n)), 1e-9))
+	limit := max(nearestCap, 4*k)
 	var cands []*siteObj
 	var hits []Hit
-	for {
-		if r >= 2 {
-			r = 2 // the cube now holds the whole sphere
+	var chords []float64
+	settle := false
+	for iter := 0; ; iter++ {
+		if r >= 2 || iter >= 64 {
+			r, settle = min(r, 2), true
 		}
 		lo, hi := cube(u, r)
-		cands = ix.search(lo, hi, cands[:0])
-		hits = hits[:0]
-		limit := kmForChord(r)*(1-1e-6) - 0.001 // margin for rounding in haversine
-		inside := 0
-		for _, o := range cands {
-			d := HaversineKm(lat, lon, o.Lat, o.Lon)
-			hits = append(hits, Hit{o.IndexedSite, d})
-			if d <= limit {
-				inside++
+		var stopped bool
+		cands, stopped = ix.search(lo, hi, cands[:0], map[bool]int{true: 0, false: limit}[settle])
+		if stopped || len(cands) >= k {
+			// The k-th smallest chord among real sites bounds the k-th
+			// nearest: a ball of that chord (padded for the margin below)
+			// holds at least k sites.
+			chords = chords[:0]
+			for _, o := range cands {
+				chords = append(chords, chord(u, o.u))
 			}
+			sort.Float64s(chords)
+			next := coverChord(chords[k-1])
+			if stopped {
+				// Shrink at least fourfold; at the smallest useful cube
+				// (many sites on one spot) take every candidate.
+				floor := coverChord(0)
+				if r <= floor {
+					settle = true
+				} else {
+					r = max(floor, min(next, r/4))
+				}
+				continue
+			}
+			if next < r {
+				next = r // the current cube already covers the bound
+			}
+			if done, out := rankIfCertain(lat, lon, r, k, cands, &hits); done {
+				return out, nil
+			}
+			r = next
+			continue
 		}
-		if inside >= k || r == 2 {
-			sortHits(hits)
-			return append([]Hit(nil), hits[:k]...), nil
+		if done, out := rankIfCertain(lat, lon, r, k, cands, &hits); done {
+			return out, nil
 		}
-		r *= 2
+		// Fewer than k sites in the cube: grow by the local density,
+		// c sites in the cube → about 1.5k in the next, at least double.
+		r *= min(8, max(2, math.Sqrt(1.5*float64(k)/float64(max(len(cands), 1)))))
 	}
+}
+
+// rankIfCertain ranks the candidates of a cube of half-side r by
+// haversine and returns the first k when at least k lie within the
+// distance the cube guarantees (D(r) less a margin for rounding).
+func rankIfCertain(lat, lon, r float64, k int, cands []*siteObj, hits *[]Hit) (bool, []Hit) {
+	h := (*hits)[:0]
+	within := certainKm(r)
+	inside := 0
+	for _, o := range cands {
+		d := HaversineKm(lat, lon, o.Lat, o.Lon)
+		h = append(h, Hit{o.IndexedSite, d})
+		if d <= within {
+			inside++
+		}
+	}
+	*hits = h
+	if inside < k && r < 2 {
+		return false, nil
+	}
+	sortHits(h)
+	return true, append([]Hit(nil), h[:k]...)
+}
+
+// certainKm is the distance within which a cube of half-side r around
+// the query holds every site: D(r) less 1 ppm and 1 m for rounding in the
+// haversine and chord arithmetic.
+func certainKm(r float64) float64 { return kmForChord(r)*(1-1e-6) - 0.001 }
+
+// coverChord is a cube half-side r whose certainKm(r) reaches a site at
+// chord c.
+func coverChord(c float64) float64 {
+	return min(2, chordForKm((kmForChord(c)+0.002)*(1+2e-6)))
+}
+
+func chord(a, b [3]float64) float64 {
+	x, y, z := a[0]-b[0], a[1]-b[1], a[2]-b[2]
+	return math.Sqrt(x*x + y*y + z*z)
 }
 
 // Within returns the sites within km of (lat, lon) by haversine distance,
@@ -252,7 +337,7 @@ func (ix *SiteIndex) Within(lat, lon, km float64) ([]Hit, error) {
 	c := chordForKm(km*(1+1e-6) + 0.001)
 	lo, hi := cube(u, min(c, 2))
 	var hits []Hit
-	for _, o := range ix.search(lo, hi, nil) {
+	for _, o := range ix.searchAll(lo, hi) {
 		if d := HaversineKm(lat, lon, o.Lat, o.Lon); d <= km {
 			hits = append(hits, Hit{o.IndexedSite, d})
 		}
@@ -278,7 +363,7 @@ func (ix *SiteIndex) InBox(south, west, north, east float64) ([]Hit, error) {
 	ix.mu.RLock()
 	defer ix.mu.RUnlock()
 	var hits []Hit
-	for _, o := range ix.search(lo, hi, nil) {
+	for _, o := range ix.searchAll(lo, hi) {
 		if inBox(o.Lat, o.Lon, south, west, north, east) {
 			hits = append(hits, Hit{IndexedSite: o.IndexedSite})
 		}
