@@ -99,7 +99,7 @@ func TestCrashSafety(t *testing.T) {
 	}
 	dir := t.TempDir()
 	acked := map[EventID][]byte{} // every event acknowledged to the child
-	lastAck := map[int]int{}       // run → last acknowledged batch
+	lastAck := map[int]int{}      // run → last acknowledged batch
 	r := rand.New(rand.NewPCG(uint64(time.Now().UnixNano()), 99))
 	kills, inFlightSeen, maxSaves := crashKills(), 0, 0
 	for run := 0; run < kills; run++ {
