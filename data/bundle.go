@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"slices"
 
@@ -148,31 +149,13 @@ func decodeBody(p []byte, base int) (BundleHeader, [][]byte, error) {
 	raws := make([][]byte, 0, n)
 	ids := make([][32]byte, 0, n)
 	for i := range int(n) {
-		w.part = fmt.Sprintf("events[%d]", i)
-		if k, err := w.expect(majArray, "an [id, event] pair"); err != nil {
-			return h, nil, err
-		} else if k != 2 {
-			return h, nil, bundleErr(ErrBundleMalformed, w.part, base+w.off, "entry has %d items, want [id, event]", k)
-		}
-		id, idOff, err := w.bytes("the event id")
-		if err != nil {
+		if err := readEntry(w, i, &raws, &ids); err != nil {
+			var be *BundleError
+			if errors.As(err, &be) {
+				be.Part, be.Event = fmt.Sprintf("events[%d]", i), i
+			}
 			return h, nil, err
 		}
-		if len(id) != 32 {
-			return h, nil, bundleErr(ErrBundleMalformed, w.part, idOff, "event id has %d bytes, want 32", len(id))
-		}
-		ev, evOff, err := w.bytes("the event bytes")
-		if err != nil {
-			return h, nil, err
-		}
-		sum := sha256.Sum256(ev)
-		if !bytes.Equal(sum[:], id) {
-			be := bundleErr(ErrBundleEventID, w.part, evOff, "id %s, bytes hash to %s", hex.EncodeToString(id), hex.EncodeToString(sum[:]))
-			be.Event = i
-			return h, nil, be
-		}
-		raws = append(raws, ev)
-		ids = append(ids, sum)
 	}
 	w.part = "body"
 	if err := w.end(); err != nil {
@@ -185,6 +168,33 @@ func decodeBody(p []byte, base int) (BundleHeader, [][]byte, error) {
 		}
 	}
 	return h, raws, nil
+}
+
+// readEntry reads the i-th [id, event] pair and checks the id.
+func readEntry(w *wire, i int, raws *[][]byte, ids *[][32]byte) error {
+	if k, err := w.expect(majArray, "an [id, event] pair"); err != nil {
+		return err
+	} else if k != 2 {
+		return bundleErr(ErrBundleMalformed, "", w.base+w.off, "entry has %d items, want [id, event]", k)
+	}
+	id, idOff, err := w.bytes("the event id")
+	if err != nil {
+		return err
+	}
+	if len(id) != 32 {
+		return bundleErr(ErrBundleMalformed, "", w.base+idOff, "event id has %d bytes, want 32", len(id))
+	}
+	ev, evOff, err := w.bytes("the event bytes")
+	if err != nil {
+		return err
+	}
+	sum := sha256.Sum256(ev)
+	if !bytes.Equal(sum[:], id) {
+		return bundleErr(ErrBundleEventID, "", w.base+evOff, "id %s, bytes hash to %s", hex.EncodeToString(id), hex.EncodeToString(sum[:]))
+	}
+	*raws = append(*raws, ev)
+	*ids = append(*ids, sum)
+	return nil
 }
 
 // BundleSigner returns the fingerprint of the key that signed a bundle,

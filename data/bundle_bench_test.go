@@ -15,8 +15,10 @@ import (
 	"github.com/fxamacker/cbor/v2"
 )
 
-// xBenchRaws returns n valid events of an invented grading week: a third
-// sites, a third bales, a third pulls weighed in six categories.
+// xBenchRaws returns n valid events of invented grading weeks: one site
+// in 500 events, one bale in 8, the rest pulls weighed in six
+// categories (a yard grades several bales a day and takes pulls from
+// each).
 func xBenchRaws(tb testing.TB, n int, seed uint64) ([][]byte, []Event) {
 	m := newXMaker(0x42, seed)
 	m.wall = xferNow.AddDate(-1, 0, 0).UnixMilli() // 100,000 stamps span about 35 days: all in the past
@@ -25,11 +27,11 @@ func xBenchRaws(tb testing.TB, n int, seed uint64) ([][]byte, []Event) {
 	var site, bale EntityID
 	for i := range n {
 		var e Event
-		switch i % 3 {
-		case 0:
+		switch {
+		case i%500 == 0:
 			site = m.entity()
 			e = m.site(site, fmt.Sprintf("Invented yard %d", i), 50+float64(i%900)/100, 3+float64(i%700)/100)
-		case 1:
+		case i%8 == 1:
 			bale = m.entity()
 			e = m.bale(bale, site, 480+float64(i%120))
 		default:
@@ -90,8 +92,10 @@ func xReport(b *testing.B, events int) {
 //
 //	seal        encode the body and sign it (export without the store)
 //	export      Export from a store to a file (store read, seal, atomic write, meta)
-//	check       everything import checks: signature, strict body, ids,
-//	            strict DecodeEvent and ValidateEvent of every event
+//	open        the transfer layer alone: signature, strict body, event ids
+//	check       everything import checks: open, then strict DecodeEvent and
+//	            ValidateEvent of every event
+//	ratios      plain-cbor, check and json timed in the same iterations
 //	import      check plus ApplyRaw into an empty store (one synced transaction)
 //	plain-cbor  cbor.Unmarshal of the same payload, then of each event, default options
 //	json        encoding/json Unmarshal of the same events as a JSON array
@@ -128,21 +132,35 @@ func BenchmarkTransfer100k(b *testing.B) {
 	b.Run("check", func(b *testing.B) {
 		b.SetBytes(int64(len(st.bundle)))
 		for b.Loop() {
-			ob, err := OpenBundle(st.bundle, trust)
-			if err != nil {
+			xCheckAll(b, st.bundle, trust)
+		}
+		xReport(b, n)
+	})
+	b.Run("open", func(b *testing.B) { // the transfer layer alone: signature, strict body, ids
+		b.SetBytes(int64(len(st.bundle)))
+		for b.Loop() {
+			if _, err := OpenBundle(st.bundle, trust); err != nil {
 				b.Fatal(err)
-			}
-			for _, r := range ob.Raws {
-				e, err := DecodeEvent(r)
-				if err != nil {
-					b.Fatal(err)
-				}
-				if _, err := ValidateEventAt(e, xferNow); err != nil {
-					b.Fatal(err)
-				}
 			}
 		}
 		xReport(b, n)
+	})
+	b.Run("ratios", func(b *testing.B) { // the three decodes timed in the same iterations
+		var plain, check, js time.Duration
+		for b.Loop() {
+			t0 := time.Now()
+			xPlainDecode(b, st.bundle)
+			t1 := time.Now()
+			xCheckAll(b, st.bundle, trust)
+			t2 := time.Now()
+			var evs []Event
+			if err := json.Unmarshal(st.js, &evs); err != nil {
+				b.Fatal(err)
+			}
+			plain, check, js = plain+t1.Sub(t0), check+t2.Sub(t1), js+time.Since(t2)
+		}
+		b.ReportMetric(plain.Seconds()/check.Seconds(), "check-speed/plain-cbor")
+		b.ReportMetric(js.Seconds()/check.Seconds(), "check-speed/json")
 	})
 	b.Run("import", func(b *testing.B) {
 		b.SetBytes(int64(len(st.bundle)))
@@ -161,26 +179,9 @@ func BenchmarkTransfer100k(b *testing.B) {
 		xReport(b, n)
 	})
 	b.Run("plain-cbor", func(b *testing.B) {
-		env, err := parseSign1(st.bundle)
-		if err != nil {
-			b.Fatal(err)
-		}
 		b.SetBytes(int64(len(st.bundle)))
 		for b.Loop() {
-			var body struct {
-				_      struct{} `cbor:",toarray"`
-				Header map[int]any
-				Events [][2][]byte
-			}
-			if err := cbor.Unmarshal(env.payload, &body); err != nil {
-				b.Fatal(err)
-			}
-			for _, e := range body.Events {
-				var ev Event
-				if err := cbor.Unmarshal(e[1], &ev); err != nil {
-					b.Fatal(err)
-				}
-			}
+			xPlainDecode(b, st.bundle)
 		}
 		xReport(b, n)
 	})
@@ -194,6 +195,47 @@ func BenchmarkTransfer100k(b *testing.B) {
 		}
 		xReport(b, n)
 	})
+}
+
+// xCheckAll does every check of the importer short of the store.
+func xCheckAll(b *testing.B, bundle []byte, trust TrustFunc) {
+	ob, err := OpenBundle(bundle, trust)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, r := range ob.Raws {
+		e, err := DecodeEvent(r)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if _, err := ValidateEventAt(e, xferNow); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// xPlainDecode is the baseline: cbor.Unmarshal with default options of
+// the same payload, then of each event into Event; no signature, no
+// strictness, no validation.
+func xPlainDecode(b *testing.B, bundle []byte) {
+	env, err := parseSign1(bundle)
+	if err != nil {
+		b.Fatal(err)
+	}
+	var body struct {
+		_      struct{} `cbor:",toarray"`
+		Header map[int]any
+		Events [][2][]byte
+	}
+	if err := cbor.Unmarshal(env.payload, &body); err != nil {
+		b.Fatal(err)
+	}
+	for _, e := range body.Events {
+		var ev Event
+		if err := cbor.Unmarshal(e[1], &ev); err != nil {
+			b.Fatal(err)
+		}
+	}
 }
 
 // BenchmarkBundleSizes logs the sizes the figures refer to.
@@ -313,6 +355,9 @@ func xPeakMemory(t *testing.T, n, perPart int, checkOnly bool) {
 	el := time.Since(start)
 	close(stop)
 	hi := <-peak
+	runtime.GC()
+	var after runtime.MemStats
+	runtime.ReadMemStats(&after)
 	events := 0
 	for _, fr := range rep.Files {
 		if fr.Err != nil {
@@ -325,8 +370,8 @@ func xPeakMemory(t *testing.T, n, perPart int, checkOnly bool) {
 	}
 	t.Logf("check only: %v; %d events in %d bundles (%.1f MB, largest %.1f MB) imported in %v (%.0f events/s)",
 		checkOnly, n, len(files), float64(total)/1e6, float64(largest)/1e6, el.Round(time.Millisecond), float64(n)/el.Seconds())
-	t.Logf("peak Go heap in use %.1f MB (before import %.1f MB); peak RSS %s",
-		float64(hi)/1e6, float64(base.HeapInuse)/1e6, xVmHWM())
+	t.Logf("peak Go heap in use %.1f MB (before import %.1f MB, live after import and GC %.1f MB); peak RSS %s",
+		float64(hi)/1e6, float64(base.HeapInuse)/1e6, float64(after.HeapInuse)/1e6, xVmHWM())
 }
 
 func xSHA256(b []byte) [32]byte { return sha256.Sum256(b) }
