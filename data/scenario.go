@@ -178,7 +178,7 @@ func WriteDemo(s *Store, o DemoOptions) (DemoSummary, error) {
 		return sum, err
 	}
 	if _, err := add(Event{Entity: siteIDs[c], Kind: KindSite, Device: lab, Clock: ms(t2), Supersedes: []EventID{siteHeads[c]},
-		Site: &SiteRecord{Name: d.name + " (north gate)", Kind: d.kind, Lat: d.lat + 0.004, Lon: d.lon, Notes: d.notes}}); err != nil {
+		Site: &SiteRecord{Name: d.name + " (north gate)", Kind: d.kind, Lat: math.Round((d.lat+0.004)*1e5) / 1e5, Lon: d.lon, Notes: d.notes}}); err != nil {
 		return sum, err
 	}
 	items := make([]item, len(raws))

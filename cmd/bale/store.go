@@ -1,12 +1,18 @@
 package main
 
 import (
+	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
+	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"runtime"
+	"strconv"
+	"strings"
+	"time"
 
 	"baleassay/data"
 )
@@ -120,4 +126,105 @@ func openExistingStore(dir string) (*data.Store, error) {
 		return nil, fmt.Errorf("no records store at %s yet: add a site with 'bale sites add', or give --store DIR", d)
 	}
 	return openStore(dir)
+}
+
+// parseWithNumbers is parseArgs for commands whose positional arguments
+// may be negative numbers ("bale sites near -33.92 18.42"): an argument
+// that parses as a number is positional unless it is the value of the
+// flag before it.
+func parseWithNumbers(fs *flag.FlagSet, args []string) ([]string, error) {
+	var flagArgs, pos []string
+	for i := 0; i < len(args); i++ {
+		a := args[i]
+		if a == "--" {
+			pos = append(pos, args[i+1:]...)
+			break
+		}
+		if !strings.HasPrefix(a, "-") || a == "-" || recIsNumber(a) {
+			pos = append(pos, a)
+			continue
+		}
+		flagArgs = append(flagArgs, a)
+		name := strings.TrimLeft(a, "-")
+		if strings.Contains(name, "=") {
+			continue
+		}
+		if f := fs.Lookup(name); f != nil && !recIsBoolFlag(f) && i+1 < len(args) {
+			flagArgs = append(flagArgs, args[i+1])
+			i++
+		}
+	}
+	if err := fs.Parse(flagArgs); err != nil {
+		return nil, usagef("%v", err)
+	}
+	return append(pos, fs.Args()...), nil
+}
+
+func recIsNumber(s string) bool {
+	_, err := strconv.ParseFloat(s, 64)
+	return err == nil
+}
+
+func recIsBoolFlag(f *flag.Flag) bool {
+	b, ok := f.Value.(interface{ IsBoolFlag() bool })
+	return ok && b.IsBoolFlag()
+}
+
+// recFloats reads positional numbers, naming the one that is wrong.
+func recFloats(names []string, args []string) ([]float64, error) {
+	out := make([]float64, len(args))
+	for i, a := range args {
+		x, err := strconv.ParseFloat(a, 64)
+		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+			return nil, usagef("%s %q is not a number", names[i], a)
+		}
+		out[i] = x
+	}
+	return out, nil
+}
+
+// recDate reads 2006-01-02 (UTC midnight) or RFC 3339.
+func recDate(flagName, s string) (time.Time, error) {
+	if s == "" {
+		return time.Time{}, nil
+	}
+	if t, err := time.Parse("2006-01-02", s); err == nil {
+		return t, nil
+	}
+	if t, err := time.Parse(time.RFC3339, s); err == nil {
+		return t, nil
+	}
+	return time.Time{}, usagef("%s %q: give a date as 2026-03-02 or 2026-03-02T14:30:00Z", flagName, s)
+}
+
+func recJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
+}
+
+// recSaveError turns a refused save into a message that says what to do.
+func recSaveError(err error) error {
+	var we *data.WarningsError
+	if errors.As(err, &we) {
+		var b strings.Builder
+		b.WriteString("not saved, please check:")
+		for _, w := range we.Warnings {
+			fmt.Fprintf(&b, "\n  - %s", w)
+		}
+		b.WriteString("\nif the values are right, run the command again with --yes")
+		return errors.New(b.String())
+	}
+	var fe *data.FieldError
+	if errors.As(err, &fe) {
+		return fmt.Errorf("not saved: %v", fe)
+	}
+	return fmt.Errorf("not saved: %w", err)
+}
+
+func recTime(ms int64) string {
+	if ms == 0 {
+		return ""
+	}
+	return time.UnixMilli(ms).UTC().Format(time.RFC3339)
 }

@@ -1,0 +1,85 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"baleassay/data"
+)
+
+func init() {
+	register(command{
+		name:    "demo",
+		usage:   "[--store DIR] [--weeks N] [--seed N] [--force]",
+		summary: "create the demo store: an invented region of yards with weeks of bales and pulls",
+		run:     runDemo,
+	})
+}
+
+func runDemo(args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("demo")
+	dirFlag := fs.String("store", "", "folder of the demo store (default: the demo folder beside the user store, see README)")
+	weeks := fs.Int("weeks", 6, "weeks of bales")
+	seed := fs.Uint64("seed", 1, "random seed of the scenario")
+	force := fs.Bool("force", false, "replace an existing demo store")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 0 {
+		return usagef("unexpected argument %q", pos[0])
+	}
+	if *weeks < 1 || *weeks > 52 {
+		return usagef("--weeks %d: give 1 to 52", *weeks)
+	}
+	dir := *dirFlag
+	if dir == "" {
+		if dir, err = demoStoreDir(); err != nil {
+			return err
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, data.DBFile)); err == nil {
+		s, err := data.Open(dir)
+		if err != nil {
+			return err
+		}
+		demo, err1 := s.IsDemo()
+		n, err2 := s.LastSeq()
+		s.Close()
+		if err1 != nil || err2 != nil {
+			return fmt.Errorf("cannot read the store at %s", dir)
+		}
+		switch {
+		case !demo && n > 0:
+			return fmt.Errorf("%s holds real records (%d events), not a demo store: the demo is never mixed into real data; choose another --store", dir, n)
+		case demo && !*force:
+			return fmt.Errorf("a demo store already exists at %s; use it with --demo (e.g. 'bale sites list --demo'), or give --force to make it again", dir)
+		}
+		// An empty store or a demo store being replaced: start afresh.
+		if err := os.Remove(filepath.Join(dir, data.DBFile)); err != nil {
+			return fmt.Errorf("cannot replace the demo store: %w", err)
+		}
+	}
+	s, err := data.Open(dir)
+	if err != nil {
+		return err
+	}
+	defer s.Close()
+	sum, err := data.WriteDemo(s, data.DemoOptions{Weeks: *weeks, Seed: *seed})
+	if err != nil {
+		return fmt.Errorf("demo scenario not written: %w", err)
+	}
+	fmt.Fprintf(stdout, "demo store %s\n", dir)
+	fmt.Fprintf(stdout, "  an invented region (the Vale of Orrin): %d sites, %d bales, %d pulls, %d events, %s to %s\n",
+		sum.Sites, sum.Bales, sum.Pulls, sum.Events, sum.From.Format("2006-01-02"), sum.To.Format("2006-01-02"))
+	fmt.Fprintf(stdout, "  two devices: yard tablet %s…, lab laptop %s…; one site edited on both: %s\n",
+		sum.YardDevice.String()[:8], sum.LabDevice.String()[:8], sum.ConflictSite)
+	demoFlag := "--demo"
+	if *dirFlag != "" {
+		demoFlag = "--store " + *dirFlag
+	}
+	fmt.Fprintf(stdout, "try:\n  bale sites list %[1]s\n  bale sites near 45.0 4.7 -k 3 %[1]s\n  bale sites summary within 45.0 4.7 25 %[1]s\n  bale conflicts %[1]s\n  bale show %[2]s %[1]s\n", demoFlag, sum.ConflictSite)
+	return nil
+}
