@@ -158,7 +158,9 @@ func pullsList(args []string, stdout io.Writer) error {
 		for k := range p.Kg {
 			keys = append(keys, k)
 		}
-		sort.Slice(keys, func(i, j int) bool { return p.Kg[keys[i]] > p.Kg[keys[j]] || (p.Kg[keys[i]] == p.Kg[keys[j]] && keys[i] < keys[j]) })
+		sort.Slice(keys, func(i, j int) bool {
+			return p.Kg[keys[i]] > p.Kg[keys[j]] || (p.Kg[keys[i]] == p.Kg[keys[j]] && keys[i] < keys[j])
+		})
 		top := ""
 		for i, k := range keys[:min(3, len(keys))] {
 			if i > 0 {
