@@ -32,7 +32,8 @@ var (
 	bSupBy     = []byte("supby")    // entity id ‖ superseded id ‖ superseding id → empty
 	bMeta      = []byte("meta")     // key → value (device id, clock, "xfer/..." keys)
 	bDrafts    = []byte("drafts")   // draft name → CBOR of a PullRecord
-	allBuckets = [][]byte{bEvents, bSeq, bEntity, bByEntity, bHeads, bSupBy, bMeta, bDrafts}
+	bSites     = []byte("sites")    // site entity id → shown lat, lon, name (for the index at open)
+	allBuckets = [][]byte{bEvents, bSeq, bEntity, bByEntity, bHeads, bSupBy, bMeta, bDrafts, bSites}
 )
 
 // Meta keys owned by the store itself.
@@ -41,6 +42,7 @@ const (
 	metaClock   = "clock"
 	metaCreated = "created"
 	metaDemo    = "demo"
+	metaSites   = "sitecache" // set once the sites bucket is complete
 	// MetaTransferPrefix is the prefix of meta keys that ApplyRaw may write.
 	MetaTransferPrefix = "xfer/"
 )
@@ -133,6 +135,12 @@ func OpenWith(dir string, o Options) (*Store, error) {
 			}
 		}
 		last = hlcFromBytes(m.Get([]byte(metaClock)))
+		if m.Get([]byte(metaSites)) == nil {
+			if err := rebuildSiteCache(tx); err != nil {
+				return err
+			}
+			return m.Put([]byte(metaSites), []byte{1})
+		}
 		return nil
 	})
 	if err != nil {

@@ -227,7 +227,11 @@ func (s *Store) commit(items []item, meta map[string][]byte, observe bool, extra
 				if err != nil {
 					return err
 				}
-				siteUpdates = append(siteUpdates, siteUpdateOf(st))
+				u := siteUpdateOf(st)
+				if err := putSiteCache(tx, u); err != nil {
+					return err
+				}
+				siteUpdates = append(siteUpdates, u)
 			}
 		}
 		if extra != nil {

@@ -1,7 +1,9 @@
 package data
 
 import (
+	"encoding/binary"
 	"fmt"
+	"math"
 
 	bolt "go.etcd.io/bbolt"
 )
@@ -51,23 +53,52 @@ func (s *Store) Resolve(ent EntityID, keep EventID) (EventID, error) {
 	return EventID{}, fmt.Errorf("%w: event %s is not a current value of %s %s", ErrNotFound, keep.Short(), st.Kind, ent)
 }
 
-// loadSites bulk-loads the site index from the store.
+// The sites bucket keeps each visible site's shown position and name,
+// written in the same transaction as the events that change it, so that
+// opening a store loads the index without decoding events:
+//
+//	entity id → lat (float64 bits, BE) ‖ lon (float64 bits, BE) ‖ name
+
+func putSiteCache(tx *bolt.Tx, u siteUpdate) error {
+	b := tx.Bucket(bSites)
+	if u.remove {
+		return b.Delete(u.site.ID[:])
+	}
+	v := make([]byte, 16, 16+len(u.site.Name))
+	binary.BigEndian.PutUint64(v, math.Float64bits(u.site.Lat))
+	binary.BigEndian.PutUint64(v[8:], math.Float64bits(u.site.Lon))
+	return b.Put(u.site.ID[:], append(v, u.site.Name...))
+}
+
+// rebuildSiteCache fills the sites bucket from the events (a store made
+// before the bucket existed).
+func rebuildSiteCache(tx *bolt.Tx) error {
+	return tx.Bucket(bEntity).ForEach(func(k, v []byte) error {
+		if Kind(v[0]) != KindSite {
+			return nil
+		}
+		var id EntityID
+		copy(id[:], k)
+		st, err := stateTx(tx, id)
+		if err != nil {
+			return err
+		}
+		return putSiteCache(tx, siteUpdateOf(st))
+	})
+}
+
+// loadSites bulk-loads the site index from the sites bucket.
 func (s *Store) loadSites() error {
 	var sites []IndexedSite
 	err := s.db.View(func(tx *bolt.Tx) error {
-		return tx.Bucket(bEntity).ForEach(func(k, v []byte) error {
-			if Kind(v[0]) != KindSite {
-				return nil
+		return tx.Bucket(bSites).ForEach(func(k, v []byte) error {
+			if len(v) < 16 || len(k) != 16 {
+				return fmt.Errorf("site cache entry of %d bytes", len(v))
 			}
 			var id EntityID
 			copy(id[:], k)
-			st, err := stateTx(tx, id)
-			if err != nil {
-				return err
-			}
-			if u := siteUpdateOf(st); !u.remove {
-				sites = append(sites, u.site)
-			}
+			sites = append(sites, IndexedSite{ID: id, Lat: math.Float64frombits(binary.BigEndian.Uint64(v)),
+				Lon: math.Float64frombits(binary.BigEndian.Uint64(v[8:])), Name: string(v[16:])})
 			return nil
 		})
 	})
