@@ -12,7 +12,10 @@ import (
 // own wall clock. A stamp observed from another device that is further
 // ahead is capped at now + MaxClockAhead before it is adopted, so a device
 // whose clock is a year fast cannot drag every other device's stamps with
-// it; ValidateEvent warns about such stamps.
+// it; ValidateEvent warns about such stamps. The bound holds against the
+// latest wall-clock reading: a clock stepped back keeps its stamps
+// monotone and may stay ahead of the stepped-back reading until it
+// catches up.
 const MaxClockAhead = time.Minute
 
 // HLC is a hybrid logical clock stamp (Kulkarni, Demirbas, Madappa, Avva

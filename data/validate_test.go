@@ -3,6 +3,7 @@ package data
 import (
 	"errors"
 	"math"
+	"strings"
 	"testing"
 	"time"
 
@@ -151,6 +152,52 @@ func TestValidateStructure(t *testing.T) {
 }
 
 // A stamp may run MaxClockAhead ahead of the checking device's clock (hlc.go).
+// Text limits and enumerations: the limits are validate.go's own
+// (maxNameRunes 200, maxNotesRunes 4000, maxSettingLen 64 KiB).
+func TestValidateTextAndSettingBoundaries(t *testing.T) {
+	now := t0
+	name := func(n int) Event { return siteEv(ent(1), devA, now.UnixMilli(), strings.Repeat("é", n), 1, 1) }
+	notes := func(n int) Event {
+		e := siteEv(ent(1), devA, now.UnixMilli(), "Y", 1, 1)
+		e.Site.Notes = strings.Repeat("x", n)
+		return e
+	}
+	kind := func(k SiteKind) Event {
+		e := siteEv(ent(1), devA, now.UnixMilli(), "Y", 1, 1)
+		e.Site.Kind = k
+		return e
+	}
+	setting := func(kind string, body []byte) Event {
+		return Event{Version: 1, Entity: ent(5), Kind: KindSetting, Device: devA, Clock: HLC{WallMs: 1},
+			Setting: &SettingRecord{Kind: kind, Name: "glycol feed", Body: body}}
+	}
+	big := func(n int) []byte { return []byte(`"` + strings.Repeat("a", n-2) + `"`) }
+	cases := []struct {
+		name string
+		e    Event
+		err  error
+	}{
+		{"name 200 characters", name(200), nil},
+		{"name 201 characters", name(201), ErrTooLong},
+		{"name empty", name(0), ErrRequired},
+		{"notes 4000", notes(4000), nil},
+		{"notes 4001", notes(4001), ErrTooLong},
+		{"last site kind", kind(SiteSupplier), nil},
+		{"unknown site kind", kind(SiteSupplier + 1), ErrInvalid},
+		{"spec setting", setting(SettingSpec, []byte(`{"name":"x"}`)), nil},
+		{"line profile setting", setting(SettingLineProfile, []byte(`[]`)), nil},
+		{"unknown setting kind", setting("recipe", []byte(`{}`)), ErrUnknownSetting},
+		{"body at 64 KiB", setting(SettingSpec, big(64<<10)), nil},
+		{"body over 64 KiB", setting(SettingSpec, big(64<<10+1)), ErrTooLong},
+	}
+	for _, c := range cases {
+		_, err := ValidateEventAt(c.e, now)
+		if (c.err == nil) != (err == nil) || (c.err != nil && !errors.Is(err, c.err)) {
+			t.Errorf("%s: err = %v, want %v", c.name, err, c.err)
+		}
+	}
+}
+
 func TestValidateFutureClock(t *testing.T) {
 	now := t0
 	at := func(ms int64) []Warning {
