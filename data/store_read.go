@@ -151,8 +151,9 @@ func (s *Store) Conflicts() ([]EntityState, error) {
 	return out, err
 }
 
-// FindEntity resolves a full UUID or a unique prefix of its hex digits
-// (dashes optional, at least 4 digits) to an entity id.
+// FindEntity resolves a full UUID, a unique prefix of its hex digits
+// (dashes optional, at least 4 digits) or a unique suffix (at least 6) to
+// an entity id.
 func (s *Store) FindEntity(text string) (EntityID, error) {
 	if id, err := ParseEntityID(text); err == nil {
 		return id, nil
@@ -181,11 +182,32 @@ func (s *Store) FindEntity(text string) (EntityID, error) {
 	if err != nil {
 		return EntityID{}, err
 	}
-	switch len(found) {
-	case 0:
-		return EntityID{}, fmt.Errorf("%w: no entity id starts with %q", ErrNotFound, text)
-	case 1:
+	if len(found) == 1 {
 		return found[0], nil
 	}
-	return EntityID{}, fmt.Errorf("%w: %q (give more digits)", ErrAmbiguousID, text)
+	// UUIDv7 ids made close in time share their leading digits; their
+	// trailing digits are random, so a unique suffix works too.
+	var tail []EntityID
+	if len(h) >= 6 {
+		err = s.view(func(tx *bolt.Tx) error {
+			return tx.Bucket(bEntity).ForEach(func(k, _ []byte) error {
+				if strings.HasSuffix(hex.EncodeToString(k), h) && len(tail) < 2 {
+					var id EntityID
+					copy(id[:], k)
+					tail = append(tail, id)
+				}
+				return nil
+			})
+		})
+		if err != nil {
+			return EntityID{}, err
+		}
+		if len(tail) == 1 && len(found) == 0 {
+			return tail[0], nil
+		}
+	}
+	if len(found) == 0 && len(tail) == 0 {
+		return EntityID{}, fmt.Errorf("%w: no entity id starts or ends with %q", ErrNotFound, text)
+	}
+	return EntityID{}, fmt.Errorf("%w: %q (give more digits, or the last 8 digits of the id)", ErrAmbiguousID, text)
 }

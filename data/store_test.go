@@ -399,3 +399,39 @@ func TestSiteCacheRebuiltOnOpen(t *testing.T) {
 		t.Fatalf("after rebuild: %+v", h)
 	}
 }
+
+func TestFindEntity(t *testing.T) {
+	s := openTemp(t)
+	a, b := EntityID{0xaa, 0xbb, 0xcc, 1, 0, 0, 0x70, 0, 0x80, 0, 0, 0, 0x12, 0x34, 0x56, 0x78}, EntityID{0xaa, 0xbb, 0xcc, 2, 0, 0, 0x70, 0, 0x80, 0, 0, 0, 0x9a, 0xbc, 0xde, 0xf0}
+	for _, id := range []EntityID{a, b} {
+		if _, err := s.Save([]Event{{Entity: id, Kind: KindSite, Site: &SiteRecord{Name: "x", Lat: 1, Lon: 1}}}, SaveOptions{}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	cases := []struct {
+		in   string
+		want EntityID
+		err  error
+	}{
+		{a.String(), a, nil},
+		{"aabbcc01", a, nil},
+		{"AABB-CC02", b, nil},
+		{"aabbcc", EntityID{}, ErrAmbiguousID},
+		{"12345678", a, nil}, // suffix
+		{"bcdef0", b, nil},
+		{"ffff", EntityID{}, ErrNotFound},
+		{"xyz1", EntityID{}, ErrNotFound},
+	}
+	for _, c := range cases {
+		got, err := s.FindEntity(c.in)
+		if c.err != nil {
+			if !errors.Is(err, c.err) {
+				t.Errorf("%q: err %v, want %v", c.in, err, c.err)
+			}
+			continue
+		}
+		if err != nil || got != c.want {
+			t.Errorf("%q: %s, %v", c.in, got, err)
+		}
+	}
+}
