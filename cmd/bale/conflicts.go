@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"strings"
 
 	"baleassay/data"
 )
@@ -99,8 +100,9 @@ func conflictsResolve(args []string, stdout io.Writer) error {
 	}
 	var keep data.EventID
 	found := 0
+	want := strings.ToLower(pos[1])
 	for _, h := range st.Heads {
-		if len(pos[1]) >= 6 && len(pos[1]) <= 64 && h.ID.String()[:len(pos[1])] == pos[1] {
+		if len(want) >= 6 && strings.HasPrefix(h.ID.String(), want) {
 			keep = h.ID
 			found++
 		}

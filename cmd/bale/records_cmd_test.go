@@ -90,7 +90,10 @@ func TestDemoStoreCommands(t *testing.T) {
 	if !strings.Contains(show, "CONFLICT") || !strings.Contains(show, "history") {
 		t.Fatalf("show of the conflicted site:\n%s", show)
 	}
-	recMust(t, "conflicts", "resolve", c.ID, c.Heads[1].Event[:12], "--store", dir)
+	if code, _, _ := recRun(t, "conflicts", "resolve", c.ID, "00000000", "--store", dir); code != 1 {
+		t.Fatal("resolve with an event that is not a head did not fail")
+	}
+	recMust(t, "conflicts", "resolve", c.ID, strings.ToUpper(c.Heads[1].Event[:12]), "--store", dir)
 	if out := recMust(t, "conflicts", "--store", dir); !strings.Contains(out, "no conflicts") {
 		t.Fatalf("after resolve: %s", out)
 	}
@@ -104,6 +107,30 @@ func TestDemoStoreCommands(t *testing.T) {
 	json.Unmarshal([]byte(recMust(t, "sites", "summary", "box", "44", "4", "46", "6", "--store", dir, "--json")), &sum)
 	if sum.Sites != 12 || sum.Bales == 0 || sum.Audited != sum.Bales || sum.TargetPET.Mean == nil || len(sum.Groups) != 4 {
 		t.Fatalf("summary %+v", sum)
+	}
+	// within: every hit inside the radius, nearest first; box: no km.
+	var within []hitJSON
+	json.Unmarshal([]byte(recMust(t, "sites", "within", "45.0", "4.7", "15", "--store", dir, "--json")), &within)
+	if len(within) == 0 || len(within) == 12 {
+		t.Fatalf("within 15 km: %d sites", len(within))
+	}
+	for i, h := range within {
+		if *h.Km > 15 || (i > 0 && *h.Km < *within[i-1].Km) {
+			t.Fatalf("within: %+v", within)
+		}
+	}
+	var box []map[string]any
+	json.Unmarshal([]byte(recMust(t, "sites", "box", "44.9", "4.4", "45.1", "4.9", "--store", dir, "--json")), &box)
+	for _, h := range box {
+		if _, ok := h["km"]; ok {
+			t.Fatal("box hits carry km")
+		}
+		if lat := h["lat"].(float64); lat < 44.9 || lat > 45.1 {
+			t.Fatalf("box hit outside: %v", h)
+		}
+	}
+	if len(box) == 0 {
+		t.Fatal("box found nothing")
 	}
 	var bales []baleJSON
 	json.Unmarshal([]byte(recMust(t, "bales", "list", "--site", sites[0].ID, "--store", dir, "--json")), &bales)
