@@ -59,7 +59,8 @@ func xRawBytes(raws [][]byte) int64 {
 type xBenchSetup struct {
 	raws   [][]byte
 	evs    []Event
-	bundle []byte
+	bundle []byte   // all 100,000 events in one bundle
+	parts  [][]byte // the same events cut at DefaultPartBytes, as Export cuts them
 	key    *DeviceKey
 	js     []byte
 }
@@ -80,7 +81,21 @@ func xSetup100k(b *testing.B) *xBenchSetup {
 	if err != nil {
 		b.Fatal(err)
 	}
-	xBenchCache = &xBenchSetup{raws, evs, bundle, key, js}
+	var parts [][]byte
+	for i, seq := 0, uint64(1); i < len(raws); seq++ {
+		j, size := i, 64
+		for j < len(raws) && (j == i || size+bodyOverhead(len(raws[j]))+len(raws[j]) <= DefaultPartBytes) {
+			size += bodyOverhead(len(raws[j])) + len(raws[j])
+			j++
+		}
+		p, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: seq, WallMs: xferNow.UnixMilli(), Part: 1, Parts: 1}, raws[i:j])
+		if err != nil {
+			b.Fatal(err)
+		}
+		parts = append(parts, p)
+		i = j
+	}
+	xBenchCache = &xBenchSetup{raws, evs, bundle, parts, key, js}
 	return xBenchCache
 }
 
@@ -96,7 +111,9 @@ func xReport(b *testing.B, events int) {
 //	check       everything import checks: open, then strict DecodeEvent and
 //	            ValidateEvent of every event
 //	ratios      plain-cbor, check and json timed in the same iterations
-//	import      check plus ApplyRaw into an empty store (one synced transaction)
+//	import      the same events as Export cuts them (DefaultPartBytes parts),
+//	            each checked and applied in one synced transaction, into an
+//	            empty store
 //	plain-cbor  cbor.Unmarshal of the same payload, then of each event, default options
 //	json        encoding/json Unmarshal of the same events as a JSON array
 //
@@ -169,8 +186,16 @@ func BenchmarkTransfer100k(b *testing.B) {
 			s := xferStore(b, b.TempDir(), xferNow)
 			im := &Importer{Store: s, Trust: trust, Now: func() time.Time { return xferNow }}
 			b.StartTimer()
-			if fr := im.ImportBytes(st.bundle); fr.Err != nil || fr.New != n {
-				b.Fatalf("%+v", fr)
+			got := 0
+			for _, p := range st.parts {
+				fr := im.ImportBytes(p)
+				if fr.Err != nil {
+					b.Fatalf("%+v", fr)
+				}
+				got += fr.New
+			}
+			if got != n {
+				b.Fatalf("imported %d of %d events", got, n)
 			}
 			b.StopTimer()
 			s.Close()
@@ -255,7 +280,7 @@ func TestImportPeakMemory1M(t *testing.T) {
 	if os.Getenv("BALE_MEM_1M") == "" {
 		t.Skip("set BALE_MEM_1M=1 to import 1,000,000 events and measure peak memory (minutes)")
 	}
-	per := 80_000 // about 13 MB per bundle, under DefaultPartBytes
+	per := DefaultPartBytes / 200 // events average about 195 encoded bytes: parts just under DefaultPartBytes
 	if v, err := strconv.Atoi(os.Getenv("BALE_MEM_PART")); err == nil && v > 0 {
 		per = v
 	}
