@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"math/rand/v2"
 	"os"
@@ -75,6 +76,12 @@ func TestCrashChild(t *testing.T) {
 		}
 		line.WriteString("\n")
 		os.Stdout.WriteString(line.String()) // acknowledged only after the commit returned
+		// A pull being typed: each keystroke's draft is synced too.
+		if err := s.PutDraft("typing", PullRecord{Label: strconv.Itoa(b), Kg: map[string]float64{"pet_clear": float64(b)}}); err != nil {
+			fmt.Fprintf(os.Stdout, "error %v\n", err)
+			os.Exit(5)
+		}
+		fmt.Fprintf(os.Stdout, "draft %d\n", b)
 	}
 	os.Exit(0)
 }
@@ -89,6 +96,9 @@ func crashKills() int {
 func TestCrashSafety(t *testing.T) {
 	if os.Getenv(envCrashDir) != "" {
 		t.Skip("inside the child")
+	}
+	if os.Getenv(envCrashProbe) != "" {
+		t.Skip("inside the probe")
 	}
 	if testing.Short() {
 		t.Skip("crash test skipped in -short mode")
@@ -139,9 +149,14 @@ func TestCrashSafety(t *testing.T) {
 			t.Fatal(err)
 		}
 		lastAck[run] = -1
+		lastDraft := -1
 		saves := 0
 		for l := range lines {
 			f := strings.Fields(l)
+			if len(f) == 2 && f[0] == "draft" {
+				lastDraft, _ = strconv.Atoi(f[1])
+				continue
+			}
 			if len(f) < 3 || f[0] != "ack" {
 				if strings.HasPrefix(l, "error") {
 					t.Fatalf("run %d: child: %s", run, l)
@@ -162,6 +177,7 @@ func TestCrashSafety(t *testing.T) {
 		cmd.Wait()
 		maxSaves = max(maxSaves, saves)
 		inFlightSeen += verifyCrashStore(t, dir, run, acked, lastAck)
+		verifyCrashDraft(t, dir, run, lastDraft)
 	}
 	// Saving continues after the last kill.
 	s, err := Open(dir)
@@ -241,4 +257,72 @@ func verifyCrashStore(t *testing.T, dir string, run int, acked map[EventID][]byt
 		}
 	}
 	return inFlight
+}
+
+// verifyCrashDraft checks that the draft of the killed run is the last
+// acknowledged one or the one after it (in flight), never older or torn.
+func verifyCrashDraft(t *testing.T, dir string, run, last int) {
+	t.Helper()
+	if last < 0 {
+		return
+	}
+	s, err := Open(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	d, ok, err := s.Draft("typing")
+	if err != nil || !ok {
+		t.Fatalf("after kill %d: draft lost (%v)", run, err)
+	}
+	n, err := strconv.Atoi(d.Label)
+	if err != nil || (n != last && n != last+1) || d.Kg["pet_clear"] != float64(n) {
+		t.Fatalf("after kill %d: draft %q, last acknowledged %d", run, d.Label, last)
+	}
+}
+
+const envCrashProbe = "BALEASSAY_CRASH_PROBE"
+
+// TestSecondProcessProbe is the child of TestSecondProcessRefused.
+func TestSecondProcessProbe(t *testing.T) {
+	dir := os.Getenv(envCrashProbe)
+	if dir == "" {
+		t.Skip("helper process of TestSecondProcessRefused")
+	}
+	start := time.Now()
+	_, err := Open(dir)
+	fmt.Printf("%v %d\n", errors.Is(err, ErrStoreInUse), time.Since(start).Milliseconds())
+	os.Exit(0)
+}
+
+// A second process opening a store in use gets ErrStoreInUse quickly.
+func TestSecondProcessRefused(t *testing.T) {
+	if os.Getenv(envCrashProbe) != "" || os.Getenv(envCrashDir) != "" {
+		t.Skip("inside a child")
+	}
+	exe, err := os.Executable()
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	s, err := Open(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	cmd := exec.Command(exe, "-test.run=^TestSecondProcessProbe$", "-test.count=1")
+	cmd.Env = append(os.Environ(), envCrashProbe+"="+dir)
+	out, err := cmd.Output()
+	if err != nil {
+		t.Fatalf("probe: %v %s", err, out)
+	}
+	var inUse bool
+	var ms int
+	if _, err := fmt.Sscanf(string(out), "%t %d", &inUse, &ms); err != nil || !inUse {
+		t.Fatalf("probe said %q, want ErrStoreInUse", out)
+	}
+	// common practice: a refusal within a second, not a hang (OpenTimeout is 300 ms).
+	if ms > 1000 {
+		t.Fatalf("refusal took %d ms", ms)
+	}
 }
