@@ -435,3 +435,65 @@ func TestFindEntity(t *testing.T) {
 		}
 	}
 }
+
+// Property: after random site histories (adds, moves, concurrent moves on
+// two devices, deletions, a delete against a move) applied in random
+// batches, the live index holds exactly the visible sites at their shown
+// positions, and so does the index bulk-loaded on reopening.
+func TestIndexMatchesViewsAfterRandomHistories(t *testing.T) {
+	r := rand.New(rand.NewPCG(12, 12))
+	for trial := 0; trial < 5; trial++ {
+		dir := t.TempDir()
+		s, err := Open(dir)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var raws [][]byte
+		for en := 0; en < 30; en++ {
+			var heads []EventID
+			id := ent(byte(en + 1))
+			for i, n := 0, 1+r.IntN(5); i < n; i++ {
+				dev := []DeviceID{devA, devB}[r.IntN(2)]
+				var sup []EventID
+				if len(heads) > 0 {
+					sup = heads[:1+r.IntN(len(heads))] // sometimes leaves a conflict
+				}
+				e := siteEv(id, dev, 1000+int64(r.IntN(1000)), "s", randLat(r), r.Float64()*360-180, sup...)
+				if len(sup) > 0 && r.IntN(5) == 0 {
+					e.Site, e.Deleted = nil, true
+				}
+				raw := mustEncode(t, e)
+				raws = append(raws, raw)
+				heads = append(heads[len(sup):], IDOf(raw))
+			}
+		}
+		p := shuffled(r, raws)
+		for len(p) > 0 {
+			n := 1 + r.IntN(len(p))
+			if _, err := s.ApplyRaw(p[:n], nil); err != nil {
+				t.Fatal(err)
+			}
+			p = p[n:]
+		}
+		check := func(s *Store, when string) {
+			views, err := s.Sites()
+			if err != nil {
+				t.Fatal(err)
+			}
+			if s.SiteIndex().Len() != len(views) {
+				t.Fatalf("trial %d %s: index %d sites, views %d", trial, when, s.SiteIndex().Len(), len(views))
+			}
+			for _, v := range views {
+				got, ok := s.SiteIndex().Get(v.ID)
+				if !ok || got.Lat != v.Site.Lat || got.Lon != v.Site.Lon {
+					t.Fatalf("trial %d %s: index %+v, view %+v", trial, when, got, v.Site)
+				}
+			}
+		}
+		check(s, "live")
+		s.Close()
+		s, _ = Open(dir)
+		check(s, "reopened")
+		s.Close()
+	}
+}
