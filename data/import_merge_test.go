@@ -45,7 +45,7 @@ func newSimWorld(t testing.TB, n int, skewed int) *simWorld {
 		if err != nil {
 			t.Fatal(err)
 		}
-		t.Cleanup(func() { s.Close() })
+		t.Cleanup(func() { s.Close() }) // also closed by close(); a second Close is a no-op
 		d.store = s
 		if d.key, _, err = LoadOrCreateDeviceKey(d.dir); err != nil {
 			t.Fatal(err)
@@ -54,6 +54,13 @@ func newSimWorld(t testing.TB, n int, skewed int) *simWorld {
 		w.devs = append(w.devs, d)
 	}
 	return w
+}
+
+// close releases the devices' stores (property runs open many worlds).
+func (w *simWorld) close() {
+	for _, d := range w.devs {
+		d.store.Close()
+	}
 }
 
 func (w *simWorld) trust(fp Fingerprint) (string, bool) { n, ok := w.keys[fp]; return n, ok }
@@ -162,6 +169,7 @@ func TestMergeProperties(t *testing.T) {
 		n := rapid.IntRange(2, 8).Draw(rt, "devices")
 		skewed := rapid.IntRange(-1, n-1).Draw(rt, "skewed")
 		w := newSimWorld(t, n, skewed)
+		defer w.close()
 		steps := rapid.IntRange(4, 24).Draw(rt, "steps")
 		for i := range steps {
 			if i == steps/2 { // a meeting: everyone exports and takes in every file so far
@@ -199,7 +207,9 @@ func TestMergeProperties(t *testing.T) {
 		perm1 := rapid.Permutation(append(append([]string(nil), all...), damaged...)).Draw(rt, "order1")
 		perm2 := rapid.Permutation(all).Draw(rt, "order2")
 		lab1, rep1 := w.labImport(perm1)
+		defer lab1.Close()
 		lab2, rep2 := w.labImport(perm2)
+		defer lab2.Close()
 		if rep1.Refused() != len(damaged) || rep2.Refused() != 0 {
 			t.Fatalf("refused %d (want %d damaged) and %d (want 0)", rep1.Refused(), len(damaged), rep2.Refused())
 		}
