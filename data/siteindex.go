@@ -38,10 +38,14 @@ type siteObj struct {
 
 func (o *siteObj) Bounds() rtreego.Rect { return o.rect }
 
+// newSiteObj makes the tree object of a site. Its rectangle is the point
+// itself, both corners sharing the object's own coordinate array: no
+// allocation besides the object, and the coordinates sit next to it in
+// memory (rtreego never writes into an object's rectangle).
 func newSiteObj(s IndexedSite) *siteObj {
-	u := UnitVector(s.Lat, s.Lon)
-	r, _ := rtreego.NewRectFromPoints(rtreego.Point{u[0], u[1], u[2]}, rtreego.Point{u[0], u[1], u[2]})
-	return &siteObj{IndexedSite: s, u: u, rect: r}
+	o := &siteObj{IndexedSite: s, u: UnitVector(s.Lat, s.Lon)}
+	o.rect, _ = rtreego.NewRectFromPoints(o.u[:], o.u[:])
+	return o
 }
 
 // SiteIndex is an R-tree (github.com/dhconnelly/rtreego) over the sites'
@@ -61,7 +65,8 @@ func NewSiteIndex(sites []IndexedSite) *SiteIndex {
 	objs := make([]rtreego.Spatial, 0, len(sites))
 	for _, s := range sites {
 		if old, dup := ix.byID[s.ID]; dup {
-			*old = *newSiteObj(s) // a later entry for the same id wins
+			// A later entry for the same id wins (the tree is not built yet).
+			old.IndexedSite, old.u = s, UnitVector(s.Lat, s.Lon)
 			continue
 		}
 		o := newSiteObj(s)

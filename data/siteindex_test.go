@@ -294,3 +294,18 @@ func TestNearestInDenseClusters(t *testing.T) {
 		}
 	}
 }
+
+func TestNewSiteIndexDuplicateIDsLastWins(t *testing.T) {
+	id := EntityID{9}
+	ix := NewSiteIndex([]IndexedSite{{ID: id, Name: "old", Lat: 10, Lon: 10}, {ID: EntityID{8}, Name: "other", Lat: -10, Lon: -10}, {ID: id, Name: "new", Lat: 50, Lon: 60}})
+	if ix.Len() != 2 {
+		t.Fatalf("len %d, want 2", ix.Len())
+	}
+	h, _ := ix.Nearest(50, 60, 1)
+	if len(h) != 1 || h[0].Name != "new" || h[0].Km != 0 {
+		t.Fatalf("nearest to the later position: %+v", h)
+	}
+	if h, _ := ix.Within(10, 10, 100); len(h) != 0 {
+		t.Fatalf("the earlier position is still indexed: %+v", h)
+	}
+}
