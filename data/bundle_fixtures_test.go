@@ -142,3 +142,29 @@ func TestBundleFixtureNames(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkMalformedSuite imports every fixture once per iteration into
+// a lab store (refused files change nothing, so one store serves) and
+// reports the slowest file's time; the bound is 100 ms a file.
+func BenchmarkMalformedSuite(b *testing.B) {
+	g := newFixGen(b)
+	_, im := fixtureStore(b, g)
+	cases := fixCases()
+	raws := make([][]byte, len(cases))
+	for i, c := range cases {
+		var err error
+		if raws[i], err = os.ReadFile(filepath.Join(fixtureDir, c.name+BundleExt)); err != nil {
+			b.Fatal(err)
+		}
+	}
+	var slowest time.Duration
+	for b.Loop() {
+		for _, r := range raws {
+			t0 := time.Now()
+			im.ImportBytes(r)
+			slowest = max(slowest, time.Since(t0))
+		}
+	}
+	b.ReportMetric(float64(slowest.Microseconds())/1000, "slowest-ms/file")
+	b.ReportMetric(float64(b.Elapsed().Microseconds())/1000/float64(b.N*len(raws)), "mean-ms/file")
+}

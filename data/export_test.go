@@ -143,3 +143,28 @@ func TestExportRefusesBadDestination(t *testing.T) {
 		t.Fatalf("got %v, want ErrDestName", err)
 	}
 }
+
+// TestImportReportsWarnings: events the records' validation warns about
+// (here a site at exactly 0, 0) are imported and listed in the report.
+func TestImportReportsWarnings(t *testing.T) {
+	src, key := xStoreWithEvents(t, 2)
+	m := newXMaker(9, 9)
+	m.dev = src.DeviceID()
+	// Source: data/validate.go, WarnNullIsland for coordinates exactly 0, 0.
+	if _, err := src.ApplyRaw([][]byte{xEnc(t, m.site(m.entity(), "Unfixed GPS yard", 0, 0))}, nil); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(t.TempDir(), "w.bale")
+	if _, err := Export(src, key, out, ExportOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	dst := xferStore(t, t.TempDir(), xferNow)
+	im := &Importer{Store: dst, Trust: xTrustOnly(key), Now: func() time.Time { return xferNow }}
+	fr := im.ImportFiles([]string{out}).Files[0]
+	if fr.Err != nil || fr.New != 3 || fr.Warnings != 1 || !strings.Contains(strings.Join(fr.Flags, "\n"), "null_island") {
+		t.Fatalf("report %+v", fr)
+	}
+	if !strings.Contains(fr.SummaryLine(), "1 imported event(s) with warning null_island") {
+		t.Fatalf("summary %q", fr.SummaryLine())
+	}
+}

@@ -56,6 +56,7 @@ type FileReport struct {
 	New         int
 	Present     int
 	Conflicts   int
+	Warnings    int      // new events the records' validation warns about (kept, listed in Flags)
 	Replay      bool     // this exact bundle was imported before: a no-op
 	Flags       []string // clock skew, sequence chain mismatches
 	Err         error    // non-nil: the file was refused and nothing changed
@@ -224,7 +225,34 @@ func (im *Importer) importBytes(raw []byte, prog func(Progress)) FileReport {
 		return fr
 	}
 	fr.New, fr.Present, fr.Conflicts = res.New, res.Present, res.Conflicts
+	fr.Warnings = len(res.Warnings)
+	fr.Flags = append(fr.Flags, warningFlags(res.Warnings)...)
 	return fr
+}
+
+// warningFlags summarises the records' warnings on imported events (an
+// import keeps such events; a person should look at them), one line per
+// kind of warning with its count and first example.
+func warningFlags(ws []EventWarning) []string {
+	type sum struct {
+		n     int
+		first EventWarning
+	}
+	by := map[WarningCode]*sum{}
+	var order []WarningCode
+	for _, w := range ws {
+		if by[w.Code] == nil {
+			by[w.Code] = &sum{first: w}
+			order = append(order, w.Code)
+		}
+		by[w.Code].n++
+	}
+	var out []string
+	for _, c := range order {
+		x := by[c]
+		out = append(out, fmt.Sprintf("%d imported event(s) with warning %s, e.g. events[%d] %s", x.n, c, x.first.Index, x.first.Warning))
+	}
+	return out
 }
 
 // seqMeta computes the sequence meta this bundle adds and its flags. The

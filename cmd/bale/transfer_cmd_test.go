@@ -152,3 +152,26 @@ func TestExportImportInspectCommands(t *testing.T) {
 		t.Fatalf("inspect tampered: %d %q %q", code, out, e)
 	}
 }
+
+// TestProgressBar drives the terminal form of the import progress: a bar
+// redrawn with carriage returns, ended by a newline after the last file.
+func TestProgressBar(t *testing.T) {
+	var buf bytes.Buffer
+	p := &progress{w: &buf, tty: true, files: 2}
+	for i := 1; i <= 2; i++ {
+		p.show(data.Progress{File: "f.bale", Index: i, Of: 2, Step: "applying", Events: 10})
+		p.show(data.Progress{File: "f.bale", Index: i, Of: 2, Step: "done", Events: 10, EventsSoFar: 10 * i})
+	}
+	out := buf.String()
+	if !strings.HasPrefix(out, "\r[") || !strings.Contains(out, "] 2/2 files, 20 events") || !strings.HasSuffix(out, "\n") ||
+		strings.Count(out, "\n") != 1 || !strings.Contains(out, "############") {
+		t.Fatalf("progress bar output %q", out)
+	}
+	// Not a terminal and a single small file: no progress lines at all.
+	buf.Reset()
+	p = newProgress(&buf, 1)
+	p.show(data.Progress{Index: 1, Of: 1, Step: "applying", Events: 5})
+	if buf.Len() != 0 || p.tty {
+		t.Fatalf("quiet case printed %q (tty %v)", buf.String(), p.tty)
+	}
+}
