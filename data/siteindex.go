@@ -249,7 +249,11 @@ func (ix *SiteIndex) Nearest(lat, lon float64, k int) ([]Hit, error) {
 		}
 		lo, hi := cube(u, r)
 		var stopped bool
-		cands, stopped = ix.search(lo, hi, cands[:0], map[bool]int{true: 0, false: limit}[settle])
+		probeLimit := limit
+		if settle {
+			probeLimit = 0
+		}
+		cands, stopped = ix.search(lo, hi, cands[:0], probeLimit)
 		if stopped || len(cands) >= k {
 			// The k-th smallest chord among real sites bounds the k-th
 			// nearest: a ball of that chord (padded for the margin below)
