@@ -141,6 +141,9 @@ func TestOpenRefusesSigners(t *testing.T) {
 	if !errors.As(err, &use) || use.Fingerprint != k.Fingerprint() || !errors.Is(err, ErrUnknownSigner) {
 		t.Fatalf("untrusted signer: got %v", err)
 	}
+	if _, err := OpenBundle(b, nil); !errors.Is(err, ErrUnknownSigner) {
+		t.Fatalf("nil trust: got %v, want ErrUnknownSigner", err)
+	}
 	bad := bytes.Clone(b)
 	bad[len(bad)-1] ^= 0x01 // last signature byte
 	if _, err := OpenBundle(bad, xTrustOnly(k)); !errors.Is(err, ErrBadSignature) {

@@ -69,6 +69,9 @@ func Export(s *Store, key *DeviceKey, path string, opt ExportOptions) (ExportRes
 		if err != nil {
 			return res, err
 		}
+		if len(v) != 0 && len(v) != 8 {
+			return res, fmt.Errorf("data: the store's export mark for %q is damaged", opt.SinceLast)
+		}
 		after = beU64(v)
 	}
 	parts, err := planParts(s, after, limit)
@@ -82,6 +85,9 @@ func Export(s *Store, key *DeviceKey, path string, opt ExportOptions) (ExportRes
 	prev, err := s.Meta(metaOutHash)
 	if err != nil {
 		return res, err
+	}
+	if len(seqRaw) != 0 && len(seqRaw) != 8 || len(prev) != 0 && len(prev) != 32 {
+		return res, fmt.Errorf("data: the store's record of its last bundle (%s, %s) is damaged; exporting now would reuse bundle numbers", metaOutSeq, metaOutHash)
 	}
 	seq := beU64(seqRaw)
 	names := partNames(path, s.DeviceID(), seq, len(parts))

@@ -168,3 +168,19 @@ func TestImportReportsWarnings(t *testing.T) {
 		t.Fatalf("summary %q", fr.SummaryLine())
 	}
 }
+
+// TestExportRefusesDamagedSequence: a damaged record of the last bundle
+// number stops the export instead of reusing numbers.
+func TestExportRefusesDamagedSequence(t *testing.T) {
+	src, key := xStoreWithEvents(t, 1)
+	if _, err := src.ApplyRaw(nil, map[string][]byte{metaOutSeq: {1, 2, 3}}); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(t.TempDir(), "d.bale")
+	if _, err := Export(src, key, out, ExportOptions{}); err == nil || !strings.Contains(err.Error(), "damaged") {
+		t.Fatalf("got %v, want a damaged-record error", err)
+	}
+	if _, err := os.Stat(out); !errors.Is(err, os.ErrNotExist) {
+		t.Fatal("a file was written despite the error")
+	}
+}
