@@ -62,3 +62,31 @@ func TestInspectFixturesNeverPanic(t *testing.T) {
 		}
 	}
 }
+
+// TestBundleFixturesDiagnosticGolden keeps a text dump of a valid bundle's
+// payload in CBOR diagnostic notation (RFC 8949 §8) beside the fixtures,
+// so a change of the format or of the event encoding shows in review
+// (rewrite with -update).
+func TestBundleFixturesDiagnosticGolden(t *testing.T) {
+	g := newFixGen(t)
+	in := InspectBundle(g.good(), xTrustOnly(g.trusted))
+	if in.BodyErr != nil || !in.SignatureOK {
+		t.Fatalf("%+v", in)
+	}
+	path := fixtureDir + "/valid-bundle-2.diag"
+	got := []byte(in.Diagnostic + "\n")
+	if *updateFixtures {
+		if err := os.WriteFile(path, got, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("%v (run with -update)", err)
+	}
+	if !bytes.Equal(got, want) {
+		os.WriteFile(fixtureDir+"/valid-bundle-2-bad.diag", got, 0o644)
+		t.Fatalf("diagnostic dump differs from %s; wrote valid-bundle-2-bad.diag (run with -update if intended)", path)
+	}
+}
