@@ -215,10 +215,11 @@ const nearestCap = 256
 // SearchIntersect. Every site outside the cube has chord > r, hence a
 // great-circle distance above D(r) = 2R·asin(r/2); once the cube holds k
 // sites within D(r) (less a rounding margin) those k are certain, and the
-// candidates are ranked exactly by haversine. The first r, ½·√(4k/n),
-// would hold about k/4 sites if they were spread evenly (a cap of chord r
-// has area π r², the sphere 4π): small probes are cheap, and rtreego
-// cannot stop a large one early. A probe with fewer than k sites grows r
+// candidates are ranked exactly by haversine. The first r, ⅛·√(4k/n),
+// would hold about k/64 sites if they were spread evenly (a cap of chord
+// r has area π r², the sphere 4π): small probes are cheap, and rtreego
+// cannot stop a large one early, which in a dense cluster costs more than
+// a few extra small probes elsewhere (BenchmarkNearest). A probe with fewer than k sites grows r
 // by the density it saw; once it holds k sites, the k-th smallest chord
 // among them bounds the k-th nearest from above and sizes the next cube;
 // a probe stopped at nearestCap sites (a dense cluster) shrinks it.
@@ -237,7 +238,7 @@ func (ix *SiteIndex) Nearest(lat, lon float64, k int) ([]Hit, error) {
 	}
 	k = min(k, n)
 	u := UnitVector(lat, lon)
-	r := min(2, max(0.5*math.Sqrt(4*float64(k)/float64(n)), 1e-9))
+	r := min(2, max(0.125*math.Sqrt(4*float64(k)/float64(n)), 1e-9))
 	limit := max(nearestCap, 4*k)
 	var cands []*siteObj
 	var hits []Hit
