@@ -216,7 +216,9 @@ func (s *Store) Raw(id EventID) ([]byte, error) {
 // ForEachRawSince calls fn for every event inserted after local sequence
 // number afterSeq, in insertion order (numbers start at 1). raw is valid
 // only during the call: copy it to keep it. An error from fn stops the
-// walk and is returned.
+// walk and is returned. fn runs inside a read transaction: it may read
+// the store but must not write to it (a write that grows the file would
+// wait for the read to end).
 func (s *Store) ForEachRawSince(afterSeq uint64, fn func(seq uint64, id EventID, raw []byte) error) error {
 	return s.view(func(tx *bolt.Tx) error {
 		ev := tx.Bucket(bEvents)
