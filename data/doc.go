@@ -37,6 +37,14 @@
 // are reported by the haversine formula (Sinnott, Sky & Telescope 68
 // (1984) 159) with the IUGG mean Earth radius 6371.0088 km.
 //
+// # Region summaries and the demo
+//
+// [Store.Summarize] gives, for the sites a query found and a date range,
+// the number of bales and the mean, sample SD, minimum and maximum of
+// their target-PET and contaminant-group shares, each bale estimated from
+// its pulls by Cochran's ratio estimator (package assess). [WriteDemo]
+// writes an invented scenario into a store of its own.
+//
 // Units: masses in kg, lengths in m, distances in km, angles in degrees
 // (WGS 84 latitude and longitude), times in Unix milliseconds (UTC).
 package data
