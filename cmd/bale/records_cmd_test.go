@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"baleassay/data"
 )
@@ -131,6 +132,15 @@ func TestDemoStoreCommands(t *testing.T) {
 	}
 	if len(box) == 0 {
 		t.Fatal("box found nothing")
+	}
+	// A date range keeps fewer bales; a bad date is wrong usage (exit 2).
+	var part summaryJSONRec
+	json.Unmarshal([]byte(recMust(t, "sites", "summary", "box", "44", "4", "46", "6", "--from", time.Now().UTC().AddDate(0, 0, -14).Format("2006-01-02"), "--store", dir, "--json")), &part)
+	if part.Bales == 0 || part.Bales >= sum.Bales || part.From == "" {
+		t.Fatalf("last two weeks: %d of %d bales", part.Bales, sum.Bales)
+	}
+	if code, _, _ := recRun(t, "sites", "summary", "box", "44", "4", "46", "6", "--from", "1 March", "--store", dir); code != 2 {
+		t.Fatalf("bad date: exit %d, want 2", code)
 	}
 	var bales []baleJSON
 	json.Unmarshal([]byte(recMust(t, "bales", "list", "--site", sites[0].ID, "--store", dir, "--json")), &bales)
