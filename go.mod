@@ -3,13 +3,16 @@ module baleassay
 go 1.26
 
 require (
-	github.com/dhconnelly/rtreego v1.2.0 // indirect
-	github.com/fxamacker/cbor/v2 v2.10.0 // indirect
-	github.com/google/uuid v1.6.0 // indirect
-	github.com/veraison/go-cose v1.3.0 // indirect
+	github.com/dhconnelly/rtreego v1.2.0
+	github.com/fxamacker/cbor/v2 v2.10.0
+	github.com/google/uuid v1.6.0
+	github.com/veraison/go-cose v1.3.0
+	go.etcd.io/bbolt v1.5.0
+	gonum.org/v1/gonum v0.17.0
+	pgregory.net/rapid v1.3.0
+)
+
+require (
 	github.com/x448/float16 v0.8.4 // indirect
-	go.etcd.io/bbolt v1.5.0 // indirect
 	golang.org/x/sys v0.45.0 // indirect
-	gonum.org/v1/gonum v0.17.0 // indirect
-	pgregory.net/rapid v1.3.0 // indirect
 )
