@@ -12,8 +12,13 @@ deps:
 	@bash scripts/deps.sh
 
 # The main job on the built-in demo scenario.
+# The demo bale's audit against the glycolysis-feed spec, then what the
+# wash line and the glycol reactor make of it.
 run:
-	$(GO) run ./cmd/bale assess testdata/demo-bale-0417.csv --bale-kg 548
+	$(GO) build -o bin/bale ./cmd/bale
+	bin/bale assess testdata/demo-bale-0417.csv --bale-kg 548
+	@echo; echo "=== what the wash line and the glycolysis reactor make of it ==="; echo
+	bin/bale yield testdata/demo-bale-0417.csv --bale-kg 548
 
 # All tests, with the import-direction check first.
 test: deps check-imports
