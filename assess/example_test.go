@@ -8,7 +8,7 @@ import (
 )
 
 func ExampleAssess() {
-	// The same masses as the hand-worked example in
+	// Source: the same masses as the hand-worked example in
 	// testdata/ref/ratio_example.py: r = 0.005366, SE = 0.000689,
 	// t(0.95, 3) = 2.353.
 	csv := `pull,pet_clear,pvc,closures
@@ -29,6 +29,9 @@ D,104.0,0.6,5.4
 	// PVC 0.537 % (90 %: 0.375–0.699 %)
 }
 
+// The masses are invented; the liquid interval (1.26–3.36 %) was checked
+// by hand with t(0.95, 2) = 2.920 (Source: NIST/SEMATECH e-Handbook
+// §1.3.6.7.2), so it straddles the 2 % limit.
 func ExampleJudge() {
 	csv := `pull,pet_clear,pet_green,pvc,liquid
 A,20.0,1.0,0.02,0.5

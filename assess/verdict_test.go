@@ -35,6 +35,9 @@ func shareWith(key string, f, lo, hi, sd float64, pulls int) Result {
 	return r
 }
 
+// The intervals below are invented inputs; each expected verdict follows
+// from the rule pass / fail / undecided by where the interval lies
+// (common practice for decisions from confidence intervals).
 func TestJudgeBounds(t *testing.T) {
 	spec := Spec{Name: "t", Limits: []Limit{{Item: "pvc", Max: frac(0.01)}}}
 	cases := []struct {
@@ -131,6 +134,9 @@ func TestSpecValidation(t *testing.T) {
 	}
 }
 
+// Grade bands of the built-in glycol-feed spec: 0.94 and 0.72 echo the
+// trade-association PET bale grades (Source: shared/REFERENCE.md 'Bales');
+// 0.83 is illustrative. The shares tested are invented inputs.
 func TestGradeBands(t *testing.T) {
 	s := mustSpec(t, "glycol-feed")
 	cases := []struct {
