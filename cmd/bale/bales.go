@@ -132,14 +132,7 @@ func balesList(args []string, stdout io.Writer) error {
 	dir := storeFlag(fs)
 	site := fs.String("site", "", "only the bales of this site")
 	asJSON := fs.Bool("json", false, "print JSON")
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 0 {
-		return usagef("unexpected argument %q", pos[0])
-	}
-	s, err := openExistingStore(*dir)
+	_, s, err := openForArgs(fs, dir, args, 0, "")
 	if err != nil {
 		return err
 	}

@@ -31,14 +31,7 @@ func runConflicts(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("conflicts")
 	dir := storeFlag(fs)
 	asJSON := fs.Bool("json", false, "print JSON")
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 0 {
-		return usagef("unexpected argument %q (did you mean 'conflicts resolve ID EVENT'?)", pos[0])
-	}
-	s, err := openExistingStore(*dir)
+	_, s, err := openForArgs(fs, dir, args, 0, " (did you mean 'conflicts resolve ID EVENT'?)")
 	if err != nil {
 		return err
 	}
@@ -75,14 +68,7 @@ func runConflicts(args []string, stdout, stderr io.Writer) error {
 func conflictsResolve(args []string, stdout io.Writer) error {
 	fs := newFlags("conflicts resolve")
 	dir := storeFlag(fs)
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 2 {
-		return usagef("give the entity id and the id of the event whose value to keep")
-	}
-	s, err := openExistingStore(*dir)
+	pos, s, err := openForArgs(fs, dir, args, 2, "give the entity id and the id of the event whose value to keep")
 	if err != nil {
 		return err
 	}

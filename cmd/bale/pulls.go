@@ -123,14 +123,7 @@ func pullsList(args []string, stdout io.Writer) error {
 	fs := newFlags("pulls list")
 	dir := storeFlag(fs)
 	asJSON := fs.Bool("json", false, "print JSON")
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 1 {
-		return usagef("give the bale id")
-	}
-	s, err := openExistingStore(*dir)
+	pos, s, err := openForArgs(fs, dir, args, 1, "give the bale id")
 	if err != nil {
 		return err
 	}

@@ -92,14 +92,7 @@ func runShow(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("show")
 	dir := storeFlag(fs)
 	asJSON := fs.Bool("json", false, "print JSON")
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 1 {
-		return usagef("give one id (an entity's UUID or its first hex digits, or an event id)")
-	}
-	s, err := openExistingStore(*dir)
+	pos, s, err := openForArgs(fs, dir, args, 1, "give one id (an entity's UUID or its first hex digits, or an event id)")
 	if err != nil {
 		return err
 	}

@@ -104,14 +104,7 @@ func sitesList(args []string, stdout io.Writer) error {
 	fs := newFlags("sites list")
 	dir := storeFlag(fs)
 	asJSON := fs.Bool("json", false, "print JSON")
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 0 {
-		return usagef("unexpected argument %q", pos[0])
-	}
-	s, err := openExistingStore(*dir)
+	_, s, err := openForArgs(fs, dir, args, 0, "")
 	if err != nil {
 		return err
 	}
@@ -374,14 +367,7 @@ func sitesMove(args []string, stdout io.Writer) error {
 func sitesRemove(args []string, stdout io.Writer) error {
 	fs := newFlags("sites remove")
 	dir := storeFlag(fs)
-	pos, err := parseArgs(fs, args)
-	if err != nil {
-		return err
-	}
-	if len(pos) != 1 {
-		return usagef("give the site id")
-	}
-	s, err := openExistingStore(*dir)
+	pos, s, err := openForArgs(fs, dir, args, 1, "give the site id")
 	if err != nil {
 		return err
 	}

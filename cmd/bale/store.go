@@ -228,3 +228,25 @@ func recTime(ms int64) string {
 	}
 	return time.UnixMilli(ms).UTC().Format(time.RFC3339)
 }
+
+// openForArgs parses a record command's arguments, checks that exactly
+// want positional ones came (wrong is the usage message for another
+// count; with want 0 it follows "unexpected argument"), and opens the
+// existing store that dir names.
+func openForArgs(fs *flag.FlagSet, dir *string, args []string, want int, wrong string) ([]string, *data.Store, error) {
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return nil, nil, err
+	}
+	if len(pos) != want {
+		if want == 0 {
+			return nil, nil, usagef("unexpected argument %q%s", pos[0], wrong)
+		}
+		return nil, nil, usagef("%s", wrong)
+	}
+	s, err := openExistingStore(*dir)
+	if err != nil {
+		return nil, nil, err
+	}
+	return pos, s, nil
+}
