@@ -108,9 +108,11 @@ func xReport(b *testing.B, events int) {
 //	seal        encode the body and sign it (export without the store)
 //	export      Export from a store to a file (store read, seal, atomic write, meta)
 //	open        the transfer layer alone: signature, strict body, event ids
-//	check       everything import checks: open, then strict DecodeEvent and
-//	            ValidateEvent of every event
-//	ratios      plain-cbor, check and json timed in the same iterations
+//	check       everything import checks: open, then strict DecodeEvent,
+//	            IDOf and ValidateEvent of every event on the importer's
+//	            workers (one per CPU; ApplyRaw's checkEvents)
+//	check-serial the same on one goroutine
+//	ratios      plain-cbor, check, check-serial and json timed in the same iterations
 //	import      the same events as Export cuts them (DefaultPartBytes parts),
 //	            each checked and applied in one synced transaction, into an
 //	            empty store
@@ -153,6 +155,13 @@ func BenchmarkTransfer100k(b *testing.B) {
 		}
 		xReport(b, n)
 	})
+	b.Run("check-serial", func(b *testing.B) {
+		b.SetBytes(int64(len(st.bundle)))
+		for b.Loop() {
+			xCheckSerial(b, st.bundle, trust)
+		}
+		xReport(b, n)
+	})
 	b.Run("open", func(b *testing.B) { // the transfer layer alone: signature, strict body, ids
 		b.SetBytes(int64(len(st.bundle)))
 		for b.Loop() {
@@ -163,20 +172,23 @@ func BenchmarkTransfer100k(b *testing.B) {
 		xReport(b, n)
 	})
 	b.Run("ratios", func(b *testing.B) { // the three decodes timed in the same iterations
-		var plain, check, js time.Duration
+		var plain, check, serial, js time.Duration
 		for b.Loop() {
 			t0 := time.Now()
 			xPlainDecode(b, st.bundle)
 			t1 := time.Now()
 			xCheckAll(b, st.bundle, trust)
 			t2 := time.Now()
+			xCheckSerial(b, st.bundle, trust)
+			t3 := time.Now()
 			var evs []Event
 			if err := json.Unmarshal(st.js, &evs); err != nil {
 				b.Fatal(err)
 			}
-			plain, check, js = plain+t1.Sub(t0), check+t2.Sub(t1), js+time.Since(t2)
+			plain, check, serial, js = plain+t1.Sub(t0), check+t2.Sub(t1), serial+t3.Sub(t2), js+time.Since(t3)
 		}
 		b.ReportMetric(plain.Seconds()/check.Seconds(), "check-speed/plain-cbor")
+		b.ReportMetric(plain.Seconds()/serial.Seconds(), "check-serial-speed/plain-cbor")
 		b.ReportMetric(js.Seconds()/check.Seconds(), "check-speed/json")
 	})
 	b.Run("import", func(b *testing.B) {
@@ -222,20 +234,27 @@ func BenchmarkTransfer100k(b *testing.B) {
 	})
 }
 
-// xCheckAll does every check of the importer short of the store.
+// xCheckAll does every check of the importer short of the store, with
+// the importer's own code (OpenBundle, then checkEvents with the workers
+// ApplyRaw uses: strict DecodeEvent, IDOf and ValidateEventAt of every
+// event). xCheckSerial is the same on one goroutine.
 func xCheckAll(b *testing.B, bundle []byte, trust TrustFunc) {
 	ob, err := OpenBundle(bundle, trust)
 	if err != nil {
 		b.Fatal(err)
 	}
-	for _, r := range ob.Raws {
-		e, err := DecodeEvent(r)
-		if err != nil {
-			b.Fatal(err)
-		}
-		if _, err := ValidateEventAt(e, xferNow); err != nil {
-			b.Fatal(err)
-		}
+	if _, _, err := checkEvents(ob.Raws, xferNow, checkWorkers(len(ob.Raws))); err != nil {
+		b.Fatal(err)
+	}
+}
+
+func xCheckSerial(b *testing.B, bundle []byte, trust TrustFunc) {
+	ob, err := OpenBundle(bundle, trust)
+	if err != nil {
+		b.Fatal(err)
+	}
+	if _, _, err := checkEvents(ob.Raws, xferNow, 1); err != nil {
+		b.Fatal(err)
 	}
 }
 

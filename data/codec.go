@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"sort"
+	"sync"
 
 	"github.com/fxamacker/cbor/v2"
 )
@@ -18,15 +19,17 @@ const (
 )
 
 var (
-	encMode cbor.EncMode
+	encMode cbor.UserBufferEncMode
 	decMode cbor.DecMode
+	// reencodeBufs holds the buffers DecodeEvent re-encodes into.
+	reencodeBufs = sync.Pool{New: func() any { return new(bytes.Buffer) }}
 )
 
 func init() {
 	var err error
 	// RFC 8949 §4.2.1 core deterministic encoding: shortest integer and
 	// float forms, definite lengths, map keys sorted bytewise.
-	encMode, err = cbor.CoreDetEncOptions().EncMode()
+	encMode, err = cbor.CoreDetEncOptions().UserBufferEncMode()
 	if err != nil {
 		panic(err)
 	}
@@ -81,11 +84,13 @@ func DecodeEvent(raw []byte) (Event, error) {
 	if err := decMode.Unmarshal(raw, &e); err != nil {
 		return Event{}, &DecodeError{Err: err}
 	}
-	again, err := encMode.Marshal(e)
-	if err != nil {
+	buf := reencodeBufs.Get().(*bytes.Buffer)
+	defer reencodeBufs.Put(buf)
+	buf.Reset()
+	if err := encMode.MarshalToBuffer(e, buf); err != nil {
 		return Event{}, &DecodeError{Err: err}
 	}
-	if !bytes.Equal(again, raw) {
+	if again := buf.Bytes(); !bytes.Equal(again, raw) {
 		return Event{}, fmt.Errorf("%w (%d bytes re-encode to %d different bytes)", ErrNotCanonical, len(raw), len(again))
 	}
 	if e.Version != FormatVersion {

@@ -141,9 +141,13 @@ type PullRecord struct {
 }
 
 // PartsKg is the sum of the sorted parts.
-func (p PullRecord) PartsKg() float64 {
+func (p PullRecord) PartsKg() float64 { return partsKg(p, sortedKeys(p.Kg)) }
+
+// partsKg sums p.Kg in the order of kgKeys (its keys, sorted), so that
+// the rounding is the same wherever it is computed.
+func partsKg(p PullRecord, kgKeys []string) float64 {
 	var t float64
-	for _, k := range sortedKeys(p.Kg) {
+	for _, k := range kgKeys {
 		t += p.Kg[k]
 	}
 	return t

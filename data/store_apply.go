@@ -1,8 +1,6 @@
 package data
 
 import (
-	"bytes"
-	"errors"
 	"fmt"
 	"strings"
 
@@ -26,37 +24,19 @@ type EventWarning struct {
 	Warning
 }
 
-type item struct {
-	id  EventID
-	raw []byte
-	ev  Event
-}
-
 // ApplyRaw adds encoded events (from an import) and meta values in one
 // committed and synced transaction, all or nothing. Every event is first
-// decoded strictly (DecodeEvent) and validated (ValidateEvent); the first
-// failure is returned as an *EventError naming its index and field, and
-// nothing is written. Events already present are counted, not rewritten.
-// raws may alias a larger buffer: the store copies what it keeps. Meta
-// keys must start with MetaTransferPrefix.
+// decoded strictly (DecodeEvent), hashed and validated (ValidateEvent),
+// on all CPUs (checkEvents); the failure of the lowest index is returned
+// as an *EventError naming its index and field, and nothing is written.
+// Events already present are counted, not rewritten. raws may alias a
+// larger buffer that the caller leaves unchanged during the call: the
+// store reads it until the commit and keeps nothing of it afterwards.
+// Meta keys must start with MetaTransferPrefix.
 func (s *Store) ApplyRaw(raws [][]byte, meta map[string][]byte) (ApplyResult, error) {
-	items := make([]item, len(raws))
-	var warns []EventWarning
-	now := s.now()
-	for i, raw := range raws {
-		ev, err := DecodeEvent(raw)
-		if err != nil {
-			return ApplyResult{}, &EventError{Index: i, Err: err}
-		}
-		id := IDOf(raw)
-		w, err := ValidateEventAt(ev, now)
-		if err != nil {
-			return ApplyResult{}, &EventError{Index: i, ID: id, Err: err}
-		}
-		for _, x := range w {
-			warns = append(warns, EventWarning{i, id, x})
-		}
-		items[i] = item{id: id, raw: raw, ev: ev}
+	items, warns, err := checkEvents(raws, s.now(), checkWorkers(len(raws)))
+	if err != nil {
+		return ApplyResult{}, err
 	}
 	for k := range meta {
 		if !strings.HasPrefix(k, MetaTransferPrefix) || len(k) > 200 {
@@ -87,7 +67,7 @@ func (s *Store) Save(evs []Event, opt SaveOptions) ([]EventID, error) {
 
 // save is Save with an extra step run inside the transaction.
 func (s *Store) save(evs []Event, opt SaveOptions, extra func(tx *bolt.Tx) error) ([]EventID, []Event, error) {
-	items := make([]item, len(evs))
+	items := make([]checkedEvent, len(evs))
 	var warns []Warning
 	now := s.now()
 	out := make([]Event, len(evs))
@@ -112,7 +92,7 @@ func (s *Store) save(evs []Event, opt SaveOptions, extra func(tx *bolt.Tx) error
 			return nil, nil, &EventError{Index: i, ID: id, Err: err}
 		}
 		warns = append(warns, w...)
-		items[i] = item{id: id, raw: raw, ev: e}
+		items[i] = checkedOf(id, raw, e)
 		out[i] = e
 	}
 	if len(warns) > 0 && !opt.Confirm {
@@ -137,141 +117,4 @@ func (s *Store) writableLocked() error {
 		return &WriteError{Err: s.failed}
 	}
 	return nil
-}
-
-// commit inserts the items and meta values in one bbolt transaction.
-func (s *Store) commit(items []item, meta map[string][]byte, observe bool, extra func(tx *bolt.Tx) error) (ApplyResult, error) {
-	s.wmu.Lock()
-	defer s.wmu.Unlock()
-	if err := s.writableLocked(); err != nil {
-		return ApplyResult{}, err
-	}
-	var res ApplyResult
-	var siteUpdates []siteUpdate
-	err := s.db.Update(func(tx *bolt.Tx) error {
-		res = ApplyResult{}
-		siteUpdates = siteUpdates[:0]
-		evB, seqB, entB := tx.Bucket(bEvents), tx.Bucket(bSeq), tx.Bucket(bEntity)
-		byB, headB, supB := tx.Bucket(bByEntity), tx.Bucket(bHeads), tx.Bucket(bSupBy)
-		var seq uint64
-		if k, _ := seqB.Cursor().Last(); k != nil {
-			seq = beUint64(k)
-		}
-		before := make(map[EntityID]int)
-		var order []EntityID
-		for i, it := range items {
-			if evB.Get(it.id[:]) != nil {
-				res.Present++
-				continue
-			}
-			ent := it.ev.Entity
-			if k := entB.Get(ent[:]); k != nil {
-				if Kind(k[0]) != it.ev.Kind {
-					return dataError{&EventError{Index: i, ID: it.id, Err: &FieldError{Field: "kind",
-						Value: fmt.Sprintf("%s (entity %s is a %s)", it.ev.Kind, ent, Kind(k[0])), Err: ErrKindMismatch}}}
-				}
-			} else if err := entB.Put(ent[:], []byte{byte(it.ev.Kind)}); err != nil {
-				return err
-			}
-			if _, ok := before[ent]; !ok {
-				before[ent] = countPrefix(headB, ent[:])
-				order = append(order, ent)
-			}
-			seq++
-			if err := evB.Put(it.id[:], bytes.Clone(it.raw)); err != nil {
-				return err
-			}
-			if err := seqB.Put(seqKey(seq), it.id[:]); err != nil {
-				return err
-			}
-			pk := pairKey(ent, it.id)
-			if err := byB.Put(pk, nil); err != nil {
-				return err
-			}
-			if countPrefix(supB, pk) == 0 {
-				if err := headB.Put(pk, nil); err != nil {
-					return err
-				}
-			}
-			for _, t := range it.ev.Supersedes {
-				tk := pairKey(ent, t)
-				if err := supB.Put(append(tk, it.id[:]...), nil); err != nil {
-					return err
-				}
-				if err := headB.Delete(tk); err != nil {
-					return err
-				}
-			}
-			if observe {
-				s.clock.Observe(it.ev.Clock)
-			}
-			res.New++
-		}
-		m := tx.Bucket(bMeta)
-		for _, k := range sortedKeys(meta) {
-			if err := m.Put([]byte(k), bytes.Clone(meta[k])); err != nil {
-				return err
-			}
-		}
-		if res.New > 0 {
-			if err := m.Put([]byte(metaClock), s.clock.Last().bytes()); err != nil {
-				return err
-			}
-		}
-		for _, ent := range order {
-			if after := countPrefix(headB, ent[:]); after > 1 && before[ent] <= 1 {
-				res.Conflicts++
-			}
-			if Kind(entB.Get(ent[:])[0]) == KindSite {
-				st, err := stateTx(tx, ent)
-				if err != nil {
-					return err
-				}
-				u := siteUpdateOf(st)
-				if err := putSiteCache(tx, u); err != nil {
-					return err
-				}
-				siteUpdates = append(siteUpdates, u)
-			}
-		}
-		if extra != nil {
-			if err := extra(tx); err != nil {
-				return err
-			}
-		}
-		if s.hook != nil {
-			if err := s.hook(); err != nil {
-				return err
-			}
-		}
-		return nil
-	})
-	if err != nil {
-		var de dataError
-		if errors.As(err, &de) {
-			return ApplyResult{}, de.err
-		}
-		s.failed = err
-		return ApplyResult{}, &WriteError{Err: err}
-	}
-	s.sites.apply(siteUpdates)
-	return res, nil
-}
-
-func beUint64(b []byte) uint64 {
-	var n uint64
-	for _, c := range b {
-		n = n<<8 | uint64(c)
-	}
-	return n
-}
-
-// countPrefix counts the keys of b that start with prefix.
-func countPrefix(b *bolt.Bucket, prefix []byte) int {
-	n := 0
-	c := b.Cursor()
-	for k, _ := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, _ = c.Next() {
-		n++
-	}
-	return n
 }

@@ -259,9 +259,12 @@ func validateBale(b BaleRecord) ([]Warning, error) {
 
 // AssessPull converts a pull record to the audit model of package assess
 // (slices by catalogue index). Unknown keys are an error.
-func AssessPull(p PullRecord) (assess.Pull, error) {
+func AssessPull(p PullRecord) (assess.Pull, error) { return assessPull(p, sortedKeys(p.Kg)) }
+
+// assessPull is AssessPull with the keys of p.Kg already sorted.
+func assessPull(p PullRecord, kgKeys []string) (assess.Pull, error) {
 	ap := assess.NewPull(p.Label)
-	for _, k := range sortedKeys(p.Kg) {
+	for _, k := range kgKeys {
 		if err := ap.Set(k, p.Kg[k]); err != nil {
 			return ap, &FieldError{Field: "pull.kg." + k, Err: err}
 		}
@@ -285,7 +288,8 @@ func validatePull(p PullRecord) error {
 	if err := checkText("pull.label", p.Label, maxNameRunes, true); err != nil {
 		return err
 	}
-	for _, k := range sortedKeys(p.Kg) {
+	kgKeys := sortedKeys(p.Kg) // sorted once: errors name the first bad key in key order
+	for _, k := range kgKeys {
 		x := p.Kg[k]
 		if _, ok := assess.CategoryIndex(k); !ok {
 			return &FieldError{Field: "pull.kg." + k, Err: fmt.Errorf("%w (valid keys: %s)", assess.ErrUnknownCategory, strings.Join(assess.CategoryKeys(), ", "))}
@@ -303,7 +307,7 @@ func validatePull(p PullRecord) error {
 	if p.StatedKg < 0 {
 		return &FieldError{Field: "pull.stated_kg", Value: fnum(p.StatedKg), Err: ErrNegative}
 	}
-	ap, err := AssessPull(p)
+	ap, err := assessPull(p, kgKeys)
 	if err != nil {
 		return err
 	}
@@ -312,7 +316,7 @@ func validatePull(p PullRecord) error {
 		return &FieldError{Field: "pull.kg", Err: err}
 	}
 	if p.StatedKg > 0 {
-		parts := p.PartsKg()
+		parts := partsKg(p, kgKeys)
 		if parts > p.StatedKg*(1+PullPartsTolerance)+PullPartsToleranceKg {
 			return &FieldError{Field: "pull.kg", Value: fmt.Sprintf("parts %s kg > stated %s kg", fnum(parts), fnum(p.StatedKg)),
 				Err: fmt.Errorf("%w by more than %.0f %% + %.2f kg: reweigh or correct a part", ErrPullParts, 100*PullPartsTolerance, PullPartsToleranceKg)}
