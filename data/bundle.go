@@ -3,6 +3,7 @@ package data
 import (
 	"bytes"
 	"crypto/sha256"
+	"encoding/binary"
 	"encoding/hex"
 	"errors"
 	"fmt"
@@ -44,6 +45,7 @@ type OpenedBundle struct {
 	SignerName string
 	Hash       [32]byte // SHA-256 of the complete file
 	Raws       [][]byte
+	IDs        []EventID // IDs[i] is the SHA-256 of Raws[i], checked against the id the bundle states
 }
 
 // buildBody returns the deterministic encoding of [header, [[id, event]...]].
@@ -96,6 +98,15 @@ func OpenBundle(raw []byte, trusted TrustFunc) (*OpenedBundle, error) {
 	if len(raw) > MaxBundleBytes {
 		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", len(raw), MaxBundleBytes)
 	}
+	// The file's hash is needed only at the end; a large file is hashed
+	// on another CPU meanwhile (hashing reads, it decodes nothing). The
+	// goroutine never blocks (buffered), so an early refusal leaves it to
+	// finish on its own.
+	var hashed chan [32]byte
+	if len(raw) >= 1<<20 {
+		hashed = make(chan [32]byte, 1)
+		go func() { hashed <- sha256.Sum256(raw) }()
+	}
 	env, err := parseSign1(raw)
 	if err != nil {
 		return nil, err
@@ -112,77 +123,112 @@ func OpenBundle(raw []byte, trusted TrustFunc) (*OpenedBundle, error) {
 	if err := verifySign1(env, env.kid); err != nil {
 		return nil, err
 	}
-	h, raws, err := decodeBody(env.payload, env.payloadOff)
+	h, raws, ids, err := decodeBody(env.payload, env.payloadOff)
 	if err != nil {
 		return nil, err
 	}
 	if h.Key != fp {
 		return nil, bundleErr(ErrBundleHeader, "header.key", env.payloadOff, "header names key %s, bundle is signed by %s", h.Key, fp)
 	}
-	return &OpenedBundle{Header: h, Signer: fp, SignerName: name, Hash: sha256.Sum256(raw), Raws: raws}, nil
+	var sum [32]byte
+	if hashed != nil {
+		sum = <-hashed
+	} else {
+		sum = sha256.Sum256(raw)
+	}
+	return &OpenedBundle{Header: h, Signer: fp, SignerName: name, Hash: sum, Raws: raws, IDs: ids}, nil
 }
 
 // decodeBody walks a verified payload: the body array, the header (via
 // the strict decoder) and each [id, event] pair (sliced, not copied).
-func decodeBody(p []byte, base int) (BundleHeader, [][]byte, error) {
+func decodeBody(p []byte, base int) (BundleHeader, [][]byte, []EventID, error) {
 	var h BundleHeader
 	w := &wire{buf: p, base: base, part: "body"}
 	if n, err := w.expect(majArray, "the body array"); err != nil {
-		return h, nil, err
+		return h, nil, nil, err
 	} else if n != 2 {
-		return h, nil, bundleErr(ErrBundleMalformed, "body", base, "body array has %d items, want [header, events]", n)
+		return h, nil, nil, bundleErr(ErrBundleMalformed, "body", base, "body array has %d items, want [header, events]", n)
 	}
 	hStart := w.off
 	var item cbor.RawMessage
 	rest, err := headerDec.UnmarshalFirst(p[hStart:], &item)
 	if err != nil {
-		return h, nil, cborErr(err, "header", base+hStart)
+		return h, nil, nil, cborErr(err, "header", base+hStart)
 	}
 	w.off = len(p) - len(rest)
 	if h, err = decodeHeader(p[hStart:w.off], base+hStart); err != nil {
-		return h, nil, err
+		return h, nil, nil, err
 	}
 	w.part = "events"
 	at := w.off
 	n, err := w.expect(majArray, "the events array")
 	if err != nil {
-		return h, nil, err
+		return h, nil, nil, err
 	}
 	if n > MaxBundleEvents {
-		return h, nil, bundleErr(ErrBundleTooMany, "events", base+at, "array claims %d events, limit %d", n, MaxBundleEvents)
+		return h, nil, nil, bundleErr(ErrBundleTooMany, "events", base+at, "array claims %d events, limit %d", n, MaxBundleEvents)
 	}
 	if n*minEntryBytes > uint64(len(p)-w.off) {
-		return h, nil, bundleErr(ErrBundleTruncated, "events", base+at, "array claims %d events, only %d bytes remain", n, len(p)-w.off)
+		return h, nil, nil, bundleErr(ErrBundleTruncated, "events", base+at, "array claims %d events, only %d bytes remain", n, len(p)-w.off)
 	}
 	if n != h.Count {
-		return h, nil, bundleErr(ErrBundleEventCount, "events", base+at, "header says %d events, array has %d", h.Count, n)
+		return h, nil, nil, bundleErr(ErrBundleEventCount, "events", base+at, "header says %d events, array has %d", h.Count, n)
 	}
 	raws := make([][]byte, 0, n)
-	ids := make([][32]byte, 0, n)
+	ids := make([]EventID, 0, n)
 	for i := range int(n) {
 		if err := readEntry(w, i, &raws, &ids); err != nil {
 			var be *BundleError
 			if errors.As(err, &be) {
 				be.Part, be.Event = fmt.Sprintf("events[%d]", i), i
 			}
-			return h, nil, err
+			return h, nil, nil, err
 		}
 	}
 	w.part = "body"
 	if err := w.end(); err != nil {
-		return h, nil, err
+		return h, nil, nil, err
 	}
-	slices.SortFunc(ids, func(a, b [32]byte) int { return bytes.Compare(a[:], b[:]) })
-	for i := 1; i < len(ids); i++ {
-		if ids[i] == ids[i-1] {
-			return h, nil, bundleErr(ErrBundleDupEvent, "events", -1, "event %s appears twice", hex.EncodeToString(ids[i][:]))
+	if i, ok := firstRepeat(ids); ok {
+		return h, nil, nil, bundleErr(ErrBundleDupEvent, "events", -1, "event %s appears twice", hex.EncodeToString(ids[i][:]))
+	}
+	return h, raws, ids, nil
+}
+
+// firstRepeat finds an id that appears twice, if any, and the index of
+// one copy. It sorts the ids' first 8 bytes (much faster than sorting
+// 32-byte keys); only when two prefixes are equal does it sort whole ids.
+func firstRepeat(ids []EventID) (int, bool) {
+	pre := make([]uint64, len(ids))
+	for i := range ids {
+		pre[i] = binary.BigEndian.Uint64(ids[i][:8])
+	}
+	slices.Sort(pre)
+	clash := false
+	for i := 1; i < len(pre); i++ {
+		if pre[i] == pre[i-1] {
+			clash = true
+			break
 		}
 	}
-	return h, raws, nil
+	if !clash {
+		return 0, false
+	}
+	idx := make([]int, len(ids))
+	for i := range idx {
+		idx[i] = i
+	}
+	slices.SortFunc(idx, func(a, b int) int { return bytes.Compare(ids[a][:], ids[b][:]) })
+	for i := 1; i < len(idx); i++ {
+		if ids[idx[i]] == ids[idx[i-1]] {
+			return idx[i], true
+		}
+	}
+	return 0, false
 }
 
 // readEntry reads the i-th [id, event] pair and checks the id.
-func readEntry(w *wire, i int, raws *[][]byte, ids *[][32]byte) error {
+func readEntry(w *wire, i int, raws *[][]byte, ids *[]EventID) error {
 	if k, err := w.expect(majArray, "an [id, event] pair"); err != nil {
 		return err
 	} else if k != 2 {
@@ -204,7 +250,7 @@ func readEntry(w *wire, i int, raws *[][]byte, ids *[][32]byte) error {
 		return bundleErr(ErrBundleEventID, "", w.base+evOff, "id %s, bytes hash to %s", hex.EncodeToString(id), hex.EncodeToString(sum[:]))
 	}
 	*raws = append(*raws, ev)
-	*ids = append(*ids, sum)
+	*ids = append(*ids, EventID(sum))
 	return nil
 }
 

@@ -243,7 +243,7 @@ func xCheckAll(b *testing.B, bundle []byte, trust TrustFunc) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	if _, _, err := checkEvents(ob.Raws, xferNow, checkWorkers(len(ob.Raws))); err != nil {
+	if _, _, err := checkEvents(ob.Raws, ob.IDs, xferNow, checkWorkers(len(ob.Raws))); err != nil {
 		b.Fatal(err)
 	}
 }
@@ -253,7 +253,7 @@ func xCheckSerial(b *testing.B, bundle []byte, trust TrustFunc) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	if _, _, err := checkEvents(ob.Raws, xferNow, 1); err != nil {
+	if _, _, err := checkEvents(ob.Raws, ob.IDs, xferNow, 1); err != nil {
 		b.Fatal(err)
 	}
 }

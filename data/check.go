@@ -36,7 +36,8 @@ func checkWorkers(n int) int {
 	return max(1, min(runtime.GOMAXPROCS(0), n/checkRunMin))
 }
 
-// checkEvents decodes strictly (DecodeEvent), hashes (IDOf) and
+// checkEvents decodes strictly (DecodeEvent), hashes (IDOf, unless ids
+// holds the ids already computed from these bytes, as OpenBundle's are) and
 // validates (ValidateEventAt, at now) every event of raws, on workers
 // goroutines over contiguous runs of the slice (serially when workers
 // ≤ 1). The result does not depend on workers: the events come back in
@@ -44,10 +45,13 @@ func checkWorkers(n int) int {
 // the one of the lowest failing index, exactly as a serial loop finds it
 // (TestCheckEventsParallelSameAsSerial). A worker stops at its first
 // failure, and at any index above a failure already found.
-func checkEvents(raws [][]byte, now time.Time, workers int) ([]checkedEvent, []EventWarning, error) {
+func checkEvents(raws [][]byte, ids []EventID, now time.Time, workers int) ([]checkedEvent, []EventWarning, error) {
+	if ids != nil && len(ids) != len(raws) {
+		panic("data: checkEvents: ids do not match raws") // a programmer's mistake
+	}
 	out := make([]checkedEvent, len(raws))
 	if workers <= 1 || len(raws) < 2 {
-		w, _, err := checkRun(raws, out, 0, now, nil)
+		w, _, err := checkRun(raws, ids, out, 0, now, nil)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -65,7 +69,11 @@ func checkEvents(raws [][]byte, now time.Time, workers int) ([]checkedEvent, []E
 		go func() {
 			defer wg.Done()
 			var at int
-			warns[k], at, errs[k] = checkRun(raws[lo:hi], out[lo:hi], lo, now, &failed)
+			var part []EventID
+			if ids != nil {
+				part = ids[lo:hi]
+			}
+			warns[k], at, errs[k] = checkRun(raws[lo:hi], part, out[lo:hi], lo, now, &failed)
 			if errs[k] != nil {
 				for {
 					cur := failed.Load()
@@ -98,7 +106,7 @@ func (errStopped) Error() string { return "data: check stopped" }
 // checkRun checks raws[i] into out[i] in order; base is the index of
 // raws[0] in the batch. It returns the warnings, and on failure the
 // failing batch index and an *EventError.
-func checkRun(raws [][]byte, out []checkedEvent, base int, now time.Time, failed *atomic.Int64) ([]EventWarning, int, error) {
+func checkRun(raws [][]byte, ids []EventID, out []checkedEvent, base int, now time.Time, failed *atomic.Int64) ([]EventWarning, int, error) {
 	var warns []EventWarning
 	for j, raw := range raws {
 		i := base + j
@@ -109,7 +117,12 @@ func checkRun(raws [][]byte, out []checkedEvent, base int, now time.Time, failed
 		if err != nil {
 			return nil, i, &EventError{Index: i, Err: err}
 		}
-		id := IDOf(raw)
+		var id EventID
+		if ids != nil {
+			id = ids[j]
+		} else {
+			id = IDOf(raw)
+		}
 		w, err := ValidateEventAt(ev, now)
 		if err != nil {
 			return nil, i, &EventError{Index: i, ID: id, Err: err}

@@ -37,7 +37,7 @@ func TestCheckEventsParallelSameAsSerial(t *testing.T) {
 	neg.Pull.Kg["hdpe"] = -0.1 // negative mass: a validation error (records issue)
 	bad := map[string][]byte{"non-canonical": xNonMinimal(t, raws[10]), "invalid": xEnc(t, neg), "garbage": {0xff}}
 
-	serial, sw, err := checkEvents(raws, xferNow, 1)
+	serial, sw, err := checkEvents(raws, nil, xferNow, 1)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -49,8 +49,15 @@ func TestCheckEventsParallelSameAsSerial(t *testing.T) {
 			t.Fatalf("event %d: id or bytes not those of the input", i)
 		}
 	}
+	ids := make([]EventID, len(raws))
+	for i, r := range raws {
+		ids[i] = IDOf(r)
+	}
+	if got, gw, err := checkEvents(raws, ids, xferNow, 2); err != nil || !reflect.DeepEqual(got, serial) || !reflect.DeepEqual(gw, sw) {
+		t.Fatalf("with the ids given: %v, or events or warnings differ", err)
+	}
 	for _, w := range []int{2, 3, 7, 64} {
-		got, gw, err := checkEvents(raws, xferNow, w)
+		got, gw, err := checkEvents(raws, nil, xferNow, w)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -76,7 +83,7 @@ func TestCheckEventsParallelSameAsSerial(t *testing.T) {
 		for _, f := range c {
 			in[f.at] = bad[f.bad]
 		}
-		_, _, want := checkEvents(in, xferNow, 1)
+		_, _, want := checkEvents(in, nil, xferNow, 1)
 		var wantEE *EventError
 		if !errors.As(want, &wantEE) {
 			t.Fatalf("case %d: serial error %v is not an *EventError", ci, want)
@@ -89,16 +96,16 @@ func TestCheckEventsParallelSameAsSerial(t *testing.T) {
 			t.Fatalf("case %d: serial check failed at %d, want %d", ci, wantEE.Index, lowest)
 		}
 		for _, w := range []int{2, 3, 4, 16} {
-			got, gw, err := checkEvents(in, xferNow, w)
+			got, gw, err := checkEvents(in, nil, xferNow, w)
 			if got != nil || gw != nil || !reflect.DeepEqual(err, want) {
 				t.Fatalf("case %d, %d workers: got %v, want %v", ci, w, err, want)
 			}
 		}
 	}
-	if _, _, err := checkEvents(append([][]byte{bad["non-canonical"]}, raws...), xferNow, 2); !errors.Is(err, ErrNotCanonical) {
+	if _, _, err := checkEvents(append([][]byte{bad["non-canonical"]}, raws...), nil, xferNow, 2); !errors.Is(err, ErrNotCanonical) {
 		t.Fatalf("non-canonical event: %v, want ErrNotCanonical", err)
 	}
-	if _, _, err := checkEvents(append(raws[:100:100], bad["invalid"]), xferNow, 2); !errors.Is(err, assess.ErrNegativeMass) {
+	if _, _, err := checkEvents(append(raws[:100:100], bad["invalid"]), nil, xferNow, 2); !errors.Is(err, assess.ErrNegativeMass) {
 		t.Fatalf("negative mass: %v, want the audit model's negative-mass error", err)
 	}
 }

@@ -87,7 +87,11 @@ func DecodeEvent(raw []byte) (Event, error) {
 	buf := reencodeBufs.Get().(*bytes.Buffer)
 	defer reencodeBufs.Put(buf)
 	buf.Reset()
-	if err := encMode.MarshalToBuffer(e, buf); err != nil {
+	// Room for the event and for the staging area the encoder uses to
+	// sort a map's pairs, so that neither allocates; &e, not e, so the
+	// event is not copied into an interface.
+	buf.Grow(2*len(raw) + 64)
+	if err := encMode.MarshalToBuffer(&e, buf); err != nil {
 		return Event{}, &DecodeError{Err: err}
 	}
 	if again := buf.Bytes(); !bytes.Equal(again, raw) {

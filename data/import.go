@@ -214,11 +214,11 @@ func (im *Importer) importBytes(raw []byte, prog func(Progress)) FileReport {
 	}
 	fr.Flags, fr.Replay = append(flags, im.skewFlags(h)...), replay
 	prog(Progress{Step: "applying", Events: fr.Events})
-	res, err := im.Store.ApplyRaw(ob.Raws, meta)
+	res, err := im.Store.applyRaw(ob.Raws, ob.IDs, meta)
 	if err != nil {
 		var ee *EventError
 		if errors.As(err, &ee) && ee.Index >= 0 && ee.Index < len(ob.Raws) {
-			fr.Err = &EventRefusedError{Index: ee.Index, ID: IDOf(ob.Raws[ee.Index]).String(), Err: err}
+			fr.Err = &EventRefusedError{Index: ee.Index, ID: ob.IDs[ee.Index].String(), Err: err}
 		} else {
 			fr.Err = err
 		}

@@ -63,7 +63,7 @@ func InspectBundle(raw []byte, trust TrustFunc) Inspection {
 	if in.SigErr = verifySign1(env, env.kid); in.SigErr == nil {
 		in.SignatureOK = true
 	}
-	h, raws, err := decodeBody(env.payload, env.payloadOff)
+	h, raws, _, err := decodeBody(env.payload, env.payloadOff)
 	if err != nil {
 		in.BodyErr = err
 		if d, derr := diagMode.Diagnose(env.payload); derr == nil {

@@ -34,7 +34,14 @@ type EventWarning struct {
 // store reads it until the commit and keeps nothing of it afterwards.
 // Meta keys must start with MetaTransferPrefix.
 func (s *Store) ApplyRaw(raws [][]byte, meta map[string][]byte) (ApplyResult, error) {
-	items, warns, err := checkEvents(raws, s.now(), checkWorkers(len(raws)))
+	return s.applyRaw(raws, nil, meta)
+}
+
+// applyRaw is ApplyRaw with the events' ids when the caller has them
+// (OpenBundle hashed every event to check its stated id); nil ids are
+// computed here.
+func (s *Store) applyRaw(raws [][]byte, ids []EventID, meta map[string][]byte) (ApplyResult, error) {
+	items, warns, err := checkEvents(raws, ids, s.now(), checkWorkers(len(raws)))
 	if err != nil {
 		return ApplyResult{}, err
 	}
