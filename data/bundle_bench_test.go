@@ -20,8 +20,14 @@ import (
 // categories (a yard grades several bales a day and takes pulls from
 // each).
 func xBenchRaws(tb testing.TB, n int, seed uint64) ([][]byte, []Event) {
+	return xBenchRawsFrom(tb, n, seed, xferNow.AddDate(-1, 0, 0).UnixMilli()) // 100,000 stamps span about 35 days: all in the past
+}
+
+// xBenchRawsFrom is xBenchRaws with the first clock stamp (and so the
+// UUIDv7 entity ids) starting at wallMs.
+func xBenchRawsFrom(tb testing.TB, n int, seed uint64, wallMs int64) ([][]byte, []Event) {
 	m := newXMaker(0x42, seed)
-	m.wall = xferNow.AddDate(-1, 0, 0).UnixMilli() // 100,000 stamps span about 35 days: all in the past
+	m.wall = wallMs
 	raws := make([][]byte, 0, n)
 	evs := make([]Event, 0, n)
 	var site, bale EntityID
@@ -294,7 +300,10 @@ func BenchmarkBundleSizes(b *testing.B) {
 
 // TestImportPeakMemory1M (set BALE_MEM_1M=1; slow) imports 1,000,000
 // events from bundles of the default part size and records the peak Go
-// heap and the process's peak resident size.
+// heap and the process's peak resident size. BALE_MEM_1M=check measures
+// the reader and the event checks alone; BALE_MEM_ORDER=time makes the
+// parts consecutive in time (see xPeakMemory); BALE_MEM_N and
+// BALE_MEM_PART change the event count and the events per part.
 func TestImportPeakMemory1M(t *testing.T) {
 	if os.Getenv("BALE_MEM_1M") == "" {
 		t.Skip("set BALE_MEM_1M=1 to import 1,000,000 events and measure peak memory (minutes)")
@@ -307,28 +316,37 @@ func TestImportPeakMemory1M(t *testing.T) {
 	if v, err := strconv.Atoi(os.Getenv("BALE_MEM_N")); err == nil && v > 0 {
 		n = v // for measuring how memory grows with the store
 	}
-	xPeakMemory(t, n, per, os.Getenv("BALE_MEM_1M") == "check")
+	xPeakMemory(t, n, per, os.Getenv("BALE_MEM_1M") == "check", os.Getenv("BALE_MEM_ORDER") == "time")
 }
 
 // xPeakMemory writes n events as default-size parts, then imports them
 // into an empty store while sampling the Go heap; the generation phase
 // is excluded (GC before, peak RSS reset through /proc/self/clear_refs).
 //
+// By default every part starts its clock at the same day, so the parts'
+// entity ids (UUIDv7, time-ordered) interleave, as files of many devices
+// grading the same weeks would. With timeOrdered, each part starts where
+// the previous one ended, as one device's consecutive exports do.
+//
 // With checkOnly, the files go through every check of the importer
 // (size cap, signature, strict body, ids, DecodeEvent and ValidateEvent
 // one event at a time) but not into a store, which separates the
 // reader's memory from the store's.
-func xPeakMemory(t *testing.T, n, perPart int, checkOnly bool) {
+func xPeakMemory(t *testing.T, n, perPart int, checkOnly, timeOrdered bool) {
 	dir := t.TempDir()
 	key := xKey(t, 0x11)
 	var files []string
 	var largest, total int64
 	seq := uint64(0)
 	var prev [32]byte
+	wall := xferNow.AddDate(-1, 0, 0).UnixMilli()
 	for done := 0; done < n; {
 		k := min(n-done, perPart)
-		raws, evs := xBenchRaws(t, k, seq+100) // a seed per part: no duplicates
+		raws, evs := xBenchRawsFrom(t, k, seq+100, wall) // a seed per part: no duplicates
 		raws = raws[:k]
+		if timeOrdered {
+			wall = evs[len(evs)-1].Clock.WallMs + 1
+		}
 		seq++
 		h := BundleHeader{Device: evs[0].Device, Seq: seq, Prev: prev, WallMs: xferNow.UnixMilli(), Part: 1, Parts: 1}
 		b, err := SealBundle(key, h, raws)
@@ -400,8 +418,10 @@ func xPeakMemory(t *testing.T, n, perPart int, checkOnly bool) {
 	close(stop)
 	hi := <-peak
 	runtime.GC()
-	var after runtime.MemStats
+	var after, after2 runtime.MemStats
 	runtime.ReadMemStats(&after)
+	runtime.GC() // a second cycle empties sync.Pools (bbolt keeps freed pages in one)
+	runtime.ReadMemStats(&after2)
 	events := 0
 	for _, fr := range rep.Files {
 		if fr.Err != nil {
@@ -412,10 +432,10 @@ func xPeakMemory(t *testing.T, n, perPart int, checkOnly bool) {
 	if events != n {
 		t.Fatalf("imported %d events, want %d", events, n)
 	}
-	t.Logf("check only: %v; %d events in %d bundles (%.1f MB, largest %.1f MB) imported in %v (%.0f events/s)",
-		checkOnly, n, len(files), float64(total)/1e6, float64(largest)/1e6, el.Round(time.Millisecond), float64(n)/el.Seconds())
-	t.Logf("peak Go heap in use %.1f MB (before import %.1f MB, live after import and GC %.1f MB); peak RSS %s",
-		float64(hi)/1e6, float64(base.HeapInuse)/1e6, float64(after.HeapInuse)/1e6, xVmHWM())
+	t.Logf("check only: %v, time-ordered parts: %v; %d events in %d bundles (%.1f MB, largest %.1f MB) imported in %v (%.0f events/s)",
+		checkOnly, timeOrdered, n, len(files), float64(total)/1e6, float64(largest)/1e6, el.Round(time.Millisecond), float64(n)/el.Seconds())
+	t.Logf("peak Go heap in use %.1f MB (before import %.1f MB, live after import and GC %.1f MB, after a second GC %.1f MB); peak RSS %s",
+		float64(hi)/1e6, float64(base.HeapInuse)/1e6, float64(after.HeapInuse)/1e6, float64(after2.HeapInuse)/1e6, xVmHWM())
 }
 
 func xSHA256(b []byte) [32]byte { return sha256.Sum256(b) }
