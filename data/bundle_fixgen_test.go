@@ -1,5 +1,9 @@
 package data
 
+// Source: the coordinates, masses and names in this file are invented test
+// inputs (an invented scenario), not check values; checks compare against
+// brute force, round trips or the records' own rules.
+
 import (
 	"bytes"
 	"crypto/ed25519"

@@ -40,7 +40,8 @@ func TestDemoScenario(t *testing.T) {
 		t.Fatal("demo scenario is not reproducible")
 	}
 	// Clean and dirty sites differ: the deposit depot (dirt 0.05) against
-	// the new supplier (dirt 0.9), by the scenario's own design.
+	// the new supplier (dirt 0.9), by the scenario's own design (Source:
+	// data/scenario.go, an invented demo; the bounds are loose on purpose).
 	share := func(name string) Stat {
 		for _, v := range mustSites(t, s) {
 			if v.Site.Name == name {
@@ -77,7 +78,7 @@ func TestSummarizeMatchesHandComputation(t *testing.T) {
 	ev := []Event{{Entity: site, Kind: KindSite, Site: &SiteRecord{Name: "Y", Lat: 45, Lon: 4}}}
 	// Two bales, two pulls each. Target-PET shares by the ratio estimator:
 	// bale 1: (18+19)/(20+20) = 0.925; bale 2: (15+16)/(20+20) = 0.775
-	// (hand computation). Mean 0.85, sample SD |0.925−0.775|/√2 = 0.10607.
+	// (Source: hand computation). Mean 0.85, sample SD |0.925−0.775|/√2 = 0.10607.
 	pulls := [][2]float64{{18, 2}, {19, 1}, {15, 5}, {16, 4}}
 	for b := 0; b < 2; b++ {
 		bale := ent(byte(10 + b))
