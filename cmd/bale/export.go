@@ -1,8 +1,12 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
+	"os"
+	"path/filepath"
+	"strings"
 
 	"baleassay/data"
 )
@@ -37,6 +41,9 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	case *partMB < 1 || *partMB > data.MaxBundleBytes>>20:
 		return usagef("--part-mb must be 1 to %d", data.MaxBundleBytes>>20)
 	}
+	if err := checkExportTarget(*to); err != nil {
+		return err
+	}
 	s, err := openExistingStore(*store)
 	if err != nil {
 		return err
@@ -62,5 +69,27 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(stdout, "wrote %s (bundle %d, part %d of %d)\n", f, res.Seqs[i], i+1, len(res.Files))
 	}
 	fmt.Fprintf(stdout, "%d events, %d bytes, signed by %s\n", res.Events, res.Bytes, key.Fingerprint())
+	return nil
+}
+
+// checkExportTarget refuses, before anything is written, a --to whose
+// folder does not exist, with a message that says what to do.
+func checkExportTarget(to string) error {
+	dir := to
+	if !strings.HasSuffix(to, string(os.PathSeparator)) {
+		if fi, err := os.Stat(to); err == nil && fi.IsDir() {
+			return nil
+		}
+		dir = filepath.Dir(to)
+	}
+	fi, err := os.Stat(dir)
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return fmt.Errorf("folder %s does not exist: plug in or mount the stick, or create the folder, then export again", dir)
+	case err != nil:
+		return fmt.Errorf("cannot use %s: %v", dir, err)
+	case !fi.IsDir():
+		return fmt.Errorf("%s is a file, not a folder: give a folder or a new file name for --to", dir)
+	}
 	return nil
 }

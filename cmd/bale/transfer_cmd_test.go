@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"errors"
 	"encoding/json"
 	"os"
 	"path/filepath"
@@ -173,5 +174,23 @@ func TestProgressBar(t *testing.T) {
 	p.show(data.Progress{Index: 1, Of: 1, Step: "applying", Events: 5})
 	if buf.Len() != 0 || p.tty {
 		t.Fatalf("quiet case printed %q (tty %v)", buf.String(), p.tty)
+	}
+}
+
+func TestExportToMissingFolder(t *testing.T) {
+	dir := t.TempDir()
+	var out, errb bytes.Buffer
+	if code := run([]string{"sites", "add", "--name", "Test Yard", "--lat", "45.1", "--lon", "4.7", "--store", dir}, &out, &errb); code != 0 {
+		t.Fatalf("sites add: %d %s", code, errb.String())
+	}
+	missing := filepath.Join(t.TempDir(), "no-stick") + string(os.PathSeparator)
+	out.Reset()
+	errb.Reset()
+	code := run([]string{"export", "--to", missing, "--store", dir}, &out, &errb)
+	if code != 1 || !strings.Contains(errb.String(), "does not exist") {
+		t.Errorf("export to a missing folder: exit %d, %q", code, errb.String())
+	}
+	if _, err := os.Stat(missing); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("export created %s", missing)
 	}
 }
