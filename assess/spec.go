@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"sort"
@@ -106,6 +107,9 @@ func ParseSpec(b []byte) (Spec, error) {
 	var s Spec
 	if err := dec.Decode(&s); err != nil {
 		var se *json.SyntaxError
+		if errors.Is(err, io.ErrUnexpectedEOF) {
+			return Spec{}, fmt.Errorf("spec JSON is malformed: it ends too soon; close every brace and bracket: %w", ErrBadSpec)
+		}
 		if errors.As(err, &se) {
 			return Spec{}, fmt.Errorf("spec JSON is malformed at byte %d: %v: %w", se.Offset, err, ErrBadSpec)
 		}
