@@ -51,7 +51,7 @@ type part struct {
 // path's name with -1, -2, ... before the extension. Each file is
 // written atomically (WriteFileAtomic) and only then recorded in the
 // store (bundle sequence, hash, destination mark), in one meta write per
-// part. If recording fails the file is removed again, so the device
+// part. If storing that record fails the file is removed again, so the device
 // sequence never has a file the store does not know about. Nothing new
 // to export writes no file.
 func Export(s *Store, key *DeviceKey, path string, opt ExportOptions) (ExportResult, error) {
