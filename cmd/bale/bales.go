@@ -41,16 +41,7 @@ type baleJSON struct {
 }
 
 func runBales(args []string, stdout, stderr io.Writer) error {
-	if len(args) == 0 {
-		return usagef("give a sub-command: add or list")
-	}
-	switch args[0] {
-	case "add":
-		return balesAdd(args[1:], stdout)
-	case "list":
-		return balesList(args[1:], stdout)
-	}
-	return usagef("unknown sub-command %q: use add or list", args[0])
+	return dispatch(args, stdout, sub("add", balesAdd), sub("list", balesList))
 }
 
 func parseDims(s string) (l, w, h float64, err error) {

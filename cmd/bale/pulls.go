@@ -34,16 +34,7 @@ type pullJSON struct {
 }
 
 func runPulls(args []string, stdout, stderr io.Writer) error {
-	if len(args) == 0 {
-		return usagef("give a sub-command: add or list")
-	}
-	switch args[0] {
-	case "add":
-		return pullsAdd(args[1:], stdout)
-	case "list":
-		return pullsList(args[1:], stdout)
-	}
-	return usagef("unknown sub-command %q: use add or list", args[0])
+	return dispatch(args, stdout, sub("add", pullsAdd), sub("list", pullsList))
 }
 
 // pullRecord converts a pull read from CSV to a record: categories with

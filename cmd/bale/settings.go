@@ -23,18 +23,7 @@ func init() {
 }
 
 func runSettings(args []string, stdout, stderr io.Writer) error {
-	if len(args) == 0 {
-		return usagef("give add, list or show")
-	}
-	switch args[0] {
-	case "add":
-		return settingsAdd(args[1:], stdout)
-	case "list":
-		return settingsList(args[1:], stdout)
-	case "show":
-		return settingsShow(args[1:], stdout)
-	}
-	return usagef("unknown sub-command %q: give add, list or show", args[0])
+	return dispatch(args, stdout, sub("add", settingsAdd), sub("list", settingsList), sub("show", settingsShow))
 }
 
 // settingKind maps the command's words to the records' setting kinds.

@@ -42,25 +42,10 @@ type hitJSON struct {
 }
 
 func runSites(args []string, stdout, stderr io.Writer) error {
-	if len(args) == 0 {
-		return usagef("give a sub-command: add, list, near, within, box, summary, move or remove")
-	}
-	sub, rest := args[0], args[1:]
-	switch sub {
-	case "add":
-		return sitesAdd(rest, stdout)
-	case "list":
-		return sitesList(rest, stdout)
-	case "near", "within", "box":
-		return sitesQuery(sub, rest, stdout)
-	case "summary":
-		return sitesSummary(rest, stdout)
-	case "move":
-		return sitesMove(rest, stdout)
-	case "remove":
-		return sitesRemove(rest, stdout)
-	}
-	return usagef("unknown sub-command %q: use add, list, near, within, box, summary, move or remove", sub)
+	return dispatch(args, stdout,
+		sub("add", sitesAdd), sub("list", sitesList),
+		subcommand{[]string{"near", "within", "box"}, sitesQuery},
+		sub("summary", sitesSummary), sub("move", sitesMove), sub("remove", sitesRemove))
 }
 
 func sitesAdd(args []string, stdout io.Writer) error {
