@@ -19,51 +19,6 @@ import (
 	"github.com/fxamacker/cbor/v2"
 )
 
-// xBenchRaws returns n valid events of invented grading weeks: one site
-// in 500 events, one bale in 8, the rest pulls weighed in six
-// categories (a yard grades several bales a day and takes pulls from
-// each).
-func xBenchRaws(tb testing.TB, n int, seed uint64) ([][]byte, []Event) {
-	return xBenchRawsFrom(tb, n, seed, xferNow.AddDate(-1, 0, 0).UnixMilli()) // 100,000 stamps span about 35 days: all in the past
-}
-
-// xBenchRawsFrom is xBenchRaws with the first clock stamp (and so the
-// UUIDv7 entity ids) starting at wallMs.
-func xBenchRawsFrom(tb testing.TB, n int, seed uint64, wallMs int64) ([][]byte, []Event) {
-	m := newXMaker(0x42, seed)
-	m.wall = wallMs
-	raws := make([][]byte, 0, n)
-	evs := make([]Event, 0, n)
-	var site, bale EntityID
-	for i := range n {
-		var e Event
-		switch {
-		case i%500 == 0:
-			site = m.entity()
-			e = m.site(site, fmt.Sprintf("Invented yard %d", i), 50+float64(i%900)/100, 3+float64(i%700)/100)
-		case i%8 == 1:
-			bale = m.entity()
-			e = m.bale(bale, site, 480+float64(i%120))
-		default:
-			e = m.pull(m.entity(), bale, fmt.Sprintf("P%d", i%7), 9.5)
-			for j, k := range []string{"pet_tinted", "hdpe", "pp", "labels", "paper"} {
-				e.Pull.Kg[k] = 0.05 * float64(j+1)
-			}
-		}
-		raws = append(raws, xEnc(tb, e))
-		evs = append(evs, e)
-	}
-	return raws, evs
-}
-
-func xRawBytes(raws [][]byte) int64 {
-	var n int64
-	for _, r := range raws {
-		n += int64(len(r))
-	}
-	return n
-}
-
 // xBenchSetup is shared by the benchmarks: 100,000 events, their bundle
 // and their JSON.
 type xBenchSetup struct {

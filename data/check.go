@@ -134,3 +134,10 @@ func checkRun(raws [][]byte, ids []EventID, out []checkedEvent, base int, now ti
 	}
 	return warns, 0, nil
 }
+
+// EventWarning is a warning about one event of a batch.
+type EventWarning struct {
+	Index int
+	ID    EventID
+	Warning
+}

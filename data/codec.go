@@ -103,6 +103,35 @@ func DecodeEvent(raw []byte) (Event, error) {
 	return e, nil
 }
 
+// DecodeTrusted decodes bytes that DecodeEvent accepted before (a store's
+// own events): the decoder's limits hold, the re-encoding check is left
+// out.
+func DecodeTrusted(raw []byte) (Event, error) {
+	var e Event
+	if err := decMode.Unmarshal(raw, &e); err != nil {
+		return Event{}, &DecodeError{Err: err}
+	}
+	return e, nil
+}
+
+// EncodePull encodes a pull record on its own (a draft being typed).
+func EncodePull(p PullRecord) ([]byte, error) {
+	b, err := encMode.Marshal(p)
+	if err != nil {
+		return nil, fmt.Errorf("data: encode pull: %w", err)
+	}
+	return b, nil
+}
+
+// DecodePull decodes what EncodePull wrote.
+func DecodePull(raw []byte) (PullRecord, error) {
+	var p PullRecord
+	if err := decMode.Unmarshal(raw, &p); err != nil {
+		return p, &DecodeError{Err: err}
+	}
+	return p, nil
+}
+
 // DiagnosticOf renders CBOR bytes in the diagnostic notation of RFC 8949 §8.
 func DiagnosticOf(raw []byte) (string, error) {
 	dm, err := cbor.DiagOptions{ByteStringEncoding: cbor.ByteStringBase16Encoding}.DiagMode()

@@ -13,12 +13,12 @@ import (
 
 // PutDraft stores (or replaces) a draft pull under a name.
 func (s *Store) PutDraft(name string, p PullRecord) error {
-	if err := checkText("draft name", name, maxNameRunes, true); err != nil {
+	if err := CheckName("draft name", name); err != nil {
 		return err
 	}
-	raw, err := encMode.Marshal(p)
+	raw, err := EncodePull(p)
 	if err != nil {
-		return fmt.Errorf("data: encode draft: %w", err)
+		return err
 	}
 	return s.writeTx(func(tx *bolt.Tx) error { return tx.Bucket(bDrafts).Put([]byte(name), raw) })
 }
@@ -31,7 +31,9 @@ func (s *Store) Draft(name string) (p PullRecord, ok bool, err error) {
 			return nil
 		}
 		ok = true
-		return decMode.Unmarshal(raw, &p)
+		var err error
+		p, err = DecodePull(raw)
+		return err
 	})
 	return p, ok, err
 }

@@ -81,6 +81,3 @@ func TestHaversineAgreesWithReferenceFormulas(t *testing.T) {
 		t.Errorf("pole to pole: %.9f km", d)
 	}
 }
-
-// randLat draws a latitude uniform on the sphere: φ = asin(2u − 1).
-func randLat(r *rand.Rand) float64 { return math.Asin(2*r.Float64()-1) / degToRad }

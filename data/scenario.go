@@ -9,7 +9,6 @@ import (
 	"time"
 
 	"baleassay/assess"
-	bolt "go.etcd.io/bbolt"
 )
 
 // The demo scenario: an invented region (the "Vale of Orrin") with twelve
@@ -181,20 +180,8 @@ func WriteDemo(s *Store, o DemoOptions) (DemoSummary, error) {
 		Site: &SiteRecord{Name: d.name + " (north gate)", Kind: d.kind, Lat: math.Round((d.lat+0.004)*1e5) / 1e5, Lon: d.lon, Notes: d.notes}}); err != nil {
 		return sum, err
 	}
-	items := make([]checkedEvent, len(raws))
-	for i, raw := range raws {
-		e, err := DecodeEvent(raw)
-		if err != nil {
-			return sum, err
-		}
-		if _, err := ValidateEventAt(e, end.Add(time.Hour)); err != nil {
-			return sum, fmt.Errorf("data: demo event %d: %w", i, err)
-		}
-		items[i] = checkedOf(IDOf(raw), raw, e)
-	}
-	res, err := s.commit(items, nil, true, func(tx *bolt.Tx) error {
-		return tx.Bucket(bMeta).Put([]byte(metaDemo), []byte(fmt.Sprintf("seed %d, %d weeks to %s", o.Seed, o.Weeks, end.Format("2006-01-02"))))
-	})
+	note := fmt.Sprintf("seed %d, %d weeks to %s", o.Seed, o.Weeks, end.Format("2006-01-02"))
+	res, err := s.WriteDemo(raws, end.Add(time.Hour), note)
 	sum.Events = res.New
 	return sum, err
 }

@@ -2,6 +2,7 @@ package data
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -127,30 +128,25 @@ func (ix *SiteIndex) removeLocked(id EntityID) bool {
 	return ix.tree.Delete(o)
 }
 
-type siteUpdate struct {
-	site   IndexedSite
-	remove bool
+// Update is one change to the index: a site put (added or moved) or
+// removed.
+type Update struct {
+	Site   IndexedSite
+	Remove bool
 }
 
-func siteUpdateOf(st EntityState) siteUpdate {
-	cur, ok := st.Current()
-	if !ok || cur.Site == nil {
-		return siteUpdate{site: IndexedSite{ID: st.ID}, remove: true}
-	}
-	return siteUpdate{site: IndexedSite{ID: st.ID, Name: cur.Site.Name, Lat: cur.Site.Lat, Lon: cur.Site.Lon}}
-}
-
-func (ix *SiteIndex) apply(ups []siteUpdate) {
+// Apply makes a batch of changes under one lock.
+func (ix *SiteIndex) Apply(ups []Update) {
 	if len(ups) == 0 {
 		return
 	}
 	ix.mu.Lock()
 	defer ix.mu.Unlock()
 	for _, u := range ups {
-		if u.remove {
-			ix.removeLocked(u.site.ID)
+		if u.Remove {
+			ix.removeLocked(u.Site.ID)
 		} else {
-			ix.putLocked(u.site)
+			ix.putLocked(u.Site)
 		}
 	}
 }
@@ -435,3 +431,6 @@ func boxAABB(south, west, north, east float64) (lo, hi [3]float64) {
 	}
 	return
 }
+
+// ErrBadQuery is the sentinel of a query with invalid arguments.
+var ErrBadQuery = errors.New("data: invalid query")

@@ -333,3 +333,36 @@ func pairKey(a EntityID, id EventID) []byte {
 	k = append(k, a[:]...)
 	return append(k, id[:]...)
 }
+
+// SharedHash is SHA-256 over everything that two stores which imported
+// the same bundles must agree on, whatever the order: every bucket but
+// the local insertion numbers, and of the meta keys only the sequence
+// records that imports write ("xfer/seen/", "xfer/b/"). Device id,
+// creation time, clock and the exporter's own records are local.
+func (s *Store) SharedHash() ([32]byte, error) {
+	var sum [32]byte
+	err := s.view(func(tx *bolt.Tx) error {
+		h := sha256.New()
+		err := tx.ForEach(func(name []byte, b *bolt.Bucket) error {
+			if bytes.Equal(name, bSeq) {
+				return nil
+			}
+			h.Write(name)
+			return b.ForEach(func(k, v []byte) error {
+				if bytes.Equal(name, bMeta) && !bytes.HasPrefix(k, []byte(MetaTransferPrefix+"seen/")) && !bytes.HasPrefix(k, []byte(MetaTransferPrefix+"b/")) {
+					return nil
+				}
+				var n [8]byte
+				binary.BigEndian.PutUint32(n[:4], uint32(len(k)))
+				binary.BigEndian.PutUint32(n[4:], uint32(len(v)))
+				h.Write(n[:])
+				h.Write(k)
+				h.Write(v)
+				return nil
+			})
+		})
+		copy(sum[:], h.Sum(nil))
+		return err
+	})
+	return sum, err
+}

@@ -17,13 +17,6 @@ type ApplyResult struct {
 	Warnings []EventWarning
 }
 
-// EventWarning is a warning about one event of a batch.
-type EventWarning struct {
-	Index int
-	ID    EventID
-	Warning
-}
-
 // ApplyRaw adds encoded events (from an import) and meta values in one
 // committed and synced transaction, all or nothing. Every event is first
 // decoded strictly (DecodeEvent), hashed and validated (ValidateEvent),

@@ -107,7 +107,7 @@ func (s *Store) commit(items []checkedEvent, meta map[string][]byte, observe boo
 		return ApplyResult{}, err
 	}
 	var res ApplyResult
-	var siteUpdates []siteUpdate
+	var siteUpdates []Update
 	err := s.db.Update(func(tx *bolt.Tx) error {
 		res = ApplyResult{}
 		siteUpdates = siteUpdates[:0]
@@ -173,7 +173,7 @@ func (s *Store) commit(items []checkedEvent, meta map[string][]byte, observe boo
 		s.failed = err
 		return ApplyResult{}, &WriteError{Err: err}
 	}
-	s.sites.apply(siteUpdates)
+	s.sites.Apply(siteUpdates)
 	return res, nil
 }
 

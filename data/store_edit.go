@@ -59,15 +59,15 @@ func (s *Store) Resolve(ent EntityID, keep EventID) (EventID, error) {
 //
 //	entity id → lat (float64 bits, BE) ‖ lon (float64 bits, BE) ‖ name
 
-func putSiteCache(tx *bolt.Tx, u siteUpdate) error {
+func putSiteCache(tx *bolt.Tx, u Update) error {
 	b := tx.Bucket(bSites)
-	if u.remove {
-		return b.Delete(u.site.ID[:])
+	if u.Remove {
+		return b.Delete(u.Site.ID[:])
 	}
-	v := make([]byte, 16, 16+len(u.site.Name))
-	binary.BigEndian.PutUint64(v, math.Float64bits(u.site.Lat))
-	binary.BigEndian.PutUint64(v[8:], math.Float64bits(u.site.Lon))
-	return b.Put(u.site.ID[:], append(v, u.site.Name...))
+	v := make([]byte, 16, 16+len(u.Site.Name))
+	binary.BigEndian.PutUint64(v, math.Float64bits(u.Site.Lat))
+	binary.BigEndian.PutUint64(v[8:], math.Float64bits(u.Site.Lon))
+	return b.Put(u.Site.ID[:], append(v, u.Site.Name...))
 }
 
 // rebuildSiteCache fills the sites bucket from the events (a store made
@@ -107,4 +107,13 @@ func (s *Store) loadSites() error {
 	}
 	s.sites = NewSiteIndex(sites)
 	return nil
+}
+
+// siteUpdateOf is the index change an entity's new state makes.
+func siteUpdateOf(st EntityState) Update {
+	cur, ok := st.Current()
+	if !ok || cur.Site == nil {
+		return Update{Site: IndexedSite{ID: st.ID}, Remove: true}
+	}
+	return Update{Site: IndexedSite{ID: st.ID, Name: cur.Site.Name, Lat: cur.Site.Lat, Lon: cur.Site.Lon}}
 }

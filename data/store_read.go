@@ -11,8 +11,8 @@ import (
 
 // decodeStored decodes bytes the store itself checked on the way in.
 func decodeStored(id EventID, raw []byte) (Stamped, error) {
-	var e Event
-	if err := decMode.Unmarshal(raw, &e); err != nil {
+	e, err := DecodeTrusted(raw)
+	if err != nil {
 		return Stamped{}, fmt.Errorf("data: stored event %s: %w", id.Short(), err)
 	}
 	return Stamped{ID: id, Event: e}, nil

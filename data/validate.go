@@ -149,6 +149,10 @@ func checkFinite(field string, x float64) error {
 	return nil
 }
 
+// CheckName checks a required short text (a name or label): not blank,
+// UTF-8, at most 200 characters.
+func CheckName(field, s string) error { return checkText(field, s, maxNameRunes, true) }
+
 func checkText(field, s string, max int, required bool) error {
 	if required && strings.TrimSpace(s) == "" {
 		return &FieldError{Field: field, Err: ErrRequired}
