@@ -2,7 +2,9 @@ package store
 
 import (
 	"baleassay/data/record"
+	"errors"
 	"fmt"
+	"runtime/debug"
 
 	bolt "go.etcd.io/bbolt"
 )
@@ -21,15 +23,35 @@ func (s *Store) PutDraft(name string, p record.PullRecord) error {
 	if err != nil {
 		return err
 	}
-	return s.writeTx(func(tx *bolt.Tx) error { return tx.Bucket(bDrafts).Put([]byte(name), raw) })
+	return s.writeTx(func(tx *bolt.Tx, c *counts) error {
+		b, k := tx.Bucket(bDrafts), []byte(name)
+		if b.Get(k) == nil {
+			c.Drafts++
+		}
+		return b.Put(k, sealCRC(bDrafts, k, raw))
+	})
+}
+
+// deleteDraft removes a draft inside a write, keeping the count.
+func deleteDraft(tx *bolt.Tx, c *counts, name string) error {
+	b, k := tx.Bucket(bDrafts), []byte(name)
+	if b.Get(k) != nil {
+		c.Drafts--
+	}
+	return b.Delete(k)
 }
 
 // Draft returns a draft; ok is false when there is none of that name.
 func (s *Store) Draft(name string) (p record.PullRecord, ok bool, err error) {
 	err = s.view(func(tx *bolt.Tx) error {
-		raw := tx.Bucket(bDrafts).Get([]byte(name))
-		if raw == nil {
+		k := []byte(name)
+		sealed := tx.Bucket(bDrafts).Get(k)
+		if sealed == nil {
 			return nil
+		}
+		raw, good := openCRC(bDrafts, k, sealed)
+		if !good {
+			return damagef("draft %q does not verify", name)
 		}
 		ok = true
 		var err error
@@ -43,17 +65,29 @@ func (s *Store) Draft(name string) (p record.PullRecord, ok bool, err error) {
 func (s *Store) DraftNames() ([]string, error) {
 	var out []string
 	err := s.view(func(tx *bolt.Tx) error {
-		return tx.Bucket(bDrafts).ForEach(func(k, _ []byte) error {
+		c, err := loadCounts(tx)
+		if err != nil {
+			return err
+		}
+		var oc orderCheck
+		err = tx.Bucket(bDrafts).ForEach(func(k, v []byte) error {
+			if _, ok := openCRC(bDrafts, k, v); !ok || !oc.next(k) {
+				return damagef("draft %q does not verify", k)
+			}
 			out = append(out, string(k))
 			return nil
 		})
+		if err == nil && uint64(len(out)) != c.Drafts {
+			err = damagef("%d drafts found, the counts say %d", len(out), c.Drafts)
+		}
+		return err
 	})
 	return out, err
 }
 
 // DiscardDraft removes a draft.
 func (s *Store) DiscardDraft(name string) error {
-	return s.writeTx(func(tx *bolt.Tx) error { return tx.Bucket(bDrafts).Delete([]byte(name)) })
+	return s.writeTx(func(tx *bolt.Tx, c *counts) error { return deleteDraft(tx, c, name) })
 }
 
 // SaveDraft validates the draft as a new pull, saves it and removes the
@@ -66,8 +100,8 @@ func (s *Store) SaveDraft(name string, opt SaveOptions) (record.EntityID, record
 	if !ok {
 		return record.EntityID{}, record.EventID{}, fmt.Errorf("%w: draft %q", ErrNotFound, name)
 	}
-	ids, evs, err := s.save([]record.Event{{Kind: record.KindPull, Pull: &p}}, opt, func(tx *bolt.Tx) error {
-		return tx.Bucket(bDrafts).Delete([]byte(name))
+	ids, evs, err := s.save([]record.Event{{Kind: record.KindPull, Pull: &p}}, opt, func(tx *bolt.Tx, c *counts) error {
+		return deleteDraft(tx, c, name)
 	})
 	if err != nil {
 		return record.EntityID{}, record.EventID{}, err
@@ -77,14 +111,24 @@ func (s *Store) SaveDraft(name string, opt SaveOptions) (record.EntityID, record
 
 // writeTx runs a write transaction outside the event path, with the same
 // failure rule: a disk-side error stops the store.
-func (s *Store) writeTx(fn func(tx *bolt.Tx) error) error {
+func (s *Store) writeTx(fn func(tx *bolt.Tx, c *counts) error) (err error) {
 	s.wmu.Lock()
 	defer s.wmu.Unlock()
 	if err := s.writableLocked(); err != nil {
 		return err
 	}
-	err := s.db.Update(func(tx *bolt.Tx) error {
-		if err := fn(tx); err != nil {
+	defer s.nameDamage(&err)
+	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
+	defer recoverDamage(&err)
+	err = s.db.Update(func(tx *bolt.Tx) error {
+		c, err := loadCounts(tx)
+		if err != nil {
+			return err
+		}
+		if err := fn(tx, &c); err != nil {
+			return err
+		}
+		if err := putCounts(tx, c); err != nil {
 			return err
 		}
 		if s.hook != nil {
@@ -92,6 +136,9 @@ func (s *Store) writeTx(fn func(tx *bolt.Tx) error) error {
 		}
 		return nil
 	})
+	if errors.Is(err, ErrDamaged) {
+		return err
+	}
 	if err != nil {
 		s.failed = err
 		return &WriteError{Err: err}

@@ -16,6 +16,9 @@ var (
 	ErrNotFound     = errors.New("data: not found")
 	ErrMetaKey      = errors.New("data: meta key outside the allowed prefix")
 	ErrAmbiguousID  = errors.New("data: id prefix matches more than one entity")
+	ErrDamaged      = errors.New("data: the store is damaged")
+	ErrReadOnly     = errors.New("data: the store was opened read-only")
+	ErrNoStore      = errors.New("data: no records store in this folder")
 )
 
 // WarningsError refuses a save whose events have warnings the user has
@@ -51,3 +54,41 @@ type dataError struct{ err error }
 
 func (e dataError) Error() string { return e.err.Error() }
 func (e dataError) Unwrap() error { return e.err }
+
+// DamagedError reports that what the store read from its file does not
+// hold together: a page, an index entry or an event's bytes that no
+// longer match what was written (a failing disk, a flipped bit, a copy
+// cut short). Nothing was changed by the operation that found it. It
+// wraps ErrDamaged.
+type DamagedError struct {
+	Dir    string
+	Detail string // what was found, for the check and for a bug report
+}
+
+func (e *DamagedError) Error() string {
+	where := "the store"
+	if e.Dir != "" {
+		where = "the store at " + e.Dir
+	}
+	return fmt.Sprintf("%s is damaged (%s); nothing was changed. Run 'bale store check' to see what is affected, "+
+		"then 'bale store rescue NEW-FOLDER' to copy every record that still verifies into a new store; "+
+		"keep this folder until you have checked the rescued one, and ask the devices that sent records to export again to refill what was lost",
+		where, e.Detail)
+}
+
+func (e *DamagedError) Unwrap() error { return ErrDamaged }
+
+// damagef builds a *DamagedError without the folder (the store boundary
+// fills it in).
+func damagef(format string, args ...any) error {
+	return &DamagedError{Detail: fmt.Sprintf(format, args...)}
+}
+
+// ReadOnlyError refuses a write on a store opened for reading.
+type ReadOnlyError struct{ Dir string }
+
+func (e *ReadOnlyError) Error() string {
+	return fmt.Sprintf("the store at %s was opened for reading only; open it for writing (it must not be on read-only media)", e.Dir)
+}
+
+func (e *ReadOnlyError) Unwrap() error { return ErrReadOnly }

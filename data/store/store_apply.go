@@ -67,7 +67,7 @@ func (s *Store) Save(evs []record.Event, opt SaveOptions) ([]record.EventID, err
 }
 
 // save is Save with an extra step run inside the transaction.
-func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(tx *bolt.Tx) error) ([]record.EventID, []record.Event, error) {
+func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(tx *bolt.Tx, c *counts) error) ([]record.EventID, []record.Event, error) {
 	items := make([]record.Checked, len(evs))
 	var warns []record.Warning
 	now := s.now()
@@ -113,6 +113,9 @@ func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(tx *bolt.Tx
 func (s *Store) writableLocked() error {
 	if s.closed {
 		return ErrClosed
+	}
+	if s.readOnly {
+		return &ReadOnlyError{Dir: s.dir}
 	}
 	if s.failed != nil {
 		return &WriteError{Err: s.failed}

@@ -4,77 +4,313 @@ import (
 	"baleassay/data/geo"
 	"baleassay/data/record"
 	"bytes"
+	"encoding/binary"
 	"errors"
 	"fmt"
+	"runtime/debug"
 	"slices"
 
 	bolt "go.etcd.io/bbolt"
 )
 
-// seqFill is the fill percent of the seq bucket: its keys only ever grow
+// logFill is the fill percent of the log bucket: its keys only ever grow
 // (local insertion numbers), so its pages can be filled before a split
 // instead of bbolt's default half, as bbolt's documentation advises for
 // append-only buckets (Bucket.FillPercent).
-const seqFill = 1.0
+const logFill = 1.0
 
-// kindValues are the one-byte values of the entity bucket, shared so that
-// a write does not allocate one per entity.
-var kindValues = func() (v [256][]byte) {
-	for i := range v {
-		v[i] = []byte{byte(i)}
-	}
-	return
-}()
+// entPlan is what one write does to one entity.
+type entPlan struct {
+	id      record.EntityID
+	rec     entRecord // as stored; zero for a new entity
+	stored  bool
+	fresh   []int                       // items new to the store, in batch order
+	targets map[record.EventID]struct{} // ids the fresh events supersede
+}
 
 // plan is the work of one write, computed before anything is put.
 type plan struct {
-	fresh   []int             // indexes of new items, in batch order
-	newEnts []record.EntityID // entities not yet in the store, in batch order
-	newKind []record.Kind     // the kind of each of newEnts
-	order   []record.EntityID // entities touched, in order of first appearance
-	before  map[record.EntityID]int
+	fresh []int      // indexes of new items, in batch order
+	ents  []*entPlan // entities touched, in order of first appearance
 }
 
 // planWrite walks the items in batch order, exactly as one insert after
 // another would: events already stored, or repeated earlier in the batch,
 // are present; an event whose entity is stored (or made earlier in the
-// batch) under another kind fails with its index.
+// batch) under another kind fails with its index. It reads one entity
+// record per entity and one history key per event.
 func planWrite(tx *bolt.Tx, items []record.Checked) (plan, int, error) {
-	evB, entB := tx.Bucket(bEvents), tx.Bucket(bEntity)
-	p := plan{before: make(map[record.EntityID]int)}
+	entB := tx.Bucket(bEnt)
+	var p plan
+	byEnt := make(map[record.EntityID]*entPlan)
 	seen := make(map[record.EventID]struct{}, len(items))
-	made := make(map[record.EntityID]record.Kind)
 	present := 0
 	for i := range items {
 		it := &items[i]
-		if _, dup := seen[it.ID]; dup || evB.Get(it.ID[:]) != nil {
+		if _, dup := seen[it.ID]; dup {
+			present++
+			continue
+		}
+		ep := byEnt[it.Entity]
+		if ep == nil {
+			ep = &entPlan{id: it.Entity, rec: entRecord{Kind: it.Kind}}
+			k := recKey(it.Entity)
+			if v := entB.Get(k); v != nil {
+				r, ok := decodeEntRecord(k, v)
+				if !ok {
+					return p, 0, damagef("the record of entity %s does not verify", it.Entity)
+				}
+				ep.rec, ep.stored = r, true
+			}
+			byEnt[it.Entity] = ep
+			p.ents = append(p.ents, ep)
+		}
+		if ep.stored && entB.Get(entKey(it.Entity, tagHistory, it.ID)) != nil {
+			seen[it.ID] = struct{}{}
 			present++
 			continue
 		}
 		seen[it.ID] = struct{}{}
-		ent := it.Entity
-		k, inBatch := made[ent]
-		if !inBatch {
-			if v := entB.Get(ent[:]); v != nil {
-				k = record.Kind(v[0])
-			} else {
-				made[ent] = it.Kind
-				k = it.Kind
-				p.newEnts = append(p.newEnts, ent)
-				p.newKind = append(p.newKind, it.Kind)
-			}
-		}
-		if k != it.Kind {
+		if ep.rec.Kind != it.Kind {
 			return p, 0, dataError{&record.EventError{Index: i, ID: it.ID, Err: &record.FieldError{Field: "kind",
-				Value: fmt.Sprintf("%s (entity %s is a %s)", it.Kind, ent, k), Err: record.ErrKindMismatch}}}
+				Value: fmt.Sprintf("%s (entity %s is a %s)", it.Kind, it.Entity, ep.rec.Kind), Err: record.ErrKindMismatch}}}
 		}
-		if _, ok := p.before[ent]; !ok {
-			p.before[ent] = -1 // counted below, before any head changes
-			p.order = append(p.order, ent)
-		}
+		ep.fresh = append(ep.fresh, i)
 		p.fresh = append(p.fresh, i)
 	}
 	return p, present, nil
+}
+
+// commit inserts the items and meta values in one bbolt transaction. The
+// result is that of inserting the items one after another in batch order
+// (local sequence numbers follow the batch); each bucket is written in
+// its key order, and every entity the write touched is checked whole
+// before the commit (verifyEntity), so a damaged page is reported, not
+// written over.
+func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe bool, extra func(tx *bolt.Tx, c *counts) error) (res ApplyResult, err error) {
+	s.wmu.Lock()
+	defer s.wmu.Unlock()
+	if err := s.writableLocked(); err != nil {
+		return ApplyResult{}, err
+	}
+	var siteUpdates []geo.Update
+	defer s.nameDamage(&err)
+	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
+	defer recoverDamage(&err)
+	err = s.db.Update(func(tx *bolt.Tx) error {
+		res = ApplyResult{}
+		siteUpdates = siteUpdates[:0]
+		c, err := loadCounts(tx)
+		if err != nil {
+			return err
+		}
+		if err := checkLogEnd(tx, c); err != nil {
+			return err
+		}
+		p, present, err := planWrite(tx, items)
+		if err != nil {
+			return err
+		}
+		res.Present = present
+		if err := writeEvents(tx, items, p, &c, &res); err != nil {
+			return err
+		}
+		if observe {
+			for _, i := range p.fresh {
+				s.clock.Observe(items[i].Clock)
+			}
+		}
+		res.New = len(p.fresh)
+		m := tx.Bucket(bMeta)
+		for _, k := range record.SortedKeys(meta) {
+			if err := metaPut(m, &c, k, meta[k]); err != nil {
+				return err
+			}
+		}
+		if res.New > 0 {
+			if err := metaPut(m, &c, metaClock, s.clock.Last().Bytes()); err != nil {
+				return err
+			}
+		}
+		for _, ep := range p.ents {
+			if len(ep.fresh) == 0 {
+				continue
+			}
+			if err := verifyEntity(tx, ep.id); err != nil {
+				return err
+			}
+			if ep.rec.Kind == record.KindSite {
+				st, err := stateTx(tx, ep.id)
+				if err != nil {
+					return err
+				}
+				u := siteUpdateOf(st)
+				if err := putSiteCache(tx, &c, u); err != nil {
+					return err
+				}
+				siteUpdates = append(siteUpdates, u)
+			}
+		}
+		if extra != nil {
+			if err := extra(tx, &c); err != nil {
+				return err
+			}
+		}
+		if err := putCounts(tx, c); err != nil {
+			return err
+		}
+		if s.hook != nil {
+			if err := s.hook(); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		var de dataError
+		switch {
+		case errors.As(err, &de):
+			return ApplyResult{}, de.err
+		case errors.Is(err, ErrDamaged):
+			return ApplyResult{}, err
+		}
+		s.failed = err
+		return ApplyResult{}, &WriteError{Err: err}
+	}
+	if s.sites != nil {
+		s.sites.Apply(siteUpdates)
+	}
+	return res, nil
+}
+
+// entOp is one put or delete in bucket ent.
+type entOp struct {
+	key, val []byte
+	del      bool
+}
+
+// writeEvents puts the new items of p: the log and the id index in
+// insertion order, then every change to bucket ent sorted by key, so a
+// write visits each page it changes once. The head index ends as one
+// insert after another would leave it: a new event is a head unless some
+// event (stored, or new in this batch) supersedes it, and every event a
+// new one supersedes stops being a head.
+func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *ApplyResult) error {
+	if len(p.fresh) == 0 {
+		return nil
+	}
+	logB, idB, entB := tx.Bucket(bLog), tx.Bucket(bIDs), tx.Bucket(bEnt)
+	logB.FillPercent = logFill
+	var ar arena
+	first := c.Events + 1
+	seqOf := make(map[int]uint64, len(p.fresh))
+	for n, i := range p.fresh { // batch order: ascending keys
+		it := &items[i]
+		seq := first + uint64(n)
+		seqOf[i] = seq
+		v := ar.alloc(32 + len(it.Raw))
+		copy(v, it.ID[:])
+		copy(v[32:], it.Raw)
+		if err := logB.Put(binary.BigEndian.AppendUint64(ar.alloc(0), seq), v); err != nil {
+			return err
+		}
+	}
+	c.Events += uint64(len(p.fresh))
+	idKeys := make([][]byte, len(p.fresh))
+	idVals := make([][]byte, len(p.fresh))
+	for n, i := range p.fresh {
+		idKeys[n] = idKey(seqOf[i], items[i].ID)
+		idVals[n] = binary.BigEndian.AppendUint64(ar.alloc(0), seqOf[i])
+	}
+	if err := putSorted(idB, idKeys, idVals); err != nil {
+		return err
+	}
+	var ops []entOp
+	kindB, confB := tx.Bucket(bKinds), tx.Bucket(bConflicts)
+	var newKinds, confPut, confDel [][]byte
+	for _, ep := range p.ents {
+		if len(ep.fresh) == 0 {
+			continue
+		}
+		e := ep.id
+		ep.targets = make(map[record.EventID]struct{})
+		for _, i := range ep.fresh {
+			it := &items[i]
+			ops = append(ops, entOp{key: entKey(e, tagHistory, it.ID), val: binary.BigEndian.AppendUint64(ar.alloc(0), seqOf[i])})
+			for _, t := range it.Supersedes {
+				k := supByKey(e, t, it.ID)
+				ops = append(ops, entOp{key: k, val: sealCRC(bEnt, k, nil)})
+				ep.targets[t] = struct{}{}
+			}
+		}
+		added, removed := uint64(0), uint64(0)
+		for _, i := range ep.fresh {
+			it := &items[i]
+			if _, sup := ep.targets[it.ID]; sup || (ep.stored && hasPrefix(entB, entKey(e, tagSupBy, it.ID))) {
+				continue
+			}
+			ops = append(ops, entOp{key: entKey(e, tagHead, it.ID), val: binary.BigEndian.AppendUint64(ar.alloc(0), seqOf[i])})
+			added++
+		}
+		if ep.stored {
+			for _, t := range sortedIDs(ep.targets) {
+				k := entKey(e, tagHead, t)
+				if entB.Get(k) != nil {
+					ops = append(ops, entOp{key: k, del: true})
+					removed++
+				}
+			}
+		}
+		before := ep.rec.Heads
+		if removed > before+added {
+			return damagef("entity %s: its record counts fewer heads than are stored", e)
+		}
+		rec := entRecord{Kind: ep.rec.Kind, Events: ep.rec.Events + uint64(len(ep.fresh)), Heads: before + added - removed}
+		rk := recKey(e)
+		ops = append(ops, entOp{key: rk, val: rec.encode(rk)})
+		if !ep.stored {
+			newKinds = append(newKinds, kindKey(rec.Kind, e))
+			if int(rec.Kind) >= maxKinds {
+				return fmt.Errorf("data: kind %d is beyond what the store counts", rec.Kind)
+			}
+			c.Entities[rec.Kind]++
+		}
+		switch after := rec.Heads; {
+		case after > 1 && before <= 1:
+			res.Conflicts++
+			confPut = append(confPut, bytes.Clone(e[:]))
+			c.Conflicts++
+		case after <= 1 && before > 1:
+			confDel = append(confDel, bytes.Clone(e[:]))
+			c.Conflicts--
+		}
+		ep.rec = rec
+	}
+	slices.SortFunc(ops, func(a, b entOp) int { return bytes.Compare(a.key, b.key) })
+	for _, op := range ops {
+		var err error
+		if op.del {
+			err = entB.Delete(op.key)
+		} else {
+			err = entB.Put(op.key, op.val)
+		}
+		if err != nil {
+			return err
+		}
+	}
+	if err := putSorted(kindB, newKinds, nil); err != nil {
+		return err
+	}
+	if err := putSorted(confB, confPut, nil); err != nil {
+		return err
+	}
+	slices.SortFunc(confDel, bytes.Compare)
+	for _, k := range confDel {
+		if err := confB.Delete(k); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // putSorted puts keys (with their values) in key order: bbolt inserts in
@@ -87,7 +323,7 @@ func putSorted(b *bolt.Bucket, keys [][]byte, vals [][]byte) error {
 	}
 	slices.SortFunc(idx, func(a, c int) int { return bytes.Compare(keys[a], keys[c]) })
 	for _, i := range idx {
-		var v []byte
+		v := []byte{}
 		if vals != nil {
 			v = vals[i]
 		}
@@ -98,192 +334,34 @@ func putSorted(b *bolt.Bucket, keys [][]byte, vals [][]byte) error {
 	return nil
 }
 
-// commit inserts the items and meta values in one bbolt transaction. The
-// result is that of inserting the items one after another in batch order
-// (local sequence numbers follow the batch); each bucket is written in
-// its key order.
-func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe bool, extra func(tx *bolt.Tx) error) (ApplyResult, error) {
-	s.wmu.Lock()
-	defer s.wmu.Unlock()
-	if err := s.writableLocked(); err != nil {
-		return ApplyResult{}, err
-	}
-	var res ApplyResult
-	var siteUpdates []geo.Update
-	err := s.db.Update(func(tx *bolt.Tx) error {
-		res = ApplyResult{}
-		siteUpdates = siteUpdates[:0]
-		p, present, err := planWrite(tx, items)
-		if err != nil {
-			return err
-		}
-		res.Present = present
-		if err := writeEvents(tx, items, p); err != nil {
-			return err
-		}
-		headB, entB := tx.Bucket(bHeads), tx.Bucket(bEntity)
-		for _, i := range p.fresh {
-			if observe {
-				s.clock.Observe(items[i].Clock)
-			}
-		}
-		res.New = len(p.fresh)
-		m := tx.Bucket(bMeta)
-		for _, k := range record.SortedKeys(meta) {
-			if err := m.Put([]byte(k), bytes.Clone(meta[k])); err != nil {
-				return err
-			}
-		}
-		if res.New > 0 {
-			if err := m.Put([]byte(metaClock), s.clock.Last().Bytes()); err != nil {
-				return err
-			}
-		}
-		for _, ent := range p.order {
-			if after := countPrefix(headB, ent[:]); after > 1 && p.before[ent] <= 1 {
-				res.Conflicts++
-			}
-			if record.Kind(entB.Get(ent[:])[0]) == record.KindSite {
-				st, err := stateTx(tx, ent)
-				if err != nil {
-					return err
-				}
-				u := siteUpdateOf(st)
-				if err := putSiteCache(tx, u); err != nil {
-					return err
-				}
-				siteUpdates = append(siteUpdates, u)
-			}
-		}
-		if extra != nil {
-			if err := extra(tx); err != nil {
-				return err
-			}
-		}
-		if s.hook != nil {
-			if err := s.hook(); err != nil {
-				return err
-			}
-		}
-		return nil
-	})
-	if err != nil {
-		var de dataError
-		if errors.As(err, &de) {
-			return ApplyResult{}, de.err
-		}
-		s.failed = err
-		return ApplyResult{}, &WriteError{Err: err}
-	}
-	s.sites.Apply(siteUpdates)
-	return res, nil
+// hasPrefix reports whether b holds a key starting with prefix.
+func hasPrefix(b *bolt.Bucket, prefix []byte) bool {
+	k, _ := b.Cursor().Seek(prefix)
+	return k != nil && bytes.HasPrefix(k, prefix)
 }
 
-// writeEvents puts the new items of p into every index, bucket by bucket
-// in key order. The head index ends as one insert after another would
-// leave it: a new event is a head unless some event (stored, or new in
-// this batch) supersedes it, and every event a new one supersedes stops
-// being a head.
-func writeEvents(tx *bolt.Tx, items []record.Checked, p plan) error {
-	evB, seqB, entB := tx.Bucket(bEvents), tx.Bucket(bSeq), tx.Bucket(bEntity)
-	byB, headB, supB := tx.Bucket(bByEntity), tx.Bucket(bHeads), tx.Bucket(bSupBy)
-	if len(p.fresh) == 0 {
-		return nil
+func sortedIDs(set map[record.EventID]struct{}) []record.EventID {
+	out := make([]record.EventID, 0, len(set))
+	for id := range set {
+		out = append(out, id)
 	}
-	var seq uint64
-	if k, _ := seqB.Cursor().Last(); k != nil {
-		seq = beUint64(k)
-	}
-	seqB.FillPercent = seqFill
-	seqKeys := make([]byte, 8*len(p.fresh))
-	for n, i := range p.fresh { // batch order: ascending keys
-		k := seqKeys[8*n : 8*n+8]
-		putBE(k, seq+uint64(n)+1)
-		if err := seqB.Put(k, items[i].ID[:]); err != nil {
-			return err
-		}
-	}
-	keys := make([][]byte, len(p.fresh))
-	vals := make([][]byte, len(p.fresh))
-	for n, i := range p.fresh {
-		keys[n], vals[n] = items[i].ID[:], items[i].Raw
-	}
-	if err := putSorted(evB, keys, vals); err != nil {
-		return err
-	}
-	entKeys := make([][]byte, len(p.newEnts))
-	entVals := make([][]byte, len(p.newEnts))
-	for n := range p.newEnts {
-		entKeys[n], entVals[n] = p.newEnts[n][:], kindValues[p.newKind[n]]
-	}
-	if err := putSorted(entB, entKeys, entVals); err != nil {
-		return err
-	}
-	for _, ent := range p.order { // heads before this write, per entity
-		p.before[ent] = countPrefix(headB, ent[:])
-	}
-	pairs := make([][]byte, len(p.fresh))
-	pairBuf := make([]byte, 48*len(p.fresh))
-	for n, i := range p.fresh {
-		k := pairBuf[48*n : 48*n+48]
-		copy(k, items[i].Entity[:])
-		copy(k[16:], items[i].ID[:])
-		pairs[n] = k
-	}
-	if err := putSorted(byB, pairs, nil); err != nil {
-		return err
-	}
-	var sups, gone [][]byte
-	for _, i := range p.fresh {
-		it := &items[i]
-		for _, t := range it.Supersedes {
-			k := make([]byte, 0, 80)
-			k = append(append(append(k, it.Entity[:]...), t[:]...), it.ID[:]...)
-			sups = append(sups, k)
-			gone = append(gone, k[:48])
-		}
-	}
-	if err := putSorted(supB, sups, nil); err != nil {
-		return err
-	}
-	slices.SortFunc(pairs, bytes.Compare)
-	for _, pk := range pairs {
-		if countPrefix(supB, pk) == 0 {
-			if err := headB.Put(pk, nil); err != nil {
-				return err
-			}
-		}
-	}
-	slices.SortFunc(gone, bytes.Compare)
-	for _, tk := range gone {
-		if err := headB.Delete(tk); err != nil {
-			return err
-		}
-	}
-	return nil
+	slices.SortFunc(out, func(a, b record.EventID) int { return bytes.Compare(a[:], b[:]) })
+	return out
 }
 
-func putBE(b []byte, n uint64) {
-	for i := 7; i >= 0; i-- {
-		b[i] = byte(n)
-		n >>= 8
-	}
-}
+// arena hands out byte slices from large blocks: a write's keys and
+// values live until bbolt copies them at commit, and one allocation per
+// 64 KiB costs the collector far less than one per key.
+type arena struct{ block []byte }
 
-func beUint64(b []byte) uint64 {
-	var n uint64
-	for _, c := range b {
-		n = n<<8 | uint64(c)
+// alloc returns n bytes; alloc(0) returns an empty slice with room to
+// append 8 bytes in place.
+func (a *arena) alloc(n int) []byte {
+	need := max(n, 8)
+	if cap(a.block)-len(a.block) < need {
+		a.block = make([]byte, 0, max(64<<10, need))
 	}
-	return n
-}
-
-// countPrefix counts the keys of b that start with prefix.
-func countPrefix(b *bolt.Bucket, prefix []byte) int {
-	n := 0
-	c := b.Cursor()
-	for k, _ := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, _ = c.Next() {
-		n++
-	}
-	return n
+	start := len(a.block)
+	a.block = a.block[:start+need]
+	return a.block[start : start+n : start+need]
 }

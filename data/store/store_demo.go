@@ -15,7 +15,7 @@ func (s *Store) WriteDemo(raws [][]byte, at time.Time, note string) (ApplyResult
 	if err != nil {
 		return ApplyResult{}, err
 	}
-	return s.commit(items, nil, true, func(tx *bolt.Tx) error {
-		return tx.Bucket(bMeta).Put([]byte(metaDemo), []byte(note))
+	return s.commit(items, nil, true, func(tx *bolt.Tx, c *counts) error {
+		return metaPut(tx.Bucket(bMeta), c, metaDemo, []byte(note))
 	})
 }

@@ -3,6 +3,7 @@ package store
 import (
 	"baleassay/data/geo"
 	"baleassay/data/record"
+	"bytes"
 	"encoding/binary"
 	"fmt"
 	"math"
@@ -59,53 +60,61 @@ func (s *Store) Resolve(ent record.EntityID, keep record.EventID) (record.EventI
 // written in the same transaction as the events that change it, so that
 // opening a store loads the index without decoding events:
 //
-//	entity id → lat (float64 bits, BE) ‖ lon (float64 bits, BE) ‖ name
+//	entity id → lat (float64 bits, BE) ‖ lon (float64 bits, BE) ‖ name ‖ crc
 
-func putSiteCache(tx *bolt.Tx, u geo.Update) error {
+func putSiteCache(tx *bolt.Tx, c *counts, u geo.Update) error {
 	b := tx.Bucket(bSites)
+	k := u.Site.ID[:]
+	had := b.Get(k) != nil
 	if u.Remove {
-		return b.Delete(u.Site.ID[:])
+		if had {
+			c.Sites--
+		}
+		return b.Delete(k)
+	}
+	if !had {
+		c.Sites++
 	}
 	v := make([]byte, 16, 16+len(u.Site.Name))
 	binary.BigEndian.PutUint64(v, math.Float64bits(u.Site.Lat))
 	binary.BigEndian.PutUint64(v[8:], math.Float64bits(u.Site.Lon))
-	return b.Put(u.Site.ID[:], append(v, u.Site.Name...))
+	return b.Put(bytes.Clone(k), sealCRC(bSites, k, append(v, u.Site.Name...)))
 }
 
-// rebuildSiteCache fills the sites bucket from the events (a store made
-// before the bucket existed).
-func rebuildSiteCache(tx *bolt.Tx) error {
-	return tx.Bucket(bEntity).ForEach(func(k, v []byte) error {
-		if record.Kind(v[0]) != record.KindSite {
-			return nil
+// readSiteCache reads every entry of the site cache, checking each
+// entry's CRC, their order and their number.
+func readSiteCache(tx *bolt.Tx) ([]geo.IndexedSite, error) {
+	c, err := loadCounts(tx)
+	if err != nil {
+		return nil, err
+	}
+	sites := make([]geo.IndexedSite, 0, c.Sites)
+	var oc orderCheck
+	err = tx.Bucket(bSites).ForEach(func(k, sealed []byte) error {
+		v, ok := openCRC(bSites, k, sealed)
+		if !ok || len(v) < 16 || len(k) != 16 || !oc.next(k) {
+			return damagef("the site index cache has a damaged entry")
 		}
-		var id record.EntityID
-		copy(id[:], k)
-		st, err := stateTx(tx, id)
-		if err != nil {
-			return err
-		}
-		return putSiteCache(tx, siteUpdateOf(st))
+		sites = append(sites, geo.IndexedSite{ID: record.EntityID(k), Lat: math.Float64frombits(binary.BigEndian.Uint64(v)),
+			Lon: math.Float64frombits(binary.BigEndian.Uint64(v[8:])), Name: string(v[16:])})
+		return nil
 	})
+	if err == nil && uint64(len(sites)) != c.Sites {
+		err = damagef("the site index cache holds %d sites, the counts say %d", len(sites), c.Sites)
+	}
+	return sites, err
 }
 
 // loadSites bulk-loads the site index from the sites bucket.
 func (s *Store) loadSites() error {
 	var sites []geo.IndexedSite
-	err := s.db.View(func(tx *bolt.Tx) error {
-		return tx.Bucket(bSites).ForEach(func(k, v []byte) error {
-			if len(v) < 16 || len(k) != 16 {
-				return fmt.Errorf("site cache entry of %d bytes", len(v))
-			}
-			var id record.EntityID
-			copy(id[:], k)
-			sites = append(sites, geo.IndexedSite{ID: id, Lat: math.Float64frombits(binary.BigEndian.Uint64(v)),
-				Lon: math.Float64frombits(binary.BigEndian.Uint64(v[8:])), Name: string(v[16:])})
-			return nil
-		})
+	err := s.view(func(tx *bolt.Tx) error {
+		var err error
+		sites, err = readSiteCache(tx)
+		return err
 	})
 	if err != nil {
-		return fmt.Errorf("data: load site index: %w", err)
+		return err
 	}
 	s.sites = geo.NewSiteIndex(sites)
 	return nil

@@ -3,6 +3,7 @@ package store
 import (
 	"baleassay/data/record"
 	"bytes"
+	"encoding/binary"
 	"encoding/hex"
 	"fmt"
 	"strings"
@@ -10,42 +11,59 @@ import (
 	bolt "go.etcd.io/bbolt"
 )
 
-// decodeStored decodes bytes the store itself checked on the way in.
-func decodeStored(id record.EventID, raw []byte) (record.Stamped, error) {
-	e, err := record.DecodeTrusted(raw)
-	if err != nil {
-		return record.Stamped{}, fmt.Errorf("data: stored event %s: %w", id.Short(), err)
+// entityRecord reads an entity's record; ok is false when the store has
+// no such entity. A missing record that the kind index still lists is
+// damage, not absence.
+func entityRecord(tx *bolt.Tx, ent record.EntityID) (entRecord, bool, error) {
+	k := recKey(ent)
+	v := tx.Bucket(bEnt).Get(k)
+	if v == nil {
+		kb := tx.Bucket(bKinds)
+		for kind := 1; kind < maxKinds; kind++ {
+			if kb.Get(kindKey(record.Kind(kind), ent)) != nil {
+				return entRecord{}, false, damagef("entity %s is indexed as a %s but its record is missing", ent, record.Kind(kind))
+			}
+		}
+		return entRecord{}, false, nil
 	}
-	return record.Stamped{ID: id, Event: e}, nil
+	r, ok := decodeEntRecord(k, v)
+	if !ok {
+		return r, false, damagef("the record of entity %s does not verify", ent)
+	}
+	return r, true, nil
 }
 
-func eventTx(tx *bolt.Tx, id record.EventID) (record.Stamped, error) {
-	raw := tx.Bucket(bEvents).Get(id[:])
-	if raw == nil {
-		return record.Stamped{}, fmt.Errorf("%w: event %s", ErrNotFound, id.Short())
-	}
-	return decodeStored(id, raw)
-}
-
-// stateTx folds one entity from the head index.
+// stateTx folds one entity from its heads.
 func stateTx(tx *bolt.Tx, ent record.EntityID) (record.EntityState, error) {
-	k := tx.Bucket(bEntity).Get(ent[:])
-	if k == nil {
+	rec, ok, err := entityRecord(tx, ent)
+	if err != nil {
+		return record.EntityState{}, err
+	}
+	if !ok {
 		return record.EntityState{}, fmt.Errorf("%w: entity %s", ErrNotFound, ent)
 	}
-	st := record.EntityState{ID: ent, Kind: record.Kind(k[0])}
-	c := tx.Bucket(bHeads).Cursor()
-	for hk, _ := c.Seek(ent[:]); hk != nil && bytes.HasPrefix(hk, ent[:]); hk, _ = c.Next() {
-		var id record.EventID
-		copy(id[:], hk[16:])
-		e, err := eventTx(tx, id)
+	return stateOf(tx, ent, rec)
+}
+
+func stateOf(tx *bolt.Tx, ent record.EntityID, rec entRecord) (record.EntityState, error) {
+	st := record.EntityState{ID: ent, Kind: rec.Kind, Events: int(rec.Events)}
+	prefix := entPrefix(ent, tagHead)
+	c := tx.Bucket(bEnt).Cursor()
+	var oc orderCheck
+	for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+		if len(k) != 49 || len(v) != 8 || !oc.next(k) {
+			return st, damagef("entity %s: a damaged head entry", ent)
+		}
+		e, err := eventAt(tx, binary.BigEndian.Uint64(v), entryID(k), ent, rec.Kind)
 		if err != nil {
 			return st, err
 		}
 		st.Heads = append(st.Heads, e)
 	}
+	if uint64(len(st.Heads)) != rec.Heads {
+		return st, damagef("entity %s: %d heads found, its record says %d", ent, len(st.Heads), rec.Heads)
+	}
 	record.SortStamped(st.Heads)
-	st.Events = countPrefix(tx.Bucket(bByEntity), ent[:])
 	return st, nil
 }
 
@@ -61,18 +79,64 @@ func (s *Store) Entity(id record.EntityID) (record.EntityState, error) {
 	return st, err
 }
 
+// forKind calls fn for every entity of a kind (every kind when kind is
+// 0), in kind then id order, and checks the number found against the
+// counts record.
+func forKind(tx *bolt.Tx, kind record.Kind, fn func(ent record.EntityID, rec entRecord) error) error {
+	c, err := loadCounts(tx)
+	if err != nil {
+		return err
+	}
+	var prefix []byte
+	want := c.allEntities()
+	if kind != 0 {
+		if int(kind) >= maxKinds {
+			return fmt.Errorf("%w: kind %d", ErrNotFound, kind)
+		}
+		prefix, want = []byte{byte(kind)}, c.Entities[kind]
+	}
+	cur := tx.Bucket(bKinds).Cursor()
+	var oc orderCheck
+	var n uint64
+	for k, _ := cur.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, _ = cur.Next() {
+		if len(k) != 17 || !oc.next(k) {
+			return damagef("the kind index has a damaged entry")
+		}
+		var ent record.EntityID
+		copy(ent[:], k[1:])
+		rec, ok, err := entityRecord(tx, ent)
+		if err != nil {
+			return err
+		}
+		if !ok || rec.Kind != record.Kind(k[0]) {
+			return damagef("the kind index lists %s as a %s, its record disagrees", ent, record.Kind(k[0]))
+		}
+		n++
+		if err := fn(ent, rec); err != nil {
+			return err
+		}
+	}
+	if n != want {
+		return damagef("%d entities of kind %s found, the counts say %d", n, kindName(kind), want)
+	}
+	return nil
+}
+
+func kindName(k record.Kind) string {
+	if k == 0 {
+		return "any"
+	}
+	return k.String()
+}
+
 // Entities returns the state of every entity of a kind (all kinds when
-// kind is 0), deleted ones included, in id order (UUIDv7: creation order).
+// kind is 0), deleted ones included, in kind then id order (UUIDv7:
+// creation order).
 func (s *Store) Entities(kind record.Kind) ([]record.EntityState, error) {
 	var out []record.EntityState
 	err := s.view(func(tx *bolt.Tx) error {
-		return tx.Bucket(bEntity).ForEach(func(k, v []byte) error {
-			if kind != 0 && record.Kind(v[0]) != kind {
-				return nil
-			}
-			var id record.EntityID
-			copy(id[:], k)
-			st, err := stateTx(tx, id)
+		return forKind(tx, kind, func(ent record.EntityID, rec entRecord) error {
+			st, err := stateOf(tx, ent, rec)
 			if err != nil {
 				return err
 			}
@@ -88,18 +152,28 @@ func (s *Store) Entities(kind record.Kind) ([]record.EntityState, error) {
 func (s *Store) History(ent record.EntityID) ([]record.Stamped, error) {
 	var out []record.Stamped
 	err := s.view(func(tx *bolt.Tx) error {
-		c := tx.Bucket(bByEntity).Cursor()
-		for k, _ := c.Seek(ent[:]); k != nil && bytes.HasPrefix(k, ent[:]); k, _ = c.Next() {
-			var id record.EventID
-			copy(id[:], k[16:])
-			e, err := eventTx(tx, id)
+		rec, ok, err := entityRecord(tx, ent)
+		if err != nil {
+			return err
+		}
+		if !ok {
+			return fmt.Errorf("%w: entity %s", ErrNotFound, ent)
+		}
+		prefix := entPrefix(ent, tagHistory)
+		c := tx.Bucket(bEnt).Cursor()
+		var oc orderCheck
+		for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
+			if len(k) != 49 || len(v) != 8 || !oc.next(k) {
+				return damagef("entity %s: a damaged history entry", ent)
+			}
+			e, err := eventAt(tx, binary.BigEndian.Uint64(v), entryID(k), ent, rec.Kind)
 			if err != nil {
 				return err
 			}
 			out = append(out, e)
 		}
-		if out == nil {
-			return fmt.Errorf("%w: entity %s", ErrNotFound, ent)
+		if uint64(len(out)) != rec.Events {
+			return damagef("entity %s: %d events in its history, its record says %d", ent, len(out), rec.Events)
 		}
 		return nil
 	})
@@ -107,47 +181,33 @@ func (s *Store) History(ent record.EntityID) ([]record.Stamped, error) {
 	return out, err
 }
 
-// Event returns one stored event.
-func (s *Store) Event(id record.EventID) (record.Stamped, error) {
-	var e record.Stamped
-	err := s.view(func(tx *bolt.Tx) error {
-		var err error
-		e, err = eventTx(tx, id)
-		return err
-	})
-	return e, err
-}
-
 // Conflicts returns every entity with more than one head, in id order.
 func (s *Store) Conflicts() ([]record.EntityState, error) {
 	var out []record.EntityState
 	err := s.view(func(tx *bolt.Tx) error {
-		c := tx.Bucket(bHeads).Cursor()
-		var prev []byte
-		n := 0
-		flush := func() error {
-			if n > 1 {
-				var id record.EntityID
-				copy(id[:], prev)
-				st, err := stateTx(tx, id)
-				if err != nil {
-					return err
-				}
-				out = append(out, st)
-			}
-			return nil
+		c, err := loadCounts(tx)
+		if err != nil {
+			return err
 		}
-		for k, _ := c.First(); k != nil; k, _ = c.Next() {
-			if prev != nil && bytes.Equal(prev, k[:16]) {
-				n++
-				continue
+		cur := tx.Bucket(bConflicts).Cursor()
+		var oc orderCheck
+		for k, _ := cur.First(); k != nil; k, _ = cur.Next() {
+			if len(k) != 16 || !oc.next(k) {
+				return damagef("the conflict set has a damaged entry")
 			}
-			if err := flush(); err != nil {
+			st, err := stateTx(tx, record.EntityID(k))
+			if err != nil {
 				return err
 			}
-			prev, n = bytes.Clone(k[:16]), 1
+			if len(st.Heads) < 2 {
+				return damagef("entity %s is in the conflict set with %d head", st.ID, len(st.Heads))
+			}
+			out = append(out, st)
 		}
-		return flush()
+		if uint64(len(out)) != c.Conflicts {
+			return damagef("%d conflicts found, the counts say %d", len(out), c.Conflicts)
+		}
+		return nil
 	})
 	return out, err
 }
@@ -166,48 +226,55 @@ func (s *Store) FindEntity(text string) (record.EntityID, error) {
 	if _, err := hex.DecodeString(h + strings.Repeat("0", len(h)%2)); err != nil {
 		return record.EntityID{}, fmt.Errorf("%w: %q is not an entity id (hex digits only)", ErrNotFound, text)
 	}
-	var found []record.EntityID
+	var found, tail []record.EntityID
 	err := s.view(func(tx *bolt.Tx) error {
-		c := tx.Bucket(bEntity).Cursor()
 		lo, _ := hex.DecodeString(h[:len(h)/2*2])
-		for k, _ := c.Seek(lo); k != nil && strings.HasPrefix(hex.EncodeToString(k), h); k, _ = c.Next() {
-			var id record.EntityID
-			copy(id[:], k)
-			found = append(found, id)
-			if len(found) > 1 {
-				break
+		cur := tx.Bucket(bKinds).Cursor()
+		for kind := 1; kind < maxKinds && len(found) < 2; kind++ {
+			start := append([]byte{byte(kind)}, lo...)
+			for k, _ := cur.Seek(start); k != nil && k[0] == byte(kind) && len(found) < 2; k, _ = cur.Next() {
+				if len(k) != 17 || !strings.HasPrefix(hex.EncodeToString(k[1:]), h) {
+					break
+				}
+				found = append(found, record.EntityID(k[1:]))
 			}
+		}
+		if len(found) == 1 || len(h) < 6 && len(found) > 0 {
+			return nil
+		}
+		// UUIDv7 ids made close in time share their leading digits; their
+		// trailing digits are random, so a unique suffix works too. This
+		// walk also counts the kind index, so an entity lost to damage is
+		// reported rather than not found.
+		c, err := loadCounts(tx)
+		if err != nil {
+			return err
+		}
+		var n uint64
+		var oc orderCheck
+		for k, _ := cur.First(); k != nil; k, _ = cur.Next() {
+			if len(k) != 17 || !oc.next(k) {
+				return damagef("the kind index has a damaged entry")
+			}
+			n++
+			if len(h) >= 6 && len(tail) < 2 && strings.HasSuffix(hex.EncodeToString(k[1:]), h) {
+				tail = append(tail, record.EntityID(k[1:]))
+			}
+		}
+		if n != c.allEntities() {
+			return damagef("the kind index lists %d entities, the counts say %d", n, c.allEntities())
 		}
 		return nil
 	})
 	if err != nil {
 		return record.EntityID{}, err
 	}
-	if len(found) == 1 {
+	switch {
+	case len(found) == 1 && len(tail) == 0:
 		return found[0], nil
-	}
-	// UUIDv7 ids made close in time share their leading digits; their
-	// trailing digits are random, so a unique suffix works too.
-	var tail []record.EntityID
-	if len(h) >= 6 {
-		err = s.view(func(tx *bolt.Tx) error {
-			return tx.Bucket(bEntity).ForEach(func(k, _ []byte) error {
-				if strings.HasSuffix(hex.EncodeToString(k), h) && len(tail) < 2 {
-					var id record.EntityID
-					copy(id[:], k)
-					tail = append(tail, id)
-				}
-				return nil
-			})
-		})
-		if err != nil {
-			return record.EntityID{}, err
-		}
-		if len(tail) == 1 && len(found) == 0 {
-			return tail[0], nil
-		}
-	}
-	if len(found) == 0 && len(tail) == 0 {
+	case len(found) == 0 && len(tail) == 1:
+		return tail[0], nil
+	case len(found) == 0 && len(tail) == 0:
 		return record.EntityID{}, fmt.Errorf("%w: no entity id starts or ends with %q", ErrNotFound, text)
 	}
 	return record.EntityID{}, fmt.Errorf("%w: %q (give more digits, or the last 8 digits of the id)", ErrAmbiguousID, text)

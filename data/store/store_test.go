@@ -11,8 +11,6 @@ import (
 	"strconv"
 	"testing"
 	"time"
-
-	bolt "go.etcd.io/bbolt"
 )
 
 func TestOpenKeepsDeviceAndRefusesSecondOpener(t *testing.T) {
@@ -372,34 +370,6 @@ func TestDraftSurvivesReopenAndSavesAtomically(t *testing.T) {
 	}
 	if st, err := s.Entity(pe); err != nil || st.Heads[0].Pull.Label != "P3" {
 		t.Fatalf("saved pull %+v %v", st, err)
-	}
-}
-
-// A store whose site cache is missing (made before it existed) rebuilds it
-// from the events on open.
-func TestSiteCacheRebuiltOnOpen(t *testing.T) {
-	dir := t.TempDir()
-	s, _ := Open(dir)
-	if _, err := s.Save([]record.Event{{Kind: record.KindSite, Site: &record.SiteRecord{Name: "Rook Hill", Lat: -12.5, Lon: 130.8}}}, SaveOptions{}); err != nil {
-		t.Fatal(err)
-	}
-	err := s.db.Update(func(tx *bolt.Tx) error {
-		if err := tx.DeleteBucket(bSites); err != nil {
-			return err
-		}
-		if _, err := tx.CreateBucket(bSites); err != nil {
-			return err
-		}
-		return tx.Bucket(bMeta).Delete([]byte(metaSites))
-	})
-	if err != nil {
-		t.Fatal(err)
-	}
-	s.Close()
-	s, _ = Open(dir)
-	defer s.Close()
-	if h, _ := s.SiteIndex().Nearest(-12.5, 130.8, 1); len(h) != 1 || h[0].Name != "Rook Hill" {
-		t.Fatalf("after rebuild: %+v", h)
 	}
 }
 

@@ -38,13 +38,8 @@ type PullView struct {
 // visibleTx calls fn for every entity of a kind that is not deleted, with
 // its current head.
 func visibleTx(tx *bolt.Tx, kind record.Kind, fn func(v View) error) error {
-	return tx.Bucket(bEntity).ForEach(func(k, val []byte) error {
-		if record.Kind(val[0]) != kind {
-			return nil
-		}
-		var id record.EntityID
-		copy(id[:], k)
-		st, err := stateTx(tx, id)
+	return forKind(tx, kind, func(id record.EntityID, rec entRecord) error {
+		st, err := stateOf(tx, id, rec)
 		if err != nil {
 			return err
 		}
