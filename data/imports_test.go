@@ -31,7 +31,7 @@ var allowed = map[string][]string{
 	"data/geo":              {"data/record"},
 	"data/store":            {"assess", "data/record", "data/geo"},
 	"data/transfer":         {"data/record", "data/store"},
-	"data/demo":             {"assess", "data/record", "data/store"},
+	"data/demo":             {"assess", "data/record", "data/store", "data/transfer"},
 	"data/internal/testkit": {"data/record"},
 	"data/publish":          {"assess", "yield", "data/record", "data/store"},
 	"cmd/bale":              {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "data/publish"},

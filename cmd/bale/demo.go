@@ -12,13 +12,16 @@ import (
 func init() {
 	register(command{
 		name:    "demo",
-		usage:   "[--store DIR] [--weeks N] [--seed N] [--force]",
+		usage:   "[--store DIR] [--weeks N] [--seed N] [--force]  |  " + generateUsage,
 		summary: "create the demo store: an invented region of yards with weeks of bales and pulls",
 		run:     runDemo,
 	})
 }
 
 func runDemo(args []string, stdout, stderr io.Writer) error {
+	if wantsGenerate(args) {
+		return runGenerate(args, stdout, stderr)
+	}
 	fs := newFlags("demo")
 	dirFlag := fs.String("store", "", "folder of the demo store (default: the demo folder beside the user store, see README)")
 	weeks := fs.Int("weeks", 6, "weeks of bales")
