@@ -111,8 +111,8 @@ func (s *Store) SharedHash() ([32]byte, error) {
 					if !bytes.HasPrefix(k, []byte(MetaTransferPrefix+"seen/")) && !bytes.HasPrefix(k, []byte(MetaTransferPrefix+"b/")) {
 						return nil
 					}
-				case bytes.Equal(name, bEnt) && len(k) > 16 && (k[16] == tagHistory || k[16] == tagHead):
-					v = nil // a local insertion number
+				case bytes.Equal(name, bEnt) && len(k) > 16 && k[16] == tagHistory && len(v) == 9:
+					v = v[8:] // the head flag, without the local insertion number
 				}
 				putLen(h, k)
 				putLen(h, v)

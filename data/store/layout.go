@@ -25,14 +25,33 @@ var (
 )
 
 // Tags after the entity id in bucket ent. Every key of one entity starts
-// with its 16-byte id, so its record, history, heads and supersessions
-// share a page or a few neighbouring ones.
+// with its 16-byte id, so its record, history and supersessions share a
+// page or a few neighbouring ones.
 const (
 	tagRecord  = 0x00 // entity ‖ 00 → kind (1) ‖ events (8) ‖ heads (8) ‖ crc
-	tagHistory = 0x01 // entity ‖ 01 ‖ event id → seq (8)
+	tagHistory = 0x01 // entity ‖ 01 ‖ event id → seq (8) ‖ flags (1)
 	tagSupBy   = 0x02 // entity ‖ 02 ‖ superseded id ‖ superseding id → crc
-	tagHead    = 0x03 // entity ‖ 03 ‖ event id → seq (8)
 )
+
+// Flags of a history entry.
+const flagHead = 0x01 // no event of the entity supersedes this one
+
+// histVal is the value of a history entry.
+func histVal(dst []byte, seq uint64, head bool) []byte {
+	dst = binary.BigEndian.AppendUint64(dst, seq)
+	if head {
+		return append(dst, flagHead)
+	}
+	return append(dst, 0)
+}
+
+// parseHist reads a history entry's value.
+func parseHist(v []byte) (seq uint64, head, ok bool) {
+	if len(v) != 9 || v[8]&^flagHead != 0 {
+		return 0, false, false
+	}
+	return binary.BigEndian.Uint64(v), v[8] == flagHead, true
+}
 
 // layoutVersion is stored under meta "layout"; a store without it and
 // with the version 1 buckets is upgraded on the first writable open.

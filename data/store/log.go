@@ -106,6 +106,10 @@ func (s *Store) Event(id record.EventID) (record.Stamped, error) {
 	return e, err
 }
 
+// releaseEvery is how many bytes a long walk reads between drops of the
+// mapped pages it read (releaseMapped).
+const releaseEvery = 64 << 20
+
 // ForEachRawSince calls fn for every event inserted after local sequence
 // number afterSeq, in insertion order (numbers start at 1). Every event's
 // bytes are checked against its id before fn sees them, and numbers must
@@ -124,6 +128,7 @@ func (s *Store) ForEachRawSince(afterSeq uint64, fn func(seq uint64, id record.E
 			return nil
 		}
 		want := afterSeq + 1
+		read := 0
 		cur := tx.Bucket(bLog).Cursor()
 		for k, v := cur.Seek(seqKey(want)); k != nil; k, v = cur.Next() {
 			if len(k) != 8 || binary.BigEndian.Uint64(k) != want {
@@ -135,6 +140,10 @@ func (s *Store) ForEachRawSince(afterSeq uint64, fn func(seq uint64, id record.E
 			}
 			if err := fn(want, id, raw); err != nil {
 				return err
+			}
+			if read += len(v); read > releaseEvery {
+				releaseMapped(s.db, tx)
+				read = 0
 			}
 			want++
 		}

@@ -31,21 +31,48 @@ func (s *Store) ApplyRaw(raws [][]byte, meta map[string][]byte) (ApplyResult, er
 	return s.ApplyRawWithIDs(raws, nil, meta)
 }
 
-// applyRaw is ApplyRaw with the events' ids when the caller has them
-// (OpenBundle hashed every event to check its stated id); nil ids are
-// computed here.
+// ApplyRawWithIDs is ApplyRaw with the events' ids when the caller has
+// them (OpenBundle hashed every event to check its stated id); nil ids
+// are computed here.
 func (s *Store) ApplyRawWithIDs(raws [][]byte, ids []record.EventID, meta map[string][]byte) (ApplyResult, error) {
-	items, warns, err := record.CheckEvents(raws, ids, s.now(), record.CheckWorkers(len(raws)))
+	b, err := s.Check(raws, ids)
 	if err != nil {
 		return ApplyResult{}, err
 	}
+	return s.ApplyChecked(b, meta)
+}
+
+// Checked is a batch of events that passed every check short of the
+// store's own (Check), ready for ApplyChecked. It refers to the callers'
+// bytes, which must stay unchanged until it is applied.
+type Checked struct {
+	items []record.Checked
+	warns []record.EventWarning
+}
+
+// Len is the number of events in the batch.
+func (c Checked) Len() int { return len(c.items) }
+
+// Check decodes strictly (DecodeEvent), hashes (unless ids are given)
+// and validates (ValidateEvent) every event on all CPUs, the first half
+// of ApplyRaw. It reads nothing from the store, so an importer can check
+// the next file while the store writes this one.
+func (s *Store) Check(raws [][]byte, ids []record.EventID) (Checked, error) {
+	items, warns, err := record.CheckEvents(raws, ids, s.now(), record.CheckWorkers(len(raws)))
+	return Checked{items: items, warns: warns}, err
+}
+
+// ApplyChecked writes a checked batch and meta values in one committed
+// and synced transaction, all or nothing: the second half of ApplyRaw.
+// Meta keys must start with MetaTransferPrefix.
+func (s *Store) ApplyChecked(b Checked, meta map[string][]byte) (ApplyResult, error) {
 	for k := range meta {
 		if !strings.HasPrefix(k, MetaTransferPrefix) || len(k) > 200 {
 			return ApplyResult{}, fmt.Errorf("%w: %q (want %q...)", ErrMetaKey, k, MetaTransferPrefix)
 		}
 	}
-	res, err := s.commit(items, meta, true, nil)
-	res.Warnings = warns
+	res, err := s.commit(b.items, meta, true, nil)
+	res.Warnings = b.warns
 	return res, err
 }
 

@@ -40,7 +40,7 @@ type plan struct {
 // batch) under another kind fails with its index. It reads one entity
 // record per entity and one history key per event.
 func planWrite(tx *bolt.Tx, items []record.Checked) (plan, int, error) {
-	entB := tx.Bucket(bEnt)
+	cur := tx.Bucket(bEnt).Cursor()
 	var p plan
 	byEnt := make(map[record.EntityID]*entPlan)
 	seen := make(map[record.EventID]struct{}, len(items))
@@ -55,7 +55,7 @@ func planWrite(tx *bolt.Tx, items []record.Checked) (plan, int, error) {
 		if ep == nil {
 			ep = &entPlan{id: it.Entity, rec: entRecord{Kind: it.Kind}}
 			k := recKey(it.Entity)
-			if v := entB.Get(k); v != nil {
+			if v := getAt(cur, k); v != nil {
 				r, ok := decodeEntRecord(k, v)
 				if !ok {
 					return p, 0, damagef("the record of entity %s does not verify", it.Entity)
@@ -65,7 +65,7 @@ func planWrite(tx *bolt.Tx, items []record.Checked) (plan, int, error) {
 			byEnt[it.Entity] = ep
 			p.ents = append(p.ents, ep)
 		}
-		if ep.stored && entB.Get(entKey(it.Entity, tagHistory, it.ID)) != nil {
+		if ep.stored && getAt(cur, entKey(it.Entity, tagHistory, it.ID)) != nil {
 			seen[it.ID] = struct{}{}
 			present++
 			continue
@@ -93,6 +93,7 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 	if err := s.writableLocked(); err != nil {
 		return ApplyResult{}, err
 	}
+	defer s.releaseLocked()
 	var siteUpdates []geo.Update
 	defer s.nameDamage(&err)
 	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
@@ -132,11 +133,13 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 				return err
 			}
 		}
+		var ver entVerifier
+		entCur := tx.Bucket(bEnt).Cursor()
 		for _, ep := range p.ents {
 			if len(ep.fresh) == 0 {
 				continue
 			}
-			if err := verifyEntity(tx, ep.id); err != nil {
+			if err := ver.verify(tx, entCur, ep.id, ep.stored); err != nil {
 				return err
 			}
 			if ep.rec.Kind == record.KindSite {
@@ -183,6 +186,14 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 	return res, nil
 }
 
+// releaseLocked drops the file's mapped pages after a write (see
+// releaseMapped); the caller holds the write lock.
+func (s *Store) releaseLocked() {
+	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
+	defer func() { _ = recover() }()
+	_ = s.db.View(func(tx *bolt.Tx) error { releaseMapped(s.db, tx); return nil })
+}
+
 // entOp is one put or delete in bucket ent.
 type entOp struct {
 	key, val []byte
@@ -203,7 +214,7 @@ func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *Ap
 	logB.FillPercent = logFill
 	var ar arena
 	first := c.Events + 1
-	seqOf := make(map[int]uint64, len(p.fresh))
+	seqOf := make([]uint64, len(items)) // by item index; 0 for items not new
 	for n, i := range p.fresh { // batch order: ascending keys
 		it := &items[i]
 		seq := first + uint64(n)
@@ -227,36 +238,44 @@ func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *Ap
 	}
 	var ops []entOp
 	kindB, confB := tx.Bucket(bKinds), tx.Bucket(bConflicts)
+	cur := entB.Cursor()
 	var newKinds, confPut, confDel [][]byte
+	ents := make([]*entPlan, 0, len(p.ents))
 	for _, ep := range p.ents {
-		if len(ep.fresh) == 0 {
-			continue
+		if len(ep.fresh) > 0 {
+			ents = append(ents, ep)
 		}
+	}
+	slices.SortFunc(ents, func(a, b *entPlan) int { return bytes.Compare(a.id[:], b.id[:]) })
+	for _, ep := range ents {
 		e := ep.id
-		ep.targets = make(map[record.EventID]struct{})
+		first := len(ops)
 		for _, i := range ep.fresh {
-			it := &items[i]
-			ops = append(ops, entOp{key: entKey(e, tagHistory, it.ID), val: binary.BigEndian.AppendUint64(ar.alloc(0), seqOf[i])})
-			for _, t := range it.Supersedes {
-				k := supByKey(e, t, it.ID)
+			for _, t := range items[i].Supersedes {
+				k := supByKey(e, t, items[i].ID)
 				ops = append(ops, entOp{key: k, val: sealCRC(bEnt, k, nil)})
+				if ep.targets == nil {
+					ep.targets = make(map[record.EventID]struct{})
+				}
 				ep.targets[t] = struct{}{}
 			}
 		}
 		added, removed := uint64(0), uint64(0)
 		for _, i := range ep.fresh {
 			it := &items[i]
-			if _, sup := ep.targets[it.ID]; sup || (ep.stored && hasPrefix(entB, entKey(e, tagSupBy, it.ID))) {
-				continue
+			_, sup := ep.targets[it.ID]
+			head := !sup && !(ep.stored && hasPrefixAt(cur, entKey(e, tagSupBy, it.ID)))
+			ops = append(ops, entOp{key: ar.entKey(e, tagHistory, it.ID), val: histVal(ar.alloc(0)[:0:9], seqOf[i], head)})
+			if head {
+				added++
 			}
-			ops = append(ops, entOp{key: entKey(e, tagHead, it.ID), val: binary.BigEndian.AppendUint64(ar.alloc(0), seqOf[i])})
-			added++
 		}
 		if ep.stored {
 			for _, t := range sortedIDs(ep.targets) {
-				k := entKey(e, tagHead, t)
-				if entB.Get(k) != nil {
-					ops = append(ops, entOp{key: k, del: true})
+				k := entKey(e, tagHistory, t)
+				seq, head, ok := parseHist(getAt(cur, k))
+				if ok && head {
+					ops = append(ops, entOp{key: k, val: histVal(nil, seq, false)})
 					removed++
 				}
 			}
@@ -285,8 +304,9 @@ func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *Ap
 			c.Conflicts--
 		}
 		ep.rec = rec
+		mine := ops[first:] // one entity's keys: entities are in id order already
+		slices.SortFunc(mine, func(a, b entOp) int { return bytes.Compare(a.key, b.key) })
 	}
-	slices.SortFunc(ops, func(a, b entOp) int { return bytes.Compare(a.key, b.key) })
 	for _, op := range ops {
 		var err error
 		if op.del {
@@ -334,10 +354,21 @@ func putSorted(b *bolt.Bucket, keys [][]byte, vals [][]byte) error {
 	return nil
 }
 
-// hasPrefix reports whether b holds a key starting with prefix.
-func hasPrefix(b *bolt.Bucket, prefix []byte) bool {
-	k, _ := b.Cursor().Seek(prefix)
+// hasPrefixAt reports whether the cursor's bucket holds a key starting
+// with prefix.
+func hasPrefixAt(c *bolt.Cursor, prefix []byte) bool {
+	k, _ := c.Seek(prefix)
 	return k != nil && bytes.HasPrefix(k, prefix)
+}
+
+// getAt is Bucket.Get through a cursor kept for many reads (Get makes a
+// new cursor each time).
+func getAt(c *bolt.Cursor, key []byte) []byte {
+	k, v := c.Seek(key)
+	if k == nil || !bytes.Equal(k, key) || v == nil {
+		return nil
+	}
+	return v
 }
 
 func sortedIDs(set map[record.EventID]struct{}) []record.EventID {
@@ -355,13 +386,22 @@ func sortedIDs(set map[record.EventID]struct{}) []record.EventID {
 type arena struct{ block []byte }
 
 // alloc returns n bytes; alloc(0) returns an empty slice with room to
-// append 8 bytes in place.
+// append 8 bytes in place (16 are reserved).
 func (a *arena) alloc(n int) []byte {
-	need := max(n, 8)
+	need := max(n, 16)
 	if cap(a.block)-len(a.block) < need {
 		a.block = make([]byte, 0, max(64<<10, need))
 	}
 	start := len(a.block)
 	a.block = a.block[:start+need]
 	return a.block[start : start+n : start+need]
+}
+
+// entKey is entKey in the arena.
+func (a *arena) entKey(e record.EntityID, tag byte, id record.EventID) []byte {
+	k := a.alloc(49)
+	copy(k, e[:])
+	k[16] = tag
+	copy(k[17:], id[:])
+	return k
 }

@@ -3,8 +3,7 @@ package store
 import (
 	"baleassay/data/record"
 	"bytes"
-	"encoding/binary"
-	"encoding/hex"
+		"encoding/hex"
 	"fmt"
 	"strings"
 
@@ -47,21 +46,27 @@ func stateTx(tx *bolt.Tx, ent record.EntityID) (record.EntityState, error) {
 
 func stateOf(tx *bolt.Tx, ent record.EntityID, rec entRecord) (record.EntityState, error) {
 	st := record.EntityState{ID: ent, Kind: rec.Kind, Events: int(rec.Events)}
-	prefix := entPrefix(ent, tagHead)
+	prefix := entPrefix(ent, tagHistory)
 	c := tx.Bucket(bEnt).Cursor()
 	var oc orderCheck
+	var n uint64
 	for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
-		if len(k) != 49 || len(v) != 8 || !oc.next(k) {
-			return st, damagef("entity %s: a damaged head entry", ent)
+		seq, head, ok := parseHist(v)
+		if len(k) != 49 || !ok || !oc.next(k) {
+			return st, damagef("entity %s: a damaged history entry", ent)
 		}
-		e, err := eventAt(tx, binary.BigEndian.Uint64(v), entryID(k), ent, rec.Kind)
+		n++
+		if !head {
+			continue
+		}
+		e, err := eventAt(tx, seq, entryID(k), ent, rec.Kind)
 		if err != nil {
 			return st, err
 		}
 		st.Heads = append(st.Heads, e)
 	}
-	if uint64(len(st.Heads)) != rec.Heads {
-		return st, damagef("entity %s: %d heads found, its record says %d", ent, len(st.Heads), rec.Heads)
+	if uint64(len(st.Heads)) != rec.Heads || n != rec.Events {
+		return st, damagef("entity %s: %d events and %d heads found, its record says %d and %d", ent, n, len(st.Heads), rec.Events, rec.Heads)
 	}
 	record.SortStamped(st.Heads)
 	return st, nil
@@ -163,10 +168,11 @@ func (s *Store) History(ent record.EntityID) ([]record.Stamped, error) {
 		c := tx.Bucket(bEnt).Cursor()
 		var oc orderCheck
 		for k, v := c.Seek(prefix); k != nil && bytes.HasPrefix(k, prefix); k, v = c.Next() {
-			if len(k) != 49 || len(v) != 8 || !oc.next(k) {
+			seq, _, ok := parseHist(v)
+			if len(k) != 49 || !ok || !oc.next(k) {
 				return damagef("entity %s: a damaged history entry", ent)
 			}
-			e, err := eventAt(tx, binary.BigEndian.Uint64(v), entryID(k), ent, rec.Kind)
+			e, err := eventAt(tx, seq, entryID(k), ent, rec.Kind)
 			if err != nil {
 				return err
 			}

@@ -106,12 +106,44 @@ func ExpandPaths(args []string) ([]string, error) {
 
 // ImportFiles imports each file in its own transaction; a refused file
 // does not stop the others. Gaps are computed after the last file.
+//
+// Files go through two stages: reading, the signature and every event's
+// checks (prepare), which need nothing from the store, and then the
+// store's write (apply), one file at a time in the given order. The next
+// file is prepared while the store writes the current one, so both CPUs
+// of a small machine work; at most two files are held in memory.
 func (im *Importer) ImportFiles(paths []string) ImportReport {
 	var rep ImportReport
 	devs := map[record.DeviceID]bool{}
+	type job struct {
+		path string
+		prep preparedFile
+	}
+	jobs := make(chan job)
+	stop := make(chan struct{})
+	defer close(stop)
+	go func() {
+		defer close(jobs)
+		for _, p := range paths {
+			raw, err := ReadBundleFile(p, im.MaxBytes)
+			prep := preparedFile{fr: FileReport{Err: err}}
+			if err == nil {
+				prep = im.prepare(raw)
+			}
+			select {
+			case jobs <- job{p, prep}:
+			case <-stop:
+				return
+			}
+		}
+	}()
 	done := 0
-	for i, p := range paths {
-		fr := im.importFile(p, i+1, len(paths), done)
+	i := 0
+	for j := range jobs {
+		i++
+		im.progress(Progress{File: j.path, Index: i, Of: len(paths), Step: "reading", EventsSoFar: done})
+		im.progress(Progress{File: j.path, Index: i, Of: len(paths), Step: "verifying", EventsSoFar: done})
+		fr := im.finish(j.path, j.prep, i, len(paths), done)
 		done += fr.New + fr.Present
 		if fr.Err == nil {
 			devs[fr.Device] = true
@@ -128,17 +160,14 @@ func (im *Importer) progress(p Progress) {
 	}
 }
 
-func (im *Importer) importFile(path string, idx, of, soFar int) FileReport {
-	im.progress(Progress{File: path, Index: idx, Of: of, Step: "reading", EventsSoFar: soFar})
-	raw, err := ReadBundleFile(path, im.MaxBytes)
-	var fr FileReport
-	if err == nil {
-		fr = im.importBytes(raw, func(p Progress) {
+// finish applies a prepared file and reports it.
+func (im *Importer) finish(path string, prep preparedFile, idx, of, soFar int) FileReport {
+	fr := prep.fr
+	if fr.Err == nil {
+		fr = im.apply(prep, func(p Progress) {
 			p.File, p.Index, p.Of, p.EventsSoFar = path, idx, of, soFar
 			im.progress(p)
 		})
-	} else {
-		fr.Err = err
 	}
 	fr.Path = path
 	var use *UnknownSignerError
@@ -188,42 +217,73 @@ func ReadBundleFile(path string, max int64) ([]byte, error) {
 }
 
 // ImportBytes imports one bundle held in memory.
-func (im *Importer) ImportBytes(raw []byte) FileReport { return im.importBytes(raw, im.progress) }
+func (im *Importer) ImportBytes(raw []byte) FileReport {
+	im.progress(Progress{Step: "verifying"})
+	prep := im.prepare(raw)
+	if prep.fr.Err != nil {
+		return prep.fr
+	}
+	return im.apply(prep, im.progress)
+}
 
-func (im *Importer) importBytes(raw []byte, prog func(Progress)) FileReport {
-	var fr FileReport
+// preparedFile is a bundle that passed every check that needs nothing
+// from the store: size, signature, strict body, ids, every event's
+// decoding and validation. fr holds the refusal, if any.
+type preparedFile struct {
+	fr    FileReport
+	ob    *OpenedBundle
+	batch store.Checked
+}
+
+func (im *Importer) prepare(raw []byte) preparedFile {
+	var p preparedFile
 	max := im.MaxBytes
 	if max <= 0 {
 		max = MaxBundleBytes
 	}
 	if int64(len(raw)) > max {
-		fr.Err = bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", len(raw), max)
-		return fr
+		p.fr.Err = bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", len(raw), max)
+		return p
 	}
-	prog(Progress{Step: "verifying"})
 	ob, err := OpenBundle(raw, im.Trust)
 	if err != nil {
-		fr.Err = err
-		return fr
+		p.fr.Err = err
+		return p
 	}
 	h := ob.Header
-	fr.Device, fr.Seq, fr.Part, fr.Parts, fr.Signer = h.Device, h.Seq, h.Part, h.Parts, ob.SignerName
-	fr.Events = len(ob.Raws)
+	p.ob = ob
+	p.fr.Device, p.fr.Seq, p.fr.Part, p.fr.Parts, p.fr.Signer = h.Device, h.Seq, h.Part, h.Parts, ob.SignerName
+	p.fr.Events = len(ob.Raws)
+	p.batch, err = im.Store.Check(ob.Raws, ob.IDs)
+	if err != nil {
+		p.fr.Err = im.eventErr(ob, err)
+	}
+	return p
+}
+
+// eventErr names the bundle entry of an event the store refused.
+func (im *Importer) eventErr(ob *OpenedBundle, err error) error {
+	var ee *record.EventError
+	if errors.As(err, &ee) && ee.Index >= 0 && ee.Index < len(ob.Raws) {
+		return &EventRefusedError{Index: ee.Index, ID: ob.IDs[ee.Index].String(), Err: err}
+	}
+	return err
+}
+
+// apply writes a prepared bundle with its sequence records, in one
+// transaction.
+func (im *Importer) apply(p preparedFile, prog func(Progress)) FileReport {
+	fr, ob := p.fr, p.ob
 	meta, flags, replay, err := im.seqMeta(ob)
 	if err != nil {
 		fr.Err = err
 		return fr
 	}
-	fr.Flags, fr.Replay = append(flags, im.skewFlags(h)...), replay
+	fr.Flags, fr.Replay = append(flags, im.skewFlags(ob.Header)...), replay
 	prog(Progress{Step: "applying", Events: fr.Events})
-	res, err := im.Store.ApplyRawWithIDs(ob.Raws, ob.IDs, meta)
+	res, err := im.Store.ApplyChecked(p.batch, meta)
 	if err != nil {
-		var ee *record.EventError
-		if errors.As(err, &ee) && ee.Index >= 0 && ee.Index < len(ob.Raws) {
-			fr.Err = &EventRefusedError{Index: ee.Index, ID: ob.IDs[ee.Index].String(), Err: err}
-		} else {
-			fr.Err = err
-		}
+		fr.Err = im.eventErr(ob, err)
 		return fr
 	}
 	fr.New, fr.Present, fr.Conflicts = res.New, res.Present, res.Conflicts
