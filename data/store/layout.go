@@ -225,3 +225,12 @@ func (c counts) allEntities() uint64 {
 	}
 	return n
 }
+
+// beUint64 reads a big-endian number of up to 8 bytes.
+func beUint64(b []byte) uint64 {
+	var n uint64
+	for _, c := range b {
+		n = n<<8 | uint64(c)
+	}
+	return n
+}

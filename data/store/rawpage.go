@@ -170,7 +170,7 @@ func parsePageHeader(buf []byte) (rawPage, error) {
 	}
 	le := binary.LittleEndian
 	p := rawPage{ID: le.Uint64(buf), Flags: le.Uint16(buf[8:]), Count: int(le.Uint16(buf[10:])), Overflow: le.Uint32(buf[12:]), buf: buf}
-	if rawPageHeader+p.Count*rawElemSize > len(buf) {
+	if p.Flags&(rawBranch|rawLeaf) != 0 && rawPageHeader+p.Count*rawElemSize > len(buf) {
 		return p, fmt.Errorf("page %d: %d elements do not fit in it", p.ID, p.Count)
 	}
 	return p, nil

@@ -43,7 +43,7 @@ func rebuild(dir string, src rebuildSource, now func() time.Time) (rebuildReport
 	var items []record.Checked
 	flush := func() error {
 		for len(items) > 0 {
-			res, err := s.commit(items, nil, false, nil)
+			res, err := s.commit(items, nil, true, nil)
 			var ee *record.EventError
 			if errors.As(err, &ee) && ee.Index >= 0 && ee.Index < len(items) {
 				rep.Refused = append(rep.Refused, fmt.Sprintf("event %s: %v", items[ee.Index].ID.Short(), err))
@@ -82,7 +82,11 @@ func rebuild(dir string, src rebuildSource, now func() time.Time) (rebuildReport
 			if k == metaCounts || k == metaLayout {
 				continue
 			}
-			if err := metaPut(m, c, k, src.meta[k]); err != nil {
+			v := src.meta[k]
+			if last := s.clock.Last(); k == metaClock && record.HLCFromBytes(v).Compare(last) < 0 {
+				v = last.Bytes() // never behind the events copied
+			}
+			if err := metaPut(m, c, k, v); err != nil {
 				return err
 			}
 		}

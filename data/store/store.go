@@ -123,7 +123,7 @@ func openOnce(dir string, o Options) (s *Store, err error) {
 	}
 	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
 	defer recoverDamage(&err)
-	db, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: o.Timeout, FreelistType: bolt.FreelistMapType, ReadOnly: o.ReadOnly})
+	db, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: o.Timeout, FreelistType: bolt.FreelistMapType, ReadOnly: o.ReadOnly, InitialMmapSize: initialMmap})
 	if err != nil {
 		switch {
 		case errors.Is(err, berrors.ErrTimeout):
@@ -140,19 +140,29 @@ func openOnce(dir string, o Options) (s *Store, err error) {
 			s = nil
 		}
 	}()
-	var last record.HLC
-	prepare := func(tx *bolt.Tx) error {
-		switch layoutOf(tx) {
-		case 1:
-			return errNeedsUpgrade
-		case 0:
-			if o.ReadOnly {
-				return fmt.Errorf("%w: %s holds an empty file", ErrNoStore, dir)
-			}
-			if err := initStore(tx, o.Now()); err != nil {
-				return err
-			}
+	if !o.ReadOnly {
+		// Before any write: a damaged free-page list would hand live
+		// pages to the first commit.
+		if err := checkFreelist(path); err != nil {
+			return nil, err
 		}
+	}
+	var layout int
+	if err := db.View(func(tx *bolt.Tx) error { layout = layoutOf(tx); return nil }); err != nil {
+		return nil, err
+	}
+	switch {
+	case layout == 1:
+		return nil, errNeedsUpgrade
+	case layout == 0 && o.ReadOnly:
+		return nil, fmt.Errorf("%w: %s holds an empty file", ErrNoStore, dir)
+	case layout == 0:
+		if err := db.Update(func(tx *bolt.Tx) error { return initStore(tx, o.Now()) }); err != nil {
+			return nil, fmt.Errorf("data: make store %s: %w", dir, err)
+		}
+	}
+	var last record.HLC
+	err = db.View(func(tx *bolt.Tx) error {
 		c, err := verifyMeta(tx)
 		if err != nil {
 			return err
@@ -169,22 +179,12 @@ func openOnce(dir string, o Options) (s *Store, err error) {
 		}
 		last = record.HLCFromBytes(clock)
 		return checkLogEnd(tx, c)
-	}
-	if o.ReadOnly {
-		err = db.View(prepare)
-	} else {
-		err = db.Update(prepare)
-	}
+	})
 	if err != nil {
-		if errors.Is(err, errNeedsUpgrade) || errors.Is(err, ErrNoStore) || errors.Is(err, ErrDamaged) {
+		if errors.Is(err, ErrDamaged) {
 			return nil, err
 		}
 		return nil, fmt.Errorf("data: prepare store %s: %w", dir, err)
-	}
-	if !o.ReadOnly {
-		if err := checkFreelist(path, db); err != nil {
-			return nil, err
-		}
 	}
 	s.clock = record.NewClock(o.Now, last)
 	if o.NoSiteIndex {
