@@ -215,7 +215,7 @@ func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *Ap
 	var ar arena
 	first := c.Events + 1
 	seqOf := make([]uint64, len(items)) // by item index; 0 for items not new
-	for n, i := range p.fresh { // batch order: ascending keys
+	for n, i := range p.fresh {         // batch order: ascending keys
 		it := &items[i]
 		seq := first + uint64(n)
 		seqOf[i] = seq

@@ -3,7 +3,7 @@ package store
 import (
 	"baleassay/data/record"
 	"bytes"
-		"encoding/hex"
+	"encoding/hex"
 	"fmt"
 	"strings"
 

@@ -18,11 +18,11 @@ import (
 type pageWalk struct {
 	rf       *rawFile
 	meta     rawMeta
-	leaves   bool                // read leaf pages (false: branch pages only)
-	used     map[uint64]string   // page → what it holds
-	leafIDs  []uint64            // leaf pages met (leaves false: not read)
-	problems []string            // what does not hold together
-	counts   map[string]int      // pages by type
+	leaves   bool              // read leaf pages (false: branch pages only)
+	used     map[uint64]string // page → what it holds
+	leafIDs  []uint64          // leaf pages met (leaves false: not read)
+	problems []string          // what does not hold together
+	counts   map[string]int    // pages by type
 	onLeaf   func(bucket []byte, p rawPage)
 	buckets  map[string]struct{} // top-level buckets found
 	only     map[string]bool     // when set, walk only these buckets
