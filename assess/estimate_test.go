@@ -164,8 +164,8 @@ func TestOnePullNoInterval(t *testing.T) {
 		t.Errorf("one pull: verdict %v, want undecided", sv.Verdict)
 	}
 	adv := Advise(r, &sv, DefaultRelPrecision)
-	if adv.Known {
-		t.Errorf("one pull: advice claims a figure: %+v", adv)
+	if adv.Kind != AdviceAnotherPull || adv.Need.Total != 2 || adv.Need.More != 1 {
+		t.Errorf("one pull: advice %v %+v, want another pull", adv.Kind, adv.Need)
 	}
 }
 
