@@ -78,7 +78,7 @@ func BuiltinLine() Line {
 			},
 			{
 				Kind: StageSinkFloat, Name: "hydrocyclone heavy-particle trap, modelled as a density cut at 2.0 g/cm³",
-				Keep: "float", BathDensity: 2.0, // a cut between PET (1.3–1.4) and glass, metal, stones (from memory)
+				Keep: SideFloat, BathDensity: 2.0, // a cut between PET (1.3–1.4) and glass, metal, stones (from memory)
 				Efficiency:  Range(0.60, 0.85),   // from memory
 				ProductLoss: Range(0.001, 0.003), // from memory
 			},

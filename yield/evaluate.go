@@ -26,11 +26,18 @@ const (
 // flake as charged, contaminants included, because a plant weighs flake,
 // not PET: glycol = R·m_flake (or, with Molar, R moles per 192.17 g of
 // flake). The flake's purity therefore moves the hydroxyl value.
+//
+// Conversion and StripEG, when set, give the recipe's conversion and EG
+// stripping as ranges: the deterministic figures use their midpoints
+// (they override the recipe's own values) and the Monte Carlo draws them
+// uniformly.
 type Plan struct {
-	Line      *Model
-	Spec      *FlakeSpec
-	Recipe    Recipe
-	ReactorKg float64
+	Line       *Model
+	Spec       *FlakeSpec
+	Recipe     Recipe
+	ReactorKg  float64
+	Conversion Param
+	StripEG    Param
 }
 
 // DefaultPlan is the built-in line and flake spec with DEG 1:1 w/w and
@@ -119,7 +126,20 @@ func (p Plan) validate() error {
 	if p.Recipe.GlycolKg != 0 {
 		return fieldErr("plan", "glycol_kg", ErrBadCharge, "for a bale give the glycol as a ratio to the PET, so it scales with the flake")
 	}
-	probe := p.Recipe
+	if p.Conversion.IsSet() {
+		if err := checkParam("glycolysis", "conversion", p.Conversion); err != nil {
+			return err
+		}
+		if p.Conversion.Lo == 0 {
+			return fieldErr("glycolysis", "conversion", ErrOutOfRange, "a range starting at 0 dissolves no PET at its low end; give the dissolved share in (0, 1]")
+		}
+	}
+	if p.StripEG.IsSet() {
+		if err := checkParam("glycolysis", "strip_eg", p.StripEG); err != nil {
+			return err
+		}
+	}
+	probe := p.withRanges(p.Recipe)
 	probe.PETKg = 1
 	probe.PVCKg, probe.InertKg = 0, 0
 	g, cat, err := probe.validate()
@@ -128,6 +148,12 @@ func (p Plan) validate() error {
 	}
 	if err := newCharge(probe, g, cat).ok(); err != nil {
 		return err
+	}
+	if p.StripEG.IsSet() {
+		probe.StripEG = p.StripEG.Hi
+		if err := newCharge(probe, g, cat).ok(); err != nil {
+			return err
+		}
 	}
 	if !finite(p.ReactorKg) || p.ReactorKg < 0 {
 		return fieldErr("plan", "reactor_kg", ErrOutOfRange, "%v: give the reactor charge in kg, above 0", p.ReactorKg)
@@ -138,7 +164,7 @@ func (p Plan) validate() error {
 // recipeFor is the plan's recipe for a flake holding petKg of PET in
 // dryKg of dry flake. It allocates nothing.
 func (p Plan) recipeFor(petKg, dryKg float64, g Glycol) Recipe {
-	r := p.Recipe
+	r := p.withRanges(p.Recipe)
 	r.PETKg = petKg
 	if r.Molar {
 		r.GlycolKg = r.Ratio * dryKg / MolarMassPETUnit * g.MolarMass
@@ -146,6 +172,18 @@ func (p Plan) recipeFor(petKg, dryKg float64, g Glycol) Recipe {
 		r.GlycolKg = r.Ratio * dryKg
 	}
 	r.Ratio, r.Molar = 0, false
+	return r
+}
+
+// withRanges sets the recipe's conversion and EG stripping to the
+// midpoints of the plan's ranges, where given.
+func (p Plan) withRanges(r Recipe) Recipe {
+	if p.Conversion.IsSet() {
+		r.Conversion = p.Conversion.Mid()
+	}
+	if p.StripEG.IsSet() {
+		r.StripEG = p.StripEG.Mid()
+	}
 	return r
 }
 

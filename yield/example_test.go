@@ -117,12 +117,14 @@ func ExampleSimulate() {
 		fmt.Println(err)
 		return
 	}
-	f, g := res.FlakeKg, res.GlycolysateKg
+	f, g, pet := res.FlakeKg, res.GlycolysateKg, res.TargetPET
+	fmt.Printf("target PET P5 %.1f %%, P95 %.1f %%\n", 100*pet.P5, 100*pet.P95)
 	fmt.Printf("flake kg P10 %.0f, P50 %.0f, P90 %.0f\n", f.P10, f.P50, f.P90)
 	fmt.Printf("glycolysate kg P10 %.0f, P50 %.0f, P90 %.0f\n", g.P10, g.P50, g.P90)
 	fmt.Printf("hydroxyl value P50 %.0f mg KOH/g\n", res.HydroxylValue.P50)
 	// Output:
-	// flake kg P10 446, P50 455, P90 463
-	// glycolysate kg P10 888, P50 906, P90 922
+	// target PET P5 87.0 %, P95 93.3 %
+	// flake kg P10 443, P50 455, P90 467
+	// glycolysate kg P10 881, P50 905, P90 929
 	// hydroxyl value P50 527 mg KOH/g
 }

@@ -240,7 +240,7 @@ func TestLineProfileErrors(t *testing.T) {
 		{"bath on a grinder", Line{Name: "x", Stages: []Stage{{Kind: StageGrind, BathDensity: 1}}}, ErrBadLine},
 		{"dry without moisture", Line{Name: "x", Stages: []Stage{{Kind: StageDry}}}, ErrBadLine},
 		{"grind dust and loss over 1", Line{Name: "x", Stages: []Stage{{Kind: StageGrind, PETLoss: Fixed(0.6), DustMade: Fixed(0.6)}}}, ErrNotClosed},
-		{"keep sideways", Line{Name: "x", Stages: []Stage{{Kind: StageSinkFloat, BathDensity: 1, Efficiency: Fixed(1), Keep: "middle"}}}, ErrBadLine},
+		{"keep sideways", Line{Name: "x", Stages: []Stage{{Kind: StageSinkFloat, BathDensity: 1, Efficiency: Fixed(1), Keep: Side(7)}}}, ErrBadLine},
 	}
 	for _, c := range inline {
 		if err := c.line.Validate(); !errors.Is(err, c.err) {
@@ -349,7 +349,7 @@ func TestBathNotesShowWhatStaysWithPET(t *testing.T) {
 		t.Fatal(err)
 	}
 	notes := m.BathNotes(nil)
-	if len(notes) != 1 || notes[0].Keep != "sink" || notes[0].BathDensity != 1 {
+	if len(notes) != 1 || notes[0].Keep != SideSink || notes[0].BathDensity != 1 {
 		t.Fatalf("notes %+v", notes)
 	}
 	got := map[string]float64{}

@@ -140,10 +140,14 @@ func printReport(w io.Writer, rep assess.Report, res assess.Result) {
 	}
 	if len(rep.Pieces) > 0 {
 		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-		fmt.Fprintf(tw, "\npieces\tcount\tof\tshare\tWilson\tClopper–Pearson\t\n")
+		fmt.Fprintf(tw, "\npieces\tcount\tpulls\tper pull\tper 100 kg\tof examined\tshare\tWilson\tClopper–Pearson\t\n")
 		for _, p := range rep.Pieces {
-			fmt.Fprintf(tw, "%s\t%d\t%d\t%s\t%.2f – %.2f %%\t%.2f – %.2f %%\t\n", p.Key, p.Pieces, p.Total, pct(p.Fraction),
-				100*p.Wilson[0], 100*p.Wilson[1], 100*p.ClopperPearson[0], 100*p.ClopperPearson[1])
+			if p.Total == nil {
+				fmt.Fprintf(tw, "%s\t%d\t%d\t%.1f\t%.1f\t–\tno total given\t\t\t\n", p.Key, p.Pieces, p.Pulls, p.PerPull, p.Per100Kg)
+				continue
+			}
+			fmt.Fprintf(tw, "%s\t%d\t%d\t%.1f\t%.1f\t%d\t%s\t%.2f – %.2f %%\t%.2f – %.2f %%\t\n", p.Key, p.Pieces, p.Pulls, p.PerPull, p.Per100Kg,
+				*p.Total, pct(*p.Fraction), 100*p.Wilson[0], 100*p.Wilson[1], 100*p.ClopperPearson[0], 100*p.ClopperPearson[1])
 		}
 		tw.Flush()
 	}

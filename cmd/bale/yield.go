@@ -204,7 +204,7 @@ func buildYieldJSON(rep yield.Report, mc yield.MCResult, plan yield.Plan, fixed 
 	}
 	out.WithPET = []bathNoteJSON{}
 	for _, n := range plan.Line.BathNotes(rep.Balance.Flake[:len(rep.BaleComposition)]) {
-		j := bathNoteJSON{Stage: n.Stage, BathDensity: n.BathDensity, Keep: n.Keep, Shares: map[string]float64{}}
+		j := bathNoteJSON{Stage: n.Stage, BathDensity: n.BathDensity, Keep: n.Keep.String(), Shares: map[string]float64{}}
 		for _, s := range n.WithPET {
 			j.Shares[s.Key] = s.Share
 		}
@@ -347,7 +347,7 @@ func printBathNotes(w io.Writer, notes []yield.BathNote) {
 	var order []float64
 	byBath := map[float64]*group{}
 	for _, n := range notes {
-		if n.Keep != "sink" || len(n.WithPET) == 0 {
+		if n.Keep != yield.SideSink || len(n.WithPET) == 0 {
 			continue
 		}
 		g, ok := byBath[n.BathDensity]
