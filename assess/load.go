@@ -427,3 +427,7 @@ func LoadVariance(c VarianceComponents, n, N int, m float64, pullShare float64) 
 	f2 := math.Min(1, m*pullShare)
 	return (1-float64(n)/float64(N))*c.Between/float64(n) + (1-f2)*c.Within/(float64(n)*m)
 }
+
+// Known reports whether every bale of the load was sorted whole, so its
+// composition is known.
+func (lr LoadResult) Known() bool { return lr.exact }

@@ -28,8 +28,21 @@ type Spread struct {
 	DF        int
 }
 
-// Varies reports whether the spread has anything to draw.
-func (s Spread) Varies() bool { return s.DF > 0 && len(s.Terms) > 0 }
+// Varies reports whether the spread has anything to draw: pulls of one
+// composition leave only rounding noise (below 1e-12) in the terms.
+func (s Spread) Varies() bool {
+	if s.DF <= 0 {
+		return false
+	}
+	for _, t := range s.Terms {
+		for _, v := range t {
+			if math.Abs(v) > 1e-12 {
+				return true
+			}
+		}
+	}
+	return false
+}
 
 func spreadOf(pulls []Pull, w []float64, res Result) Spread {
 	n := len(pulls)

@@ -82,16 +82,39 @@ func Evaluate(pulls []assess.Pull, baleKg float64, plan Plan) (Report, error) {
 	if err != nil {
 		return Report{}, err
 	}
+	return evaluateShares(est, baleKg, plan)
+}
+
+// EvaluateLoad runs a whole load through the plan at its point estimate
+// (the two-stage ratio-to-size estimate of assess.AssessLoad) and its
+// mass.
+func EvaluateLoad(lr assess.LoadResult, plan Plan) (Report, error) {
+	if err := plan.validate(); err != nil {
+		return Report{}, err
+	}
+	return evaluateShares(lr.Result, lr.BaleKg, plan)
+}
+
+// SimulateLoad is Simulate for a load: the composition is drawn from
+// the load's two-stage estimator (its between-bale and within-bale
+// terms), the mass is the load's.
+func SimulateLoad(lr assess.LoadResult, plan Plan, opt MCOptions) (MCResult, error) {
+	return SimulateSpread(lr.Spread, lr.BaleKg, lr.Known(), plan, opt)
+}
+
+// evaluateShares runs a composition (shares of est.Categories) of
+// massKg through the plan.
+func evaluateShares(est assess.Result, massKg float64, plan Plan) (Report, error) {
 	comp := make([]float64, assess.NumCategories())
 	for j, sh := range est.Categories {
-		comp[j] = sh.Fraction * baleKg
+		comp[j] = sh.Fraction * massKg
 	}
 	bal, err := plan.Line.Run(comp)
 	if err != nil {
 		return Report{}, err
 	}
-	rep := Report{BaleKg: baleKg, BaleComposition: comp, Balance: bal}
-	rep.Warnings = lineWarnings(pulls, comp, bal)
+	rep := Report{BaleKg: massKg, BaleComposition: comp, Balance: bal}
+	rep.Warnings = lineWarnings(est.HazardPulls, comp, bal)
 	if plan.Spec != nil {
 		rep.Checks = plan.Spec.Check(bal)
 	}
@@ -190,15 +213,9 @@ func (p Plan) withRanges(r Recipe) Recipe {
 // lineWarnings flags what the grader and the line crew must act on:
 // hazards in the audit or, worse, in the flake, and aluminium reaching
 // the caustic wash.
-func lineWarnings(pulls []assess.Pull, comp []float64, bal Balance) []string {
+func lineWarnings(labels []string, comp []float64, bal Balance) []string {
 	var w []string
 	hz, _ := assess.CategoryIndex("hazard")
-	var labels []string
-	for _, p := range pulls {
-		if p.Kg[hz] > 0 || (p.Pieces != nil && p.Pieces[hz] > 0) {
-			labels = append(labels, p.Label)
-		}
-	}
 	if len(labels) > 0 {
 		w = append(w, fmt.Sprintf("hazards were found in pulls %s: the bale must be sorted by hand before it goes on the line; the model assumes only what the line profile removes", strings.Join(labels, ", ")))
 	}
