@@ -63,7 +63,7 @@ func (rf *recipeFlags) recipe(fs *flag.FlagSet, petKg float64) (yield.Recipe, er
 		Conversion: *rf.conv, StripEG: *rf.strip, Catalyst: *rf.catalyst, CatalystPct: *rf.cat, PETMn: *rf.petMn}
 	if rf.glycolKg != nil && flagSet(fs, "glycol-kg") {
 		if !(*rf.glycolKg > 0) {
-			return r, &yield.FieldError{Where: "glycolysis", Field: "glycol_kg", Msg: fmt.Sprintf("%g must be above 0 (--glycol-kg)", *rf.glycolKg), Err: yield.ErrOutOfRange}
+			return r, &yield.FieldError{Where: "glycolysis", Field: "glycol_kg", Msg: fmt.Sprintf("must be above 0 (got %g in --glycol-kg)", *rf.glycolKg), Err: yield.ErrOutOfRange}
 		}
 		r.GlycolKg = *rf.glycolKg
 	}
@@ -160,7 +160,7 @@ func runGlycolysis(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	o := glycolysisOut(g)
-	o.Cautions = []string{yield.CautionHotGlycol}
+	o.Cautions = []string{yield.CautionHotGlycolFor(g.Glycol)}
 	if g.HClKg > 0 {
 		o.Cautions = append(o.Cautions, yield.CautionPVC)
 	}

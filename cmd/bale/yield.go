@@ -193,7 +193,7 @@ func buildYieldJSON(rep yield.Report, mc yield.MCResult, plan yield.Plan, fixed 
 		ProcessWaterKg: b.ProcessWaterKg, Closure: b.Closure,
 		Glycolysis: glycolysisOut(g),
 		Warnings:   append(append([]string{}, rep.Warnings...), g.Warnings...),
-		Cautions:   []string{yield.CautionCaustic, yield.CautionHotGlycol},
+		Cautions:   []string{yield.CautionCaustic, yield.CautionHotGlycolFor(g.Glycol)},
 	}
 	if plan.ReactorKg > 0 {
 		n := rep.Batches
