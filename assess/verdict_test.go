@@ -135,7 +135,8 @@ func TestSpecValidation(t *testing.T) {
 }
 
 // Grade bands of the built-in glycol-feed spec: 0.94 and 0.72 echo the
-// trade-association PET bale grades (Source: shared/REFERENCE.md 'Bales');
+// trade-association PET bale grades published in 2015 (Source: those
+// grades: top grade ≥ 94 %, failing grade ≤ 72 % PET containers);
 // 0.83 is illustrative. The shares tested are invented inputs.
 func TestGradeBands(t *testing.T) {
 	s := mustSpec(t, "glycol-feed")

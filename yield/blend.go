@@ -20,7 +20,7 @@ type Polyol struct {
 // CastorOHV is the illustrative hydroxyl value of castor oil, mg KOH/g:
 // the middle of the USP range 160–168 (from memory), above the Ph. Eur.
 // minimum of 160 for virgin castor oil and below the 180 of pure
-// triricinolein (shared/REFERENCE.md 'Castor oil').
+// triricinolein (M 933.45 g/mol, f = 3: 3·56106/933.45, computed).
 const CastorOHV = 164
 
 // Castor returns kg of castor oil at CastorOHV.
@@ -154,7 +154,7 @@ type BlendResult struct {
 
 // FoamPETShareCaution is the recycled-PET share of a polyol blend above
 // which MixBlend warns: about 10–15 % still gives good foam (common
-// practice, shared/REFERENCE.md 'Glycolysis'); the upper end is used.
+// practice); the upper end is used.
 const FoamPETShareCaution = 0.15
 
 // MixBlend computes a polyol blend and its isocyanate demand:
@@ -164,8 +164,9 @@ const FoamPETShareCaution = 0.15
 //	EW(NCO) = 100·M(NCO) / %NCO   (= 4202 / %NCO)
 //	m_iso = index/100 · (OH eq + water eq) · EW(NCO)
 //
-// Textbook polyurethane arithmetic (common practice; shared/REFERENCE.md
-// 'Formulas'). Acid groups and amines are not counted.
+// Textbook polyurethane arithmetic (common practice), with KOH 56.106
+// g/mol and 100·M(NCO) = 4201.7 from IUPAC atomic weights. Acid groups
+// and amines are not counted.
 func MixBlend(b Blend) (BlendResult, error) {
 	const where = "blend"
 	if len(b.Polyols) == 0 {

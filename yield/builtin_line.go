@@ -7,8 +7,8 @@ const BuiltinLineName = "illustrative hot-wash line"
 // are not measurements of any plant: each is marked from memory (a
 // plausible value for a hot-wash line) or common practice. Ranges are
 // what the Monte Carlo run draws from. With a typical curbside bale it
-// gives a bale-to-flake yield inside the 60–80 % of shared/REFERENCE.md
-// 'Wash line' (from memory).
+// gives a bale-to-flake yield inside the roughly 60–80 % of practice
+// (from memory).
 func BuiltinLine() Line {
 	return Line{
 		Name: BuiltinLineName,

@@ -10,8 +10,7 @@ import (
 
 // DefaultGlycol and DefaultGlycolRatio are the glycolysis charge used
 // for a bale unless another is given: DEG at 1:1 by mass, one of the
-// charges in Hoang et al., Polymers 11 (2019) 236 and the worked example
-// of shared/REFERENCE.md.
+// charges in Hoang et al., Polymers 11 (2019) 236.
 const (
 	DefaultGlycol      = "DEG"
 	DefaultGlycolRatio = 1.0

@@ -137,7 +137,7 @@ func TestCategoriesJSON(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &rows); err != nil {
 		t.Fatal(err)
 	}
-	// Source: ASTM D7611 resin identification codes (shared/REFERENCE.md).
+	// Source: ASTM D7611, the resin identification codes 1–7.
 	want := map[string]int{"pet_clear": 1, "hdpe": 2, "pvc": 3, "ldpe": 4, "pp": 5, "ps": 6, "pla": 7}
 	for _, r := range rows {
 		if c, ok := want[r.Key]; ok && c != r.Code {
