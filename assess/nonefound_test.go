@@ -141,3 +141,14 @@ func TestNoneFoundOnePullUndecided(t *testing.T) {
 		t.Errorf("one pull: %v need %+v, want undecided and 2 pulls in all", lv.Verdict, lv.Need)
 	}
 }
+
+func TestEveryCategoryHasAPieceMass(t *testing.T) {
+	for _, c := range Categories() {
+		if !(typicalPieceKg[c.Key] > 0) {
+			t.Errorf("%s has no typical piece mass", c.Key)
+		}
+	}
+	if len(typicalPieceKg) != NumCategories() {
+		t.Errorf("%d piece masses for %d categories", len(typicalPieceKg), NumCategories())
+	}
+}
