@@ -1,6 +1,7 @@
 package yield
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"strings"
@@ -98,7 +99,8 @@ func EvaluateLoad(lr assess.LoadResult, plan Plan) (Report, error) {
 // the load's two-stage estimator (its between-bale and within-bale
 // terms), the mass is the load's.
 func SimulateLoad(lr assess.LoadResult, plan Plan, opt MCOptions) (MCResult, error) {
-	return SimulateSpread(lr.Spread, lr.BaleKg, lr.Known(), plan, opt)
+	_, res, err := RunLoad(context.Background(), lr, plan, opt, nil)
+	return res, err
 }
 
 // evaluateShares runs a composition (shares of est.Categories) of

@@ -1,6 +1,7 @@
 package yield
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -321,20 +322,25 @@ var isPETComp = func() []bool {
 // linearised residuals. With one pull no spread of the audit can be
 // given (SpreadNone).
 func Simulate(pulls []assess.Pull, baleKg float64, plan Plan, opt MCOptions) (MCResult, error) {
-	if _, err := Evaluate(pulls, baleKg, plan); err != nil {
-		return MCResult{}, err
-	}
-	est, err := assess.Assess(assess.Audit{Pulls: pulls, BaleKg: baleKg}, assess.Options{Method: assess.MethodRatio})
-	if err != nil {
-		return MCResult{}, err
-	}
-	return SimulateSpread(est.Spread, baleKg, est.SampledShare >= 1, plan, opt)
+	_, res, err := Run(context.Background(), pulls, baleKg, plan, opt, nil)
+	return res, err
 }
 
 // SimulateSpread runs the Monte Carlo for a composition given as an
 // estimate with its spread and a mass (a bale's, or a load's): see
 // Simulate. known says the composition is known exactly (a whole sort).
 func SimulateSpread(sp assess.Spread, massKg float64, known bool, plan Plan, opt MCOptions) (MCResult, error) {
+	return simulateSpread(context.Background(), sp, massKg, known, plan, opt, nil)
+}
+
+// progressEvery is how many draws a run makes between looks at its
+// context and calls of its progress function.
+const progressEvery = 1000
+
+// simulateSpread is SimulateSpread that stops with ctx.Err() once ctx is
+// done and reports progress every progressEvery draws (when progress is
+// not nil).
+func simulateSpread(ctx context.Context, sp assess.Spread, massKg float64, known bool, plan Plan, opt MCOptions, progress func(done, of int)) (MCResult, error) {
 	if err := plan.validate(); err != nil {
 		return MCResult{}, err
 	}
@@ -357,11 +363,22 @@ func SimulateSpread(sp assess.Spread, massKg float64, known bool, plan Plan, opt
 	pet := make([]float64, draws)
 	ohv := make([]float64, 0, draws)
 	for d := range draws {
+		if d%progressEvery == 0 && d > 0 {
+			if err := ctx.Err(); err != nil {
+				return MCResult{}, err
+			}
+			if progress != nil {
+				progress(d, draws)
+			}
+		}
 		f, p, h := s.draw()
 		flake[d], product[d], pet[d] = f, p, s.pet
 		if !math.IsNaN(h) {
 			ohv = append(ohv, h)
 		}
+	}
+	if progress != nil {
+		progress(draws, draws)
 	}
 	res := MCResult{Draws: draws, Seed: opt.Seed, Spread: SpreadAudit,
 		TargetPET: summarize(pet), FlakeKg: summarize(flake), GlycolysateKg: summarize(product), HydroxylValue: summarize(ohv)}
