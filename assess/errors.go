@@ -49,4 +49,3 @@ func (e *Error) Unwrap() error { return e.Err }
 func errorf(sentinel error, format string, args ...any) error {
 	return &Error{Msg: fmt.Sprintf(format, args...), Err: sentinel}
 }
-
