@@ -2,7 +2,6 @@ package assess
 
 import (
 	"fmt"
-	"strings"
 )
 
 // DefaultRelPrecision is the relative precision e of the sample-size
@@ -87,13 +86,9 @@ func Advise(r Result, sv *SpecVerdict, e float64) Advice {
 		return a
 	case sv != nil && sv.Verdict == Fail:
 		a.Kind, a.Failing, a.Need = AdviceFailed, sv.Failing(), decided()
-		var texts []string
-		for _, l := range a.Failing {
-			texts = append(texts, l.Text())
-		}
 		a.Item = a.Failing[0].Item
 		a.Why = fmt.Sprintf("the bale fails %s: the %.0f %% interval lies wholly on the wrong side, so more pulls are not needed to decide",
-			strings.Join(texts, ", "), 100*r.Confidence)
+			limitTexts(a.Failing), 100*r.Confidence)
 		return a
 	case r.Pulls < 2:
 		a.Kind, a.Need = AdviceAnotherPull, SampleSize{State: SizePulls, Total: 2, More: 1}

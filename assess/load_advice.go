@@ -3,7 +3,6 @@ package assess
 import (
 	"fmt"
 	"math"
-	"strings"
 )
 
 // DefaultBaleCost is the effort of auditing one more bale (breaking it
@@ -142,13 +141,9 @@ func AdviseLoad(lr LoadResult, sv *SpecVerdict, baleCost float64) LoadAdvice {
 		return a
 	case sv != nil && sv.Verdict == Fail:
 		a.Kind, a.Failing = AdviceFailed, sv.Failing()
-		var texts []string
-		for _, l := range a.Failing {
-			texts = append(texts, l.Text())
-		}
 		a.Item = a.Failing[0].Item
 		a.Why = fmt.Sprintf("the load fails %s: the %.0f %% interval lies wholly on the wrong side, so more bales or pulls are not needed to decide",
-			strings.Join(texts, ", "), 100*lr.Confidence)
+			limitTexts(a.Failing), 100*lr.Confidence)
 		return a
 	case lr.Audited < 2 && lr.Bales > 1:
 		a.Kind, a.Route = AdviceAnotherPull, RouteMoreBales

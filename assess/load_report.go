@@ -48,17 +48,9 @@ type LoadSpecReport struct {
 // BalesNeeded are the bales to audit at the current pulls per bale, null
 // when no number can be given ("need" says why).
 type LoadLimitReport struct {
-	Item        string   `json:"item"`
-	Bound       string   `json:"bound"`
-	Limit       float64  `json:"limit"`
-	Fraction    float64  `json:"fraction"`
-	Low         *float64 `json:"low"`
-	High        *float64 `json:"high"`
-	Verdict     string   `json:"verdict"`
-	MoreBales   *int     `json:"more_bales"`
-	BalesNeeded *int     `json:"bales_needed"`
-	Need        string   `json:"need"`
-	Note        string   `json:"note,omitempty"`
+	LimitCore
+	MoreBales   *int `json:"more_bales"`
+	BalesNeeded *int `json:"bales_needed"`
 }
 
 // LoadAdviceReport is the load advice.
@@ -103,9 +95,7 @@ func NewLoadReport(lr LoadResult, sv *SpecVerdict, adv LoadAdvice) LoadReport {
 		sr := &LoadSpecReport{Name: sv.Spec, Verdict: sv.Verdict.String(), Grade: sv.Grade, GradeState: sv.GradeState.String(),
 			CountAttached: sv.CountAttached, Limits: []LoadLimitReport{}}
 		for _, lv := range sv.Limits {
-			l := LoadLimitReport{Item: lv.Item, Bound: lv.Bound.String(), Limit: lv.Limit, Fraction: lv.Share.Fraction,
-				Verdict: lv.Verdict.String(), Need: lv.Need.State.String(), Note: lv.Note}
-			l.Low, l.High = interval(lv.Share)
+			l := LoadLimitReport{LimitCore: limitCore(lv)}
 			l.BalesNeeded, l.MoreBales = sizeFields(lv.Need)
 			sr.Limits = append(sr.Limits, l)
 		}

@@ -85,21 +85,35 @@ type SpecReport struct {
 	Limits        []LimitReport `json:"limits"`
 }
 
+// LimitCore is what a bale's and a load's limit report share.
+type LimitCore struct {
+	Item     string   `json:"item"`
+	Bound    string   `json:"bound"` // min, max or zero
+	Limit    float64  `json:"limit"`
+	Fraction float64  `json:"fraction"`
+	Low      *float64 `json:"low"`
+	High     *float64 `json:"high"`
+	Verdict  string   `json:"verdict"`
+	// Need is "pulls" (a number follows), "whole_bale" (only a sort of
+	// the whole bale, or for a load every bale, decides), "beyond_reach"
+	// or "unknown".
+	Need string `json:"need"`
+	Note string `json:"note,omitempty"`
+}
+
+func limitCore(lv LimitVerdict) LimitCore {
+	c := LimitCore{Item: lv.Item, Bound: lv.Bound.String(), Limit: lv.Limit, Fraction: lv.Share.Fraction,
+		Verdict: lv.Verdict.String(), Need: lv.Need.State.String(), Note: lv.Note}
+	c.Low, c.High = interval(lv.Share)
+	return c
+}
+
 // LimitReport is one bound's verdict. MorePulls and PullsNeeded are null
-// when no number can be given (Need says why: "unknown", or "whole_bale"
-// when only a sort of the whole bale decides).
+// when no number can be given (Need says why).
 type LimitReport struct {
-	Item        string   `json:"item"`
-	Bound       string   `json:"bound"` // min, max or zero
-	Limit       float64  `json:"limit"`
-	Fraction    float64  `json:"fraction"`
-	Low         *float64 `json:"low"`
-	High        *float64 `json:"high"`
-	Verdict     string   `json:"verdict"`
-	MorePulls   *int     `json:"more_pulls"`
-	PullsNeeded *int     `json:"pulls_needed"`
-	Need        string   `json:"need"`
-	Note        string   `json:"note,omitempty"`
+	LimitCore
+	MorePulls   *int `json:"more_pulls"`
+	PullsNeeded *int `json:"pulls_needed"`
 }
 
 // AdviceReport is the advice on the sample.
@@ -159,9 +173,7 @@ func NewReport(r Result, sv *SpecVerdict, adv Advice) Report {
 		sr := &SpecReport{Name: sv.Spec, Verdict: sv.Verdict.String(), Grade: sv.Grade, GradeSure: sv.GradeState == GradeSure,
 			GradeState: sv.GradeState.String(), CountAttached: sv.CountAttached, Limits: []LimitReport{}}
 		for _, lv := range sv.Limits {
-			lr := LimitReport{Item: lv.Item, Bound: lv.Bound.String(), Limit: lv.Limit, Fraction: lv.Share.Fraction,
-				Verdict: lv.Verdict.String(), Need: lv.Need.State.String(), Note: lv.Note}
-			lr.Low, lr.High = interval(lv.Share)
+			lr := LimitReport{LimitCore: limitCore(lv)}
 			lr.PullsNeeded, lr.MorePulls = sizeFields(lv.Need)
 			sr.Limits = append(sr.Limits, lr)
 		}

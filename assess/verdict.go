@@ -123,6 +123,15 @@ func (sv SpecVerdict) Failing() []LimitVerdict {
 	return out
 }
 
+// limitTexts joins the limits' texts: "pvc ≤ 1 %, hazard: none".
+func limitTexts(limits []LimitVerdict) string {
+	texts := make([]string, len(limits))
+	for i, l := range limits {
+		texts[i] = l.Text()
+	}
+	return strings.Join(texts, ", ")
+}
+
 // Text is the limit in words: "pvc ≤ 1 %", "pet ≥ 72 %", "hazard: none".
 func (l LimitVerdict) Text() string {
 	switch l.Bound {
