@@ -27,7 +27,7 @@ var allowed = map[string][]string{
 	"assess":                {},
 	"yield":                 {"assess"},
 	"data":                  {},
-	"data/record":           {"assess"},
+	"data/record":           {"assess", "yield"},
 	"data/geo":              {"data/record"},
 	"data/store":            {"assess", "data/record", "data/geo"},
 	"data/transfer":         {"data/record", "data/store"},

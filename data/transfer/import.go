@@ -36,6 +36,9 @@ type Importer struct {
 	Progress func(Progress)
 	// MaxBytes caps the file size (MaxBundleBytes when 0).
 	MaxBytes int64
+	// AllowDemo lets a store of real records take the demo scenario's
+	// records (store.ErrDemoRecords otherwise).
+	AllowDemo bool
 }
 
 // Progress reports where an import is.
@@ -216,7 +219,7 @@ func (im *Importer) importBytes(raw []byte, prog func(Progress)) FileReport {
 	}
 	fr.Flags, fr.Replay = append(flags, im.skewFlags(h)...), replay
 	prog(Progress{Step: "applying", Events: fr.Events})
-	res, err := im.Store.ApplyRawWithIDs(ob.Raws, ob.IDs, meta)
+	res, err := im.Store.ApplyRawWithIDs(ob.Raws, ob.IDs, meta, store.ApplyOptions{AllowDemo: im.AllowDemo})
 	if err != nil {
 		var ee *record.EventError
 		if errors.As(err, &ee) && ee.Index >= 0 && ee.Index < len(ob.Raws) {
