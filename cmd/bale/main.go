@@ -5,11 +5,13 @@
 package main
 
 import (
+	"baleassay/data/desk"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"sort"
+	"strings"
 )
 
 // command is one sub-command of bale. Each file of this package registers
@@ -65,6 +67,11 @@ func run(args []string, stdout, stderr io.Writer) int {
 	var ue usageError
 	if errors.As(err, &ue) {
 		fmt.Fprintf(stderr, "bale %s: %s\nusage: bale %s %s\n", c.name, ue.msg, c.name, c.usage)
+		return 2
+	}
+	if errors.Is(err, desk.ErrUsage) {
+		msg := strings.TrimPrefix(err.Error(), desk.ErrUsage.Error()+": ")
+		fmt.Fprintf(stderr, "bale %s: %s\nusage: bale %s %s\n", c.name, msg, c.name, c.usage)
 		return 2
 	}
 	fmt.Fprintf(stderr, "bale %s: %v\n", c.name, err)
