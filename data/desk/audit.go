@@ -165,7 +165,8 @@ func auditOf(b record.BaleRecord, pulls []store.PullView) (assess.Audit, []strin
 			return a, clash, err
 		}
 		if count[p.Pull.Label] > 1 {
-			ap.Label = fmt.Sprintf("%s (%s)", p.Pull.Label, p.ID.String()[:8])
+			s := p.ID.String()
+			ap.Label = fmt.Sprintf("%s (%s)", p.Pull.Label, s[len(s)-8:])
 		}
 		a.Pulls = append(a.Pulls, ap)
 	}
