@@ -87,8 +87,7 @@ func Advise(r Result, sv *SpecVerdict, e float64) Advice {
 	case sv != nil && sv.Verdict == Fail:
 		a.Kind, a.Failing, a.Need = AdviceFailed, sv.Failing(), decided()
 		a.Item = a.Failing[0].Item
-		a.Why = fmt.Sprintf("the bale fails %s: the %.0f %% interval lies wholly on the wrong side, so more pulls are not needed to decide",
-			limitTexts(a.Failing), 100*r.Confidence)
+		a.Why = fmt.Sprintf("the bale fails %s; more pulls are not needed to decide", failingTexts(a.Failing, r.Confidence))
 		return a
 	case r.Pulls < 2:
 		a.Kind, a.Need = AdviceAnotherPull, SampleSize{State: SizePulls, Total: 2, More: 1}

@@ -142,8 +142,7 @@ func AdviseLoad(lr LoadResult, sv *SpecVerdict, baleCost float64) LoadAdvice {
 	case sv != nil && sv.Verdict == Fail:
 		a.Kind, a.Failing = AdviceFailed, sv.Failing()
 		a.Item = a.Failing[0].Item
-		a.Why = fmt.Sprintf("the load fails %s: the %.0f %% interval lies wholly on the wrong side, so more bales or pulls are not needed to decide",
-			limitTexts(a.Failing), 100*lr.Confidence)
+		a.Why = fmt.Sprintf("the load fails %s; more bales or pulls are not needed to decide", failingTexts(a.Failing, lr.Confidence))
 		return a
 	case lr.Audited < 2 && lr.Bales > 1:
 		a.Kind, a.Route = AdviceAnotherPull, RouteMoreBales

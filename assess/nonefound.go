@@ -57,6 +57,10 @@ func (b NoneFound) Text() string {
 		b.Pulls, plural(b.Pulls, "pull", "pulls"), kgText(b.Kg), pctText(b.Upper), levelText(b.Level))
 }
 
+// UpperText is the upper bound in per cent, two significant digits,
+// rounded up: "0.25".
+func (b NoneFound) UpperText() string { return pctText(b.Upper) }
+
 // kgText prints a mass without trailing noise: 43, 43.5, 0.75.
 func kgText(kg float64) string {
 	if kg >= 100 {

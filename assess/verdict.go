@@ -123,11 +123,16 @@ func (sv SpecVerdict) Failing() []LimitVerdict {
 	return out
 }
 
-// limitTexts joins the limits' texts: "pvc ≤ 1 %, hazard: none".
-func limitTexts(limits []LimitVerdict) string {
+// failingTexts says why each failing limit fails: "pvc ≤ 1 % (its 90 %
+// interval lies wholly outside), hazard: none (found)".
+func failingTexts(limits []LimitVerdict, conf float64) string {
 	texts := make([]string, len(limits))
 	for i, l := range limits {
-		texts[i] = l.Text()
+		why := fmt.Sprintf("its %s %% interval lies wholly outside", levelText(conf))
+		if l.Bound == Zero {
+			why = "found"
+		}
+		texts[i] = fmt.Sprintf("%s (%s)", l.Text(), why)
 	}
 	return strings.Join(texts, ", ")
 }
