@@ -10,6 +10,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"baleassay/assess"
@@ -84,5 +85,16 @@ func TestAuditLoadRefusals(t *testing.T) {
 	_ = os.WriteFile(file, []byte("pull,pet_clear\n1,20\n"), 0o600)
 	if _, err := d.AuditLoad(context.Background(), []LoadBaleInput{{File: file, Kg: 500}, {File: file, Kg: 500}}, LoadOptions{Bales: 1}); !errors.Is(err, assess.ErrBadLoad) {
 		t.Errorf("more audited than delivered: %v", err)
+	}
+}
+
+func TestHazardNotice(t *testing.T) {
+	clean := []record.PullRecord{pull("P1", 20, 0)}
+	if n := HazardNotice(clean); n != "" {
+		t.Errorf("no hazard, notice %q", n)
+	}
+	bat := record.PullRecord{Label: "P2", Kg: map[string]float64{"pet_clear": 20}, Pieces: map[string]int64{"hazard": 1}}
+	if n := HazardNotice(append(clean, bat)); n == "" || !strings.HasPrefix(n, "HAZARD in pull P2. ") || !strings.Contains(n, "battery") {
+		t.Errorf("a counted battery: %q", n)
 	}
 }
