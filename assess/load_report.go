@@ -35,14 +35,7 @@ type LoadBaleReport struct {
 }
 
 // LoadSpecReport is a spec's verdict on a load.
-type LoadSpecReport struct {
-	Name          string            `json:"name"`
-	Verdict       string            `json:"verdict"`
-	Grade         string            `json:"grade,omitempty"`
-	GradeState    string            `json:"grade_state"`
-	CountAttached bool              `json:"count_attached"`
-	Limits        []LoadLimitReport `json:"limits"`
-}
+type LoadSpecReport = SpecReportOf[LoadLimitReport]
 
 // LoadLimitReport is one bound's verdict on a load: MoreBales and
 // BalesNeeded are the bales to audit at the current pulls per bale, null
@@ -92,14 +85,11 @@ func NewLoadReport(lr LoadResult, sv *SpecVerdict, adv LoadAdvice) LoadReport {
 		rep.PerBale = append(rep.PerBale, b)
 	}
 	if sv != nil {
-		sr := &LoadSpecReport{Name: sv.Spec, Verdict: sv.Verdict.String(), Grade: sv.Grade, GradeState: sv.GradeState.String(),
-			CountAttached: sv.CountAttached, Limits: []LoadLimitReport{}}
-		for _, lv := range sv.Limits {
-			l := LoadLimitReport{LimitCore: limitCore(lv)}
-			l.BalesNeeded, l.MoreBales = sizeFields(lv.Need)
-			sr.Limits = append(sr.Limits, l)
-		}
-		rep.Spec = sr
+		rep.Spec = specReport(*sv, func(c LimitCore, need SampleSize) LoadLimitReport {
+			l := LoadLimitReport{LimitCore: c}
+			l.BalesNeeded, l.MoreBales = sizeFields(need)
+			return l
+		})
 	}
 	rep.Advice = LoadAdviceReport{Kind: adv.Kind.String(), Route: adv.Route.String(), Item: adv.Item, BaleCost: adv.BaleCost,
 		CostBales: finiteOrNil(adv.CostBales), CostPulls: finiteOrNil(adv.CostPulls), Failing: []string{}, Why: adv.Why}

@@ -74,15 +74,29 @@ type HazardReport struct {
 	Pulls  []string `json:"pulls"`
 }
 
-// SpecReport is a spec's verdict.
-type SpecReport struct {
-	Name          string        `json:"name"`
-	Verdict       string        `json:"verdict"`
-	Grade         string        `json:"grade,omitempty"`
-	GradeSure     bool          `json:"grade_sure"`
-	GradeState    string        `json:"grade_state"`
-	CountAttached bool          `json:"count_attached"`
-	Limits        []LimitReport `json:"limits"`
+// SpecReportOf is a spec's verdict with limits of type L: a bale's
+// (LimitReport, in pulls) or a load's (LoadLimitReport, in bales).
+type SpecReportOf[L any] struct {
+	Name          string `json:"name"`
+	Verdict       string `json:"verdict"`
+	Grade         string `json:"grade,omitempty"`
+	GradeSure     bool   `json:"grade_sure"`
+	GradeState    string `json:"grade_state"`
+	CountAttached bool   `json:"count_attached"`
+	Limits        []L    `json:"limits"`
+}
+
+// SpecReport is a spec's verdict on a bale.
+type SpecReport = SpecReportOf[LimitReport]
+
+// specReport gathers a verdict; limit turns each limit into its report.
+func specReport[L any](sv SpecVerdict, limit func(LimitCore, SampleSize) L) *SpecReportOf[L] {
+	sr := &SpecReportOf[L]{Name: sv.Spec, Verdict: sv.Verdict.String(), Grade: sv.Grade, GradeSure: sv.GradeState == GradeSure,
+		GradeState: sv.GradeState.String(), CountAttached: sv.CountAttached, Limits: []L{}}
+	for _, lv := range sv.Limits {
+		sr.Limits = append(sr.Limits, limit(limitCore(lv), lv.Need))
+	}
+	return sr
 }
 
 // LimitCore is what a bale's and a load's limit report share.
@@ -170,14 +184,11 @@ func NewReport(r Result, sv *SpecVerdict, adv Advice) Report {
 	hz := r.Group(GroupHazards)
 	rep.Hazards = HazardReport{Found: len(r.HazardPulls) > 0, Kg: hz.Kg, Pieces: r.HazardPieces, Pulls: append([]string{}, r.HazardPulls...)}
 	if sv != nil {
-		sr := &SpecReport{Name: sv.Spec, Verdict: sv.Verdict.String(), Grade: sv.Grade, GradeSure: sv.GradeState == GradeSure,
-			GradeState: sv.GradeState.String(), CountAttached: sv.CountAttached, Limits: []LimitReport{}}
-		for _, lv := range sv.Limits {
-			lr := LimitReport{LimitCore: limitCore(lv)}
-			lr.PullsNeeded, lr.MorePulls = sizeFields(lv.Need)
-			sr.Limits = append(sr.Limits, lr)
-		}
-		rep.Spec = sr
+		rep.Spec = specReport(*sv, func(c LimitCore, need SampleSize) LimitReport {
+			lr := LimitReport{LimitCore: c}
+			lr.PullsNeeded, lr.MorePulls = sizeFields(need)
+			return lr
+		})
 	}
 	rep.Advice = AdviceReport{Kind: adv.Kind.String(), Item: adv.Item, RelPrecision: adv.RelPrecision, Why: adv.Why, Failing: []string{},
 		SortWholeBale: adv.Need.State == SizeWholeBale || adv.Need.State == SizeBeyondReach}

@@ -46,10 +46,7 @@ func printReport(w io.Writer, rep assess.Report, res assess.Result) {
 		fmt.Fprintf(w, " (Student t = %.3f, %d df)", res.T, rep.Pulls-1)
 	}
 	fmt.Fprintln(w)
-	printShares(w, rep.Groups, rep.Categories, rep.Confidence)
-	printPieces(w, rep.Pieces)
-	fmt.Fprintln(w)
-	printHazards(w, rep.Hazards, rep.SampledKg)
+	printBody(w, rep.Groups, rep.Categories, rep.Confidence, rep.Pieces, rep.Hazards, rep.SampledKg)
 	if s := rep.Spec; s != nil {
 		limits := make([]limitRow, len(s.Limits))
 		for i, l := range s.Limits {
@@ -63,6 +60,15 @@ func printReport(w io.Writer, rep assess.Report, res assess.Result) {
 	}
 	fmt.Fprintln(w, "\nSafety: bale ties are under tension and bales spring apart when cut: cut from the side, wear eye protection,")
 	fmt.Fprintln(w, "never stand under a lifted bale. Hazardous containers, sharps and lithium batteries may be inside. Local codes rule.")
+}
+
+// printBody prints the shares, the piece counts and the hazards of a
+// bale or a load.
+func printBody(w io.Writer, groups, cats []assess.ShareReport, conf float64, pieces []assess.PieceReport, h assess.HazardReport, sampledKg float64) {
+	printShares(w, groups, cats, conf)
+	printPieces(w, pieces)
+	fmt.Fprintln(w)
+	printHazards(w, h, sampledKg)
 }
 
 // printShares prints the groups, the categories found and, grouped by

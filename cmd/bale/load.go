@@ -114,10 +114,7 @@ func printLoad(w io.Writer, la desk.LoadAudit) {
 		fmt.Fprintf(tw, "%s\t%.0f\t%d\t%.1f\t%s\t%s\t\n", b.Label, b.BaleKg, b.Pulls, b.SampledKg, pct(b.TargetPET), intervalText(b.Low, b.High))
 	}
 	tw.Flush()
-	printShares(w, r.Groups, r.Categories, r.Confidence)
-	printPieces(w, r.Pieces)
-	fmt.Fprintln(w)
-	printHazards(w, r.Hazards, r.SampledKg)
+	printBody(w, r.Groups, r.Categories, r.Confidence, r.Pieces, r.Hazards, r.SampledKg)
 	if s := r.Spec; s != nil {
 		limits := make([]limitRow, len(s.Limits))
 		for i, l := range s.Limits {
