@@ -35,8 +35,8 @@ func TestPullsForHalfWidthNISTTable(t *testing.T) {
 
 func TestPullsForPrecisionSmallestN(t *testing.T) {
 	// s = 0.004, x̄ = 0.01, e = 0.10 at 90 %: h = 0.001, the condition
-	// t(n−1)·4 ≤ √n. Computed by our own formula (the scan below); 46 is
-	// also what ASTM D5231's iterated n = (t·s/(e·x̄))² settles on here.
+	// t(n−1)·4 ≤ √n. Computed by our own formula (the pull-by-pull scan
+	// below gives 46).
 	n, err := PullsForPrecision(0.004, 0.01, 0.10, 0.90, Population{Taken: 6})
 	if err != nil {
 		t.Fatal(err)
