@@ -5,17 +5,19 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"strings"
 	"text/tabwriter"
 
 	"baleassay/assess"
+	"baleassay/data/desk"
 )
 
 func init() {
 	register(command{
 		name:    "assess",
-		usage:   "PULLS.csv [--bale-kg N] [--spec NAME|FILE] [--confidence C] [--method ratio|mean] [--precision E] [--json]",
-		summary: "estimate a bale's composition from its pulls and judge it against a spec",
+		usage:   "PULLS.csv|BALE [--bale-kg N] [--spec NAME|FILE] [--confidence C] [--method ratio|mean] [--precision E] [--json] [--store DIR|--demo]",
+		summary: "estimate a bale's composition from its pulls (a file, or a stored bale with its spec) and judge it against a spec",
 		run:     runAssess,
 	})
 	register(command{
@@ -34,12 +36,13 @@ func runAssess(args []string, stdout, stderr io.Writer) error {
 	method := fs.String("method", "ratio", "estimator: ratio (Cochran) or mean (ASTM D5231 mean of fractions)")
 	prec := fs.Float64("precision", assess.DefaultRelPrecision, "relative precision for the sample-size advice, e.g. 0.10")
 	asJSON := fs.Bool("json", false, "print the report as JSON")
+	dir := storeFlag(fs)
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
 	}
 	if len(pos) != 1 {
-		return usagef("give exactly one pulls CSV file")
+		return usagef("give exactly one pulls CSV file, or a stored bale")
 	}
 	m, err := assess.ParseMethod(*method)
 	if err != nil {
@@ -53,6 +56,31 @@ func runAssess(args []string, stdout, stderr io.Writer) error {
 	}
 	if math.IsNaN(*baleKg) || math.IsInf(*baleKg, 0) || *baleKg < 0 {
 		return usagef("--bale-kg %g: give the bale's gross mass in kg (0 or more)", *baleKg)
+	}
+	if _, err := os.Stat(pos[0]); err != nil && !strings.ContainsAny(pos[0], "/\\.") {
+		// Not a file: a stored bale, its pulls and its spec from the store.
+		d, err := openDesk(*dir, false)
+		if err != nil {
+			return err
+		}
+		defer d.Close()
+		opt := desk.AuditOptions{Confidence: *conf, Method: m, Precision: *prec}
+		if flagSet(fs, "spec") {
+			opt.Spec = *specName
+		}
+		a, err := d.AuditBale(pos[0], opt)
+		if err != nil {
+			return err
+		}
+		if *asJSON {
+			return writeJSON(stdout, a.Report)
+		}
+		fmt.Fprintf(stdout, "Bale %s %s, %s kg, from the store\n", a.Bale, a.Record.Tag, desk.Num(a.Record.GrossKg, 1))
+		if len(a.LabelClash) > 0 {
+			fmt.Fprintf(stdout, "CONFLICT: pull labels %s were used twice (two devices); both pulls are counted, see bale conflicts\n", strings.Join(a.LabelClash, ", "))
+		}
+		printReport(stdout, a.Report, a.Result)
+		return nil
 	}
 	var spec *assess.Spec
 	if *specName != "none" {
@@ -90,108 +118,6 @@ func runAssess(args []string, stdout, stderr io.Writer) error {
 	}
 	printReport(stdout, rep, res)
 	return nil
-}
-
-func pct(x float64) string { return fmt.Sprintf("%.2f %%", 100*x) }
-
-func intervalText(lo, hi *float64) string {
-	if lo == nil {
-		return "no interval (1 pull)"
-	}
-	return fmt.Sprintf("%.2f – %.2f %%", 100**lo, 100**hi)
-}
-
-func printReport(w io.Writer, rep assess.Report, res assess.Result) {
-	fmt.Fprintf(w, "Bale audit: %d pulls, %.2f kg sampled", rep.Pulls, rep.SampledKg)
-	if rep.BaleKg > 0 {
-		fmt.Fprintf(w, " of a %.0f kg bale (%.1f %%)", rep.BaleKg, 100*rep.SampledShare)
-	}
-	fmt.Fprintf(w, "\n%s estimator, %.0f %% confidence", map[string]string{"ratio": "Cochran ratio", "mean": "ASTM D5231 mean-of-fractions"}[rep.Method], 100*rep.Confidence)
-	if !math.IsNaN(res.T) {
-		fmt.Fprintf(w, " (Student t = %.3f, %d df)", res.T, rep.Pulls-1)
-	}
-	fmt.Fprintln(w)
-	head := fmt.Sprintf("%.0f %% interval", 100*rep.Confidence)
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintf(tw, "\ngroup\tkg\tshare\t%s\t\n", head)
-	for _, g := range rep.Groups {
-		fmt.Fprintf(tw, "%s\t%.3f\t%s\t%s\t\n", g.Name, g.Kg, pct(g.Fraction), intervalText(g.Low, g.High))
-	}
-	fmt.Fprintf(tw, "\ncategory\tcode\tkg\tshare\t%s\t\n", head)
-	for _, c := range rep.Categories {
-		if c.Kg == 0 {
-			continue
-		}
-		code := "–"
-		if *c.Code > 0 {
-			code = fmt.Sprint(*c.Code)
-		}
-		fmt.Fprintf(tw, "%s\t%s\t%.3f\t%s\t%s\t\n", c.Key, code, c.Kg, pct(c.Fraction), intervalText(c.Low, c.High))
-	}
-	tw.Flush()
-	var absent []string
-	for _, c := range rep.Categories {
-		if c.Kg == 0 {
-			absent = append(absent, c.Key)
-		}
-	}
-	if len(absent) > 0 {
-		fmt.Fprintf(w, "not found: %s\n", strings.Join(absent, ", "))
-	}
-	if len(rep.Pieces) > 0 {
-		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-		fmt.Fprintf(tw, "\npieces\tcount\tof\tshare\tWilson\tClopper–Pearson\t\n")
-		for _, p := range rep.Pieces {
-			fmt.Fprintf(tw, "%s\t%d\t%d\t%s\t%.2f – %.2f %%\t%.2f – %.2f %%\t\n", p.Key, p.Pieces, p.Total, pct(p.Fraction),
-				100*p.Wilson[0], 100*p.Wilson[1], 100*p.ClopperPearson[0], 100*p.ClopperPearson[1])
-		}
-		tw.Flush()
-	}
-	fmt.Fprintln(w)
-	if rep.Hazards.Found {
-		fmt.Fprintf(w, "HAZARDS FOUND in pulls %s: %.3f kg, %d pieces. Keep the bale apart and follow the site's hazardous-waste procedure.\n",
-			strings.Join(rep.Hazards.Pulls, ", "), rep.Hazards.Kg, rep.Hazards.Pieces)
-	} else {
-		fmt.Fprintf(w, "Hazards: none found in the %.2f kg sampled (this does not prove the bale free of them).\n", rep.SampledKg)
-	}
-	if s := rep.Spec; s != nil {
-		fmt.Fprintf(w, "\nSpec %s: %s", s.Name, strings.ToUpper(s.Verdict))
-		if s.Grade != "" {
-			sure := "the interval spans more than one band"
-			if s.GradeSure {
-				sure = "the whole interval lies in this band"
-			}
-			fmt.Fprintf(w, "    grade: %s (%s)", s.Grade, sure)
-		}
-		fmt.Fprintln(w)
-		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-		fmt.Fprintf(tw, "  item\tlimit\tshare\tinterval\tverdict\tmore pulls\n")
-		for _, l := range s.Limits {
-			more := "–"
-			switch {
-			case l.Verdict == "undecided" && l.MorePulls == nil:
-				more = "unknown"
-			case l.Verdict == "undecided":
-				more = fmt.Sprintf("about %d", *l.MorePulls)
-			}
-			lim := map[string]string{"min": "≥ ", "max": "≤ ", "zero": "none"}[l.Bound]
-			if l.Bound != "zero" {
-				lim += pct(l.Limit)
-			}
-			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\t%s\n", l.Item, lim, pct(l.Fraction), intervalText(l.Low, l.High), l.Verdict, more)
-		}
-		tw.Flush()
-	}
-	a := rep.Advice
-	fmt.Fprintf(w, "\nSample size: %s.\n", a.Why)
-	if a.PullsNeeded != nil {
-		fmt.Fprintf(w, "  For ±%.0f %% relative precision on %s: %d pulls in all, %d more.\n", 100*a.RelPrecision, a.Item, *a.PullsNeeded, *a.MorePulls)
-	}
-	for _, n := range rep.Notes {
-		fmt.Fprintf(w, "Note: %s\n", n)
-	}
-	fmt.Fprintln(w, "\nSafety: bale ties are under tension and bales spring apart when cut: cut from the side, wear eye protection,")
-	fmt.Fprintln(w, "never stand under a lifted bale. Hazardous containers, sharps and lithium batteries may be inside. Local codes rule.")
 }
 
 func runCategories(args []string, stdout, stderr io.Writer) error {

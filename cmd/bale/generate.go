@@ -1,11 +1,10 @@
 package main
 
 import (
-	"baleassay/data/demo"
-	"baleassay/data/store"
+	"baleassay/data/desk"
+	"errors"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -34,7 +33,7 @@ func runGenerate(args []string, stdout, stderr io.Writer) error {
 	devices := fs.Int("devices", 6, "devices: the office and the grading tablets")
 	seed := fs.Uint64("seed", 1, "random seed: the same seed gives the same events")
 	weeks := fs.Int("weeks", 52, "length of the season in weeks")
-	end := fs.String("end", demo.GenDefaultEnd.Format("2006-01-02"), "last day of the season (a day in the past)")
+	end := fs.String("end", desk.GenDefaultEnd.Format("2006-01-02"), "last day of the season (a day in the past)")
 	per := fs.Int("per-bundle", 5000, "a device exports when it holds this many events")
 	force := fs.Bool("force", false, "replace an existing demo store")
 	pos, err := parseArgs(fs, args)
@@ -56,25 +55,19 @@ func runGenerate(args []string, stdout, stderr io.Writer) error {
 	if !last.Before(time.Now().UTC().Truncate(24 * time.Hour)) {
 		return usagef("--end %s: the season must end before today", *end)
 	}
-	o := demo.GenOptions{Events: *events, Devices: *devices, Seed: *seed, Weeks: *weeks, End: last, PerBundle: *per}
+	o := desk.GenerateOptions{Events: *events, Devices: *devices, Seed: *seed, Weeks: *weeks, End: last, PerBundle: *per, Dir: *dir, Bundles: *bundles, Force: *force}
 	start := time.Now()
-	var sum demo.GenSummary
-	if *bundles != "" {
-		if sum, err = demo.GenerateBundles(*bundles, o); err != nil {
-			return fmt.Errorf("season not written: %w", err)
-		}
-	} else {
-		s, err := openDemoTarget(*dir, *force)
-		if err != nil {
-			return err
-		}
-		sum, err = demo.GenerateStore(s, o)
-		if cerr := s.Close(); err == nil {
-			err = cerr
-		}
-		if err != nil {
-			return fmt.Errorf("season not written: %w", err)
-		}
+	sum, err := desk.Generate(o)
+	switch {
+	case errors.Is(err, desk.ErrDemoExists):
+		return fmt.Errorf("a demo store already exists at %s; give --force to make it again", *dir)
+	case errors.Is(err, desk.ErrRealStore):
+		return fmt.Errorf("%s holds real records, not a demo store: the demo is never mixed into real data; choose another --store", *dir)
+	case err != nil:
+		return fmt.Errorf("season not written: %w", err)
+	}
+	if o.Seed == 0 {
+		o.Seed = 1
 	}
 	fmt.Fprintf(stdout, "generated season (seed %d): %d events from %s to %s in %s\n", o.Seed, sum.Events,
 		sum.From.Format("2006-01-02"), sum.To.Format("2006-01-02"), time.Since(start).Round(time.Millisecond))
@@ -88,38 +81,11 @@ func runGenerate(args []string, stdout, stderr io.Writer) error {
 	if *bundles != "" {
 		b, n := sum.LargestBundle()
 		fmt.Fprintf(stdout, "  %d bundles in %s (largest %.1f MB, %d events); the devices' public keys are in %s\n",
-			sum.Bundles, *bundles, float64(b)/1e6, n, filepath.Join(*bundles, demo.KeysDir))
-		fmt.Fprintf(stdout, "to merge them as the lab would:\n  for k in %s/*.pem; do bale trust add \"$k\" --name \"$(basename \"$k\" .pem)\" --store LAB; done\n  bale import %s --store LAB\n",
-			filepath.Join(*bundles, demo.KeysDir), *bundles)
+			sum.Bundles, *bundles, float64(b)/1e6, n, filepath.Join(*bundles, desk.BundleKeysDir))
+		fmt.Fprintf(stdout, "to merge them as the lab would (they are demo records):\n  for k in %s/*.pem; do bale trust add \"$k\" --name \"$(basename \"$k\" .pem)\" --store LAB; done\n  bale import %s --store LAB --allow-demo\n",
+			filepath.Join(*bundles, desk.BundleKeysDir), *bundles)
 	} else {
 		fmt.Fprintf(stdout, "  in the store %s; try: bale sites list --store %s\n", *dir, *dir)
 	}
 	return nil
-}
-
-// openDemoTarget opens the folder a generated season goes into: a new
-// or empty store, or, with force, a demo store made again; never a store
-// of real records.
-func openDemoTarget(dir string, force bool) (*store.Store, error) {
-	if _, err := os.Stat(filepath.Join(dir, store.DBFile)); err == nil {
-		s, err := store.Open(dir)
-		if err != nil {
-			return nil, err
-		}
-		isDemo, err1 := s.IsDemo()
-		n, err2 := s.LastSeq()
-		s.Close()
-		switch {
-		case err1 != nil || err2 != nil:
-			return nil, fmt.Errorf("cannot read the store at %s", dir)
-		case !isDemo && n > 0:
-			return nil, fmt.Errorf("%s holds real records (%d events), not a demo store: the demo is never mixed into real data; choose another --store", dir, n)
-		case isDemo && !force:
-			return nil, fmt.Errorf("a demo store already exists at %s; give --force to make it again", dir)
-		}
-		if err := os.Remove(filepath.Join(dir, store.DBFile)); err != nil {
-			return nil, fmt.Errorf("cannot replace the demo store: %w", err)
-		}
-	}
-	return store.Open(dir)
 }

@@ -21,7 +21,9 @@ import (
 // deletes a pull typed twice, or the office corrects a bale that the
 // tablet corrects at the same time (a conflict, most of them resolved a
 // week later). Every name is made up; any likeness to a real business is
-// chance. The same options give the same events, byte for byte.
+// chance. Every event is marked as a demo record (a store of real records
+// takes them only when told to). The same options give the same events,
+// byte for byte.
 
 // GenOptions choose a generated season.
 type GenOptions struct {
@@ -190,7 +192,7 @@ func (s *season) emit(g genEvent) (record.EventID, error) {
 	} else {
 		c.Logical++
 	}
-	g.ev.Version, g.ev.Device, g.ev.Clock = record.FormatVersion, s.devs[g.dev].ID, *c
+	g.ev.Version, g.ev.Device, g.ev.Clock, g.ev.Demo = record.FormatVersion, s.devs[g.dev].ID, *c, true
 	raw, err := record.EncodeEvent(g.ev)
 	if err != nil {
 		return record.EventID{}, err

@@ -5,14 +5,12 @@ import (
 	"baleassay/data/record"
 	"errors"
 	"fmt"
-	"os"
-	"path/filepath"
 	"runtime/debug"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	bolt "go.etcd.io/bbolt"
-	berrors "go.etcd.io/bbolt/errors"
 )
 
 // DBFile is the name of the bbolt file inside a store directory.
@@ -33,6 +31,12 @@ type Options struct {
 	// readers may have it open at the same time, and every write fails
 	// with ErrReadOnly.
 	ReadOnly bool
+	// ReadFirst opens an existing store as ReadOnly does, and reopens the
+	// file for writing (taking the write lock then) at the first write;
+	// a store not made yet is made and opened for writing. Front ends
+	// use it, so reading commands never need the write lock or writable
+	// media.
+	ReadFirst bool
 	// NoSiteIndex skips loading the site index (check, rescue, bulk
 	// imports that do not need it); SiteIndex then returns an empty index
 	// that writes do not maintain.
@@ -47,19 +51,23 @@ type Options struct {
 // methods are safe for concurrent use within one process; only one process
 // may have the store open for writing.
 type Store struct {
-	dir      string
-	db       *bolt.DB
-	readOnly bool
-	device   record.DeviceID
-	clock    *record.Clock
-	now      func() time.Time
-	hook     func() error
+	dir       string
+	db        *bolt.DB     // replaced only under wmu and dbmu (reopenWritable)
+	dbmu      sync.RWMutex // readers of db hold it shared
+	readOnly  bool
+	readFirst bool
+	timeout   time.Duration
+	device    record.DeviceID
+	clock     *record.Clock
+	now       func() time.Time
+	hook      func() error
 
 	wmu    sync.Mutex // serialises writes; guards failed and closed
 	failed error
 	closed bool
 
 	sites *geo.SiteIndex // nil when opened with NoSiteIndex
+	demo  atomic.Bool    // made by the demo scenario: saves are marked as demo records
 }
 
 // WriteError reports that a write transaction failed on the disk side. The
@@ -106,95 +114,6 @@ func OpenWith(dir string, o Options) (s *Store, err error) {
 }
 
 var errNeedsUpgrade = errors.New("data: store of the previous layout")
-
-func openOnce(dir string, o Options) (s *Store, err error) {
-	path := filepath.Join(dir, DBFile)
-	if o.ReadOnly {
-		if _, err := os.Stat(path); errors.Is(err, os.ErrNotExist) {
-			return nil, fmt.Errorf("%w: %s", ErrNoStore, dir)
-		}
-	} else if err := os.MkdirAll(dir, 0o700); err != nil {
-		return nil, fmt.Errorf("data: create store folder: %w", err)
-	}
-	if st, err := os.Stat(path); err == nil && st.Size() > 0 {
-		if err := checkHeaderCopies(path); err != nil {
-			return nil, err
-		}
-	}
-	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
-	defer recoverDamage(&err)
-	db, err := bolt.Open(path, 0o600, &bolt.Options{Timeout: o.Timeout, FreelistType: bolt.FreelistMapType, ReadOnly: o.ReadOnly, InitialMmapSize: initialMmap})
-	if err != nil {
-		switch {
-		case errors.Is(err, berrors.ErrTimeout):
-			return nil, &StoreInUseError{Path: dir}
-		case errors.Is(err, berrors.ErrInvalid), errors.Is(err, berrors.ErrChecksum), errors.Is(err, berrors.ErrVersionMismatch):
-			return nil, damagef("bbolt refused the file: %v", err)
-		}
-		return nil, fmt.Errorf("data: open store %s: %w", dir, err)
-	}
-	s = &Store{dir: dir, db: db, now: o.Now, hook: o.beforeCommit, readOnly: o.ReadOnly}
-	defer func() {
-		if err != nil {
-			db.Close()
-			s = nil
-		}
-	}()
-	if !o.ReadOnly {
-		// Before any write: a damaged free-page list would hand live
-		// pages to the first commit.
-		if err := checkFreelist(path); err != nil {
-			return nil, err
-		}
-	}
-	var layout int
-	if err := db.View(func(tx *bolt.Tx) error { layout = layoutOf(tx); return nil }); err != nil {
-		return nil, err
-	}
-	switch {
-	case layout == 1:
-		return nil, errNeedsUpgrade
-	case layout == 0 && o.ReadOnly:
-		return nil, fmt.Errorf("%w: %s holds an empty file", ErrNoStore, dir)
-	case layout == 0:
-		if err := db.Update(func(tx *bolt.Tx) error { return initStore(tx, o.Now()) }); err != nil {
-			return nil, fmt.Errorf("data: make store %s: %w", dir, err)
-		}
-	}
-	var last record.HLC
-	err = db.View(func(tx *bolt.Tx) error {
-		c, err := verifyMeta(tx)
-		if err != nil {
-			return err
-		}
-		m := tx.Bucket(bMeta)
-		dev, ok, err := metaGet(m, metaDevice)
-		if err != nil || !ok || len(dev) != len(s.device) {
-			return damagef("the store's device id is missing or damaged")
-		}
-		copy(s.device[:], dev)
-		clock, _, err := metaGet(m, metaClock)
-		if err != nil {
-			return err
-		}
-		last = record.HLCFromBytes(clock)
-		return checkLogEnd(tx, c)
-	})
-	if err != nil {
-		if errors.Is(err, ErrDamaged) {
-			return nil, err
-		}
-		return nil, fmt.Errorf("data: prepare store %s: %w", dir, err)
-	}
-	s.clock = record.NewClock(o.Now, last)
-	if o.NoSiteIndex {
-		return s, nil
-	}
-	if err := s.loadSites(); err != nil {
-		return nil, err
-	}
-	return s, nil
-}
 
 // layoutOf tells the layout of an open file: 0 for an empty file, 1 for
 // the first layout (bucket "events"), 2 for this one.
@@ -259,6 +178,8 @@ func (s *Store) Close() (err error) {
 		return nil
 	}
 	s.closed = true
+	s.dbmu.Lock()
+	defer s.dbmu.Unlock()
 	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
 	defer recoverDamage(&err)
 	return s.db.Close()
@@ -294,6 +215,8 @@ func (s *Store) view(fn func(tx *bolt.Tx) error) (err error) {
 	if closed {
 		return ErrClosed
 	}
+	s.dbmu.RLock()
+	defer s.dbmu.RUnlock()
 	defer s.nameDamage(&err)
 	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
 	defer recoverDamage(&err)

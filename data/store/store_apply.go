@@ -28,18 +28,25 @@ type ApplyResult struct {
 // store reads it until the commit and keeps nothing of it afterwards.
 // Meta keys must start with MetaTransferPrefix.
 func (s *Store) ApplyRaw(raws [][]byte, meta map[string][]byte) (ApplyResult, error) {
-	return s.ApplyRawWithIDs(raws, nil, meta)
+	return s.ApplyRawWithIDs(raws, nil, meta, ApplyOptions{})
+}
+
+// ApplyOptions tune ApplyRawWithIDs.
+type ApplyOptions struct {
+	// AllowDemo lets a store of real records take events of the demo
+	// scenario; without it they are refused with a *DemoRecordsError.
+	AllowDemo bool
 }
 
 // ApplyRawWithIDs is ApplyRaw with the events' ids when the caller has
 // them (OpenBundle hashed every event to check its stated id); nil ids
 // are computed here.
-func (s *Store) ApplyRawWithIDs(raws [][]byte, ids []record.EventID, meta map[string][]byte) (ApplyResult, error) {
+func (s *Store) ApplyRawWithIDs(raws [][]byte, ids []record.EventID, meta map[string][]byte, opt ApplyOptions) (ApplyResult, error) {
 	b, err := s.Check(raws, ids)
 	if err != nil {
 		return ApplyResult{}, err
 	}
-	return s.ApplyChecked(b, meta)
+	return s.ApplyChecked(b, meta, opt)
 }
 
 // Checked is a batch of events that passed every check short of the
@@ -65,7 +72,18 @@ func (s *Store) Check(raws [][]byte, ids []record.EventID) (Checked, error) {
 // ApplyChecked writes a checked batch and meta values in one committed
 // and synced transaction, all or nothing: the second half of ApplyRaw.
 // Meta keys must start with MetaTransferPrefix.
-func (s *Store) ApplyChecked(b Checked, meta map[string][]byte) (ApplyResult, error) {
+func (s *Store) ApplyChecked(b Checked, meta map[string][]byte, opt ApplyOptions) (ApplyResult, error) {
+	if !opt.AllowDemo && !s.demo.Load() {
+		n := 0
+		for i := range b.items {
+			if b.items[i].Demo {
+				n++
+			}
+		}
+		if n > 0 {
+			return ApplyResult{}, &DemoRecordsError{N: n}
+		}
+	}
 	for k := range meta {
 		if !strings.HasPrefix(k, MetaTransferPrefix) || len(k) > 200 {
 			return ApplyResult{}, fmt.Errorf("%w: %q (want %q...)", ErrMetaKey, k, MetaTransferPrefix)
@@ -102,6 +120,7 @@ func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(tx *bolt.Tx
 	for i, e := range evs {
 		e.Version = record.FormatVersion
 		e.Device = s.device
+		e.Demo = e.Demo || s.demo.Load()
 		e.Clock = s.clock.Now()
 		if e.Entity.IsZero() {
 			id, err := record.NewEntityID()
@@ -140,6 +159,9 @@ func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(tx *bolt.Tx
 func (s *Store) writableLocked() error {
 	if s.closed {
 		return ErrClosed
+	}
+	if s.readOnly && s.readFirst {
+		return s.reopenWritable()
 	}
 	if s.readOnly {
 		return &ReadOnlyError{Dir: s.dir}

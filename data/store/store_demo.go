@@ -15,7 +15,11 @@ func (s *Store) WriteDemo(raws [][]byte, at time.Time, note string) (ApplyResult
 	if err != nil {
 		return ApplyResult{}, err
 	}
-	return s.commit(items, nil, true, func(tx *bolt.Tx, c *counts) error {
+	res, err := s.commit(items, nil, true, func(tx *bolt.Tx, c *counts) error {
 		return metaPut(tx.Bucket(bMeta), c, metaDemo, []byte(note))
 	})
+	if err == nil {
+		s.demo.Store(true)
+	}
+	return res, err
 }

@@ -7,6 +7,7 @@ import (
 	"encoding/binary"
 	"fmt"
 	"math"
+	"runtime/debug"
 
 	bolt "go.etcd.io/bbolt"
 )
@@ -118,6 +119,18 @@ func (s *Store) loadSites() error {
 	}
 	s.sites = geo.NewSiteIndex(sites)
 	return nil
+}
+
+// siteCacheLocked reads the site cache while the caller holds dbmu.
+func (s *Store) siteCacheLocked() (sites []geo.IndexedSite, err error) {
+	defer s.nameDamage(&err)
+	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
+	defer recoverDamage(&err)
+	err = s.db.View(func(tx *bolt.Tx) error {
+		sites, err = readSiteCache(tx)
+		return err
+	})
+	return sites, err
 }
 
 // siteUpdateOf is the index change an entity's new state makes.

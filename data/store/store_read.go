@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"encoding/hex"
 	"fmt"
+	"slices"
 	"strings"
 
 	bolt "go.etcd.io/bbolt"
@@ -284,4 +285,55 @@ func (s *Store) FindEntity(text string) (record.EntityID, error) {
 		return record.EntityID{}, fmt.Errorf("%w: no entity id starts or ends with %q", ErrNotFound, text)
 	}
 	return record.EntityID{}, fmt.Errorf("%w: %q (give more digits, or the last 8 digits of the id)", ErrAmbiguousID, text)
+}
+
+// MatchIDs lists the entities of a kind (any kind when kind is 0) whose id,
+// as 32 lower-case hex digits, starts or ends with frag (any length,
+// dashes removed by the caller), at most limit of them, in id order. It
+// reads only the kind index; a walk that finds fewer than limit counts
+// the index against the counts record, so an entity lost to damage is
+// reported rather than not found.
+func (s *Store) MatchIDs(frag string, kind record.Kind, limit int) ([]record.EntityID, error) {
+	frag = strings.ToLower(frag)
+	var out []record.EntityID
+	err := s.view(func(tx *bolt.Tx) error {
+		c, err := loadCounts(tx)
+		if err != nil {
+			return err
+		}
+		cur := tx.Bucket(bKinds).Cursor()
+		var seen, want uint64
+		full := true
+		for k := 1; k < maxKinds; k++ {
+			if kind != 0 && record.Kind(k) != kind {
+				continue
+			}
+			want += c.Entities[k]
+			found := 0
+			var oc orderCheck
+			for key, _ := cur.Seek([]byte{byte(k)}); key != nil && key[0] == byte(k); key, _ = cur.Next() {
+				if len(key) != 17 || !oc.next(key) {
+					return damagef("the kind index has a damaged entry")
+				}
+				seen++
+				h := hex.EncodeToString(key[1:])
+				if strings.HasPrefix(h, frag) || strings.HasSuffix(h, frag) {
+					out = append(out, record.EntityID(key[1:]))
+					if found++; limit > 0 && found >= limit {
+						full = false
+						break
+					}
+				}
+			}
+		}
+		if full && seen != want {
+			return damagef("the kind index lists %d entities, the counts say %d", seen, want)
+		}
+		return nil
+	})
+	slices.SortFunc(out, func(a, b record.EntityID) int { return bytes.Compare(a[:], b[:]) })
+	if limit > 0 && len(out) > limit {
+		out = out[:limit]
+	}
+	return out, err
 }

@@ -4,6 +4,7 @@ import (
 	"baleassay/data/record"
 	"baleassay/data/store"
 	"bytes"
+	"context"
 	"encoding/hex"
 	"errors"
 	"fmt"
@@ -36,6 +37,12 @@ type Importer struct {
 	Progress func(Progress)
 	// MaxBytes caps the file size (MaxBundleBytes when 0).
 	MaxBytes int64
+	// AllowDemo lets a store of real records take the demo scenario's
+	// records (store.ErrDemoRecords otherwise).
+	AllowDemo bool
+	// Context, when set, stops ImportFiles between files once it is done;
+	// the files already imported stay.
+	Context context.Context
 }
 
 // Progress reports where an import is.
@@ -68,6 +75,9 @@ type FileReport struct {
 type ImportReport struct {
 	Files []FileReport
 	Gaps  []SeqGap // per device seen in this run, bundles below the highest that are missing
+	// Stopped is the context's error when the run stopped before the
+	// last file.
+	Stopped error
 }
 
 // Refused counts refused files.
@@ -141,6 +151,10 @@ func (im *Importer) ImportFiles(paths []string) ImportReport {
 	i := 0
 	for j := range jobs {
 		i++
+		if im.Context != nil && im.Context.Err() != nil {
+			rep.Stopped = im.Context.Err()
+			break
+		}
 		im.progress(Progress{File: j.path, Index: i, Of: len(paths), Step: "reading", EventsSoFar: done})
 		im.progress(Progress{File: j.path, Index: i, Of: len(paths), Step: "verifying", EventsSoFar: done})
 		fr := im.finish(j.path, j.prep, i, len(paths), done)
@@ -281,7 +295,7 @@ func (im *Importer) apply(p preparedFile, prog func(Progress)) FileReport {
 	}
 	fr.Flags, fr.Replay = append(flags, im.skewFlags(ob.Header)...), replay
 	prog(Progress{Step: "applying", Events: fr.Events})
-	res, err := im.Store.ApplyChecked(p.batch, meta)
+	res, err := im.Store.ApplyChecked(p.batch, meta, store.ApplyOptions{AllowDemo: im.AllowDemo})
 	if err != nil {
 		fr.Err = im.eventErr(ob, err)
 		return fr
