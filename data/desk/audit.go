@@ -1,6 +1,7 @@
 package desk
 
 import (
+	"errors"
 	"fmt"
 	"sort"
 	"time"
@@ -133,6 +134,10 @@ func (d *Desk) summarize(b record.BaleRecord, pulls []store.PullView) AuditSumma
 		name = DefaultSpec
 	}
 	spec, err := d.LoadSpec(name)
+	if errors.Is(err, store.ErrDamaged) {
+		sum.State, sum.Err = AuditFailed, err // Bales reports it: never a listing without its verdicts
+		return sum
+	}
 	if err != nil {
 		sum.SpecMissing = true
 		return sum

@@ -1,6 +1,7 @@
 package desk
 
 import (
+	"errors"
 	"fmt"
 	"time"
 
@@ -199,8 +200,12 @@ func (d *Desk) Bales(f BaleFilter) ([]BaleRow, error) {
 			continue
 		}
 		ps := pulls[b.ID]
-		out = append(out, BaleRow{ID: b.ID, Bale: b.Bale, SiteName: names[b.Bale.Site], Pulls: len(ps),
-			Audit: d.summarize(b.Bale, ps), Conflicted: b.Conflicted})
+		row := BaleRow{ID: b.ID, Bale: b.Bale, SiteName: names[b.Bale.Site], Pulls: len(ps),
+			Audit: d.summarize(b.Bale, ps), Conflicted: b.Conflicted}
+		if errors.Is(row.Audit.Err, store.ErrDamaged) {
+			return nil, row.Audit.Err
+		}
+		out = append(out, row)
 	}
 	return out, nil
 }
