@@ -75,7 +75,7 @@ func Check(dir string) (CheckReport, error) {
 	}
 	w := newPageWalk(f, m[cur], size, true)
 	w.run()
-	w.freeIDs(true)
+	w.checkFree(w.readFree(), true)
 	r.Pages = w.counts
 	r.Problems = append(r.Problems, w.problems...)
 	r.Problems = append(r.Problems, checkLogical(dir, path, &r)...)

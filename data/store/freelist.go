@@ -2,6 +2,7 @@ package store
 
 import (
 	"os"
+	"slices"
 	"strings"
 )
 
@@ -27,8 +28,12 @@ func checkFreelist(path string) error {
 		return damagef("no header copy verifies")
 	}
 	w := newPageWalk(f, cur, size, false)
+	ids := w.readFree()
+	w.free = slices.Clone(ids)
+	slices.Sort(w.free)
+	w.below = make(map[uint64]uint64, len(ids))
 	w.run()
-	w.freeIDs(false)
+	w.checkFree(ids, false)
 	if len(w.problems) > 0 {
 		return damagef("%s", strings.Join(w.problems[:min(3, len(w.problems))], "; "))
 	}

@@ -19,8 +19,9 @@ type pageWalk struct {
 	rf       *rawFile
 	meta     rawMeta
 	leaves   bool              // read leaf pages (false: branch pages only)
-	used     map[uint64]string // page → what it holds
-	leafIDs  []uint64          // leaf pages met (leaves false: not read)
+	used     map[uint64]string // page → what it holds (leaves false: branch pages only)
+	free     []uint64          // the free-page list, sorted (leaves false: read before the walk)
+	below    map[uint64]uint64 // free page → the nearest leaf page before it (leaves false)
 	problems []string          // what does not hold together
 	counts   map[string]int    // pages by type
 	onLeaf   func(bucket []byte, p rawPage)
@@ -94,13 +95,17 @@ func (w *pageWalk) tree(name []byte, id uint64, lo, hi []byte, depth int, readLe
 		return
 	}
 	if !readLeaf {
-		// A leaf below a branch when only branches are walked: note it,
-		// read nothing.
-		if !w.use(id, 0, what) {
-			return
-		}
-		w.leafIDs = append(w.leafIDs, id)
+		// A leaf below a branch when only branches are walked: read
+		// nothing, keep nothing per leaf (a store of millions of events
+		// has hundreds of thousands); only check it against the free
+		// pages and note it as the nearest leaf before the next free one.
 		w.counts["leaf"]++
+		j, hit := slices.BinarySearch(w.free, id)
+		if hit {
+			w.problem("the free-page list names page %d, which %s uses", id, what)
+		} else if j < len(w.free) && id > w.below[w.free[j]] {
+			w.below[w.free[j]] = id
+		}
 		return
 	}
 	buf, err := w.rf.page(id)
@@ -223,11 +228,8 @@ func (w *pageWalk) bucketEntry(e rawElem, depth int) {
 	w.elements(name, p, nil, nil, depth+1, fmt.Sprintf("bucket %q", name))
 }
 
-// freeIDs reads the free-page list and checks it against the walk: every
-// free page lies inside the file, is listed once and is used by nothing.
-// Pages neither used nor free are reported by the full walk only (a
-// walk of branches does not see leaf overflow pages).
-func (w *pageWalk) freeIDs(full bool) []uint64 {
+// readFree reads the free-page list.
+func (w *pageWalk) readFree() []uint64 {
 	if w.meta.Freelist == ^uint64(0) {
 		return nil
 	}
@@ -241,8 +243,16 @@ func (w *pageWalk) freeIDs(full bool) []uint64 {
 		w.problem("free-page list: %v", err)
 		return nil
 	}
-	slices.Sort(w.leafIDs)
-	seen := map[uint64]bool{}
+	return ids
+}
+
+// checkFree checks the free-page list against the walk: every free page
+// lies inside the file, is listed once and is used by nothing. With
+// full, every page the walk did not use must be free (no lost space);
+// without, the leaves were not read and each free page is checked
+// against the overflow pages of the nearest leaf before it.
+func (w *pageWalk) checkFree(ids []uint64, full bool) {
+	seen := make(map[uint64]bool, len(ids))
 	for _, id := range ids {
 		switch {
 		case id < 2 || id >= w.meta.HWM:
@@ -264,17 +274,15 @@ func (w *pageWalk) freeIDs(full bool) []uint64 {
 			}
 		}
 	}
-	return ids
 }
 
-// insideLeaf reports whether page id falls within the overflow pages of
-// the nearest leaf before it (read from that leaf's header).
+// insideLeaf reports whether free page id falls within the overflow
+// pages of the nearest leaf before it (read from that leaf's header).
 func (w *pageWalk) insideLeaf(id uint64) bool {
-	i, _ := slices.BinarySearch(w.leafIDs, id)
-	if i == 0 {
+	leaf, ok := w.below[id]
+	if !ok {
 		return false
 	}
-	leaf := w.leafIDs[i-1]
 	head := make([]byte, rawPageHeader)
 	if _, err := w.rf.f.ReadAt(head, int64(leaf)*w.rf.pageSize); err != nil {
 		return true

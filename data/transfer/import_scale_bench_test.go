@@ -7,6 +7,7 @@ import (
 	"baleassay/data/internal/testkit"
 	"baleassay/data/record"
 	"fmt"
+	"math/rand/v2"
 	"path/filepath"
 	"testing"
 	"time"
@@ -14,14 +15,25 @@ import (
 
 // oneBundleMix makes n events of one mix for a single bundle:
 //
-//	sites  n new sites (the bundle that was quadratic in the old layout)
-//	pulls  n new pulls of one bale
+//	sites  n new sites whose ids are stamped at random times, so the
+//	       bundle's order is not the ids' order (the bundle that was
+//	       quadratic in the old layout)
+//	pulls  n new pulls of one bale, ids in random order too
 //	edits  one site and n-1 edits of it, each superseding the one before
 //	heads  one site and n-1 concurrent edits of it (all supersede the
 //	       first: one entity with n-1 heads)
 func oneBundleMix(tb testing.TB, mix string, n int) [][]byte {
 	m := testkit.NewMaker(0x61, uint64(n))
 	m.Wall = testkit.XferNow.AddDate(0, -1, 0).UnixMilli()
+	rng := rand.New(rand.NewPCG(uint64(n), 0x61))
+	randomID := func() record.EntityID {
+		ms := testkit.XferNow.AddDate(-3, 0, 0).UnixMilli() + rng.Int64N(3*365*24*3600*1000)
+		id, err := record.EntityIDAt(ms, rngReader{rng})
+		if err != nil {
+			tb.Fatal(err)
+		}
+		return id
+	}
 	raws := make([][]byte, 0, n)
 	site, bale := m.Entity(), m.Entity()
 	var first, prev record.EventID
@@ -29,9 +41,9 @@ func oneBundleMix(tb testing.TB, mix string, n int) [][]byte {
 		var e record.Event
 		switch {
 		case mix == "sites":
-			e = m.Site(m.Entity(), fmt.Sprintf("Invented yard %d", i), -60+float64(i%12000)/100, -170+float64(i%34000)/100)
+			e = m.Site(randomID(), fmt.Sprintf("Invented yard %d", i), -60+float64(i%12000)/100, -170+float64(i%34000)/100)
 		case mix == "pulls":
-			e = m.Pull(m.Entity(), bale, fmt.Sprintf("P%d", i), 9.5)
+			e = m.Pull(randomID(), bale, fmt.Sprintf("P%d", i), 9.5)
 		case i == 0:
 			e = m.Site(site, "Invented yard", 51, 4)
 		case mix == "edits":
@@ -47,6 +59,16 @@ func oneBundleMix(tb testing.TB, mix string, n int) [][]byte {
 		raws = append(raws, raw)
 	}
 	return raws
+}
+
+// rngReader reads random bytes from a seeded generator.
+type rngReader struct{ r *rand.Rand }
+
+func (g rngReader) Read(p []byte) (int, error) {
+	for i := range p {
+		p[i] = byte(g.r.Uint32())
+	}
+	return len(p), nil
 }
 
 // BenchmarkImportOneBundle imports one bundle of each mix at 10k, 20k,
