@@ -26,7 +26,7 @@ func openOnce(dir string, o Options) (*Store, error) {
 			return nil, fmt.Errorf("data: create store folder: %w", err)
 		}
 	}
-	s := &Store{dir: dir, now: o.Now, hook: o.beforeCommit, timeout: o.Timeout, readFirst: o.ReadFirst && !o.ReadOnly}
+	s := &Store{dir: dir, now: o.Now, hook: o.beforeCommit, noEntityCheck: o.noEntityCheck, timeout: o.Timeout, readFirst: o.ReadFirst && !o.ReadOnly}
 	if err := s.attach(o.ReadOnly || (o.ReadFirst && exists)); err != nil {
 		return nil, err
 	}

@@ -45,22 +45,26 @@ type Options struct {
 	// beforeCommit, when set (tests only), runs at the end of every write
 	// transaction; an error from it is treated as a failed write.
 	beforeCommit func() error
+	// noEntityCheck (benchmarks only) skips the check of every touched
+	// entity before a commit, to measure what it costs.
+	noEntityCheck bool
 }
 
 // Store is an open records store: one bbolt file in a directory. Its
 // methods are safe for concurrent use within one process; only one process
 // may have the store open for writing.
 type Store struct {
-	dir       string
-	db        *bolt.DB     // replaced only under wmu and dbmu (reopenWritable)
-	dbmu      sync.RWMutex // readers of db hold it shared
-	readOnly  bool
-	readFirst bool
-	timeout   time.Duration
-	device    record.DeviceID
-	clock     *record.Clock
-	now       func() time.Time
-	hook      func() error
+	dir           string
+	db            *bolt.DB     // replaced only under wmu and dbmu (reopenWritable)
+	dbmu          sync.RWMutex // readers of db hold it shared
+	readOnly      bool
+	readFirst     bool
+	timeout       time.Duration
+	device        record.DeviceID
+	clock         *record.Clock
+	now           func() time.Time
+	hook          func() error
+	noEntityCheck bool // Options.noEntityCheck
 
 	wmu    sync.Mutex // serialises writes; guards failed and closed
 	failed error

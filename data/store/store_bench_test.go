@@ -11,7 +11,11 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"syscall"
 	"testing"
+	"time"
+
+	bolt "go.etcd.io/bbolt"
 )
 
 // benchEvents makes n valid events: with allSites, n sites; otherwise the
@@ -127,4 +131,92 @@ func BenchmarkSave(b *testing.B) {
 		}
 		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(n), "ns/event")
 	})
+}
+
+// BenchmarkVerifyCost measures what reading with verification costs:
+//
+//	apply  200,000 events of a grading season in 40 writes of 5,000
+//	    (time-ordered, as a lab receives them) into an empty store, with
+//	    and without the check of every touched entity before each commit,
+//	    both in each iteration
+//	walk-verified / walk-raw  the same 200,000 events read back in
+//	    insertion order through ForEachRawSince (each event's SHA-256
+//	    against its id, numbers in sequence) and through a bare bbolt
+//	    cursor over the log
+//
+// Compare ns/event within a pair: the ratio is the verification's price.
+func BenchmarkVerifyCost(b *testing.B) {
+	const n, per = 200_000, 5_000
+	raws, _ := testkit.BenchRawsFrom(b, n, 7, testkit.XferNow.AddDate(-1, 0, 0).UnixMilli())
+	apply := func(b *testing.B, noCheck bool) *Store {
+		s, err := OpenWith(b.TempDir(), Options{Now: func() time.Time { return testkit.XferNow }, noEntityCheck: noCheck, NoSiteIndex: true})
+		if err != nil {
+			b.Fatal(err)
+		}
+		for i := 0; i < n; i += per {
+			if _, err := s.ApplyRaw(raws[i:i+per], nil); err != nil {
+				b.Fatal(err)
+			}
+		}
+		return s
+	}
+	// Both in every iteration, one after the other, so that the load of
+	// a shared machine falls on both alike.
+	b.Run("apply", func(b *testing.B) {
+		var took, cpu [2]time.Duration // checked, unchecked
+		for i := 0; b.Loop(); i++ {
+			for _, noCheck := range [][2]bool{{false, true}, {true, false}}[i%2] { // alternate which goes first
+				t0, c0 := time.Now(), cpuTime()
+				apply(b, noCheck).Close()
+				took[btoi(noCheck)] += time.Since(t0)
+				cpu[btoi(noCheck)] += cpuTime() - c0
+			}
+		}
+		per := func(d time.Duration) float64 { return float64(d.Nanoseconds()) / float64(b.N*n) }
+		b.ReportMetric(per(took[0]), "checked-ns/event")
+		b.ReportMetric(per(took[1]), "unchecked-ns/event")
+		b.ReportMetric(per(cpu[0]), "checked-cpu-ns/event")
+		b.ReportMetric(per(cpu[1]), "unchecked-cpu-ns/event")
+		b.ReportMetric(float64(cpu[0])/float64(cpu[1]), "cpu-checked/unchecked")
+	})
+	s := apply(b, false)
+	defer s.Close()
+	b.Run("walk-verified", func(b *testing.B) {
+		for b.Loop() {
+			k := 0
+			if err := s.ForEachRawSince(0, func(uint64, record.EventID, []byte) error { k++; return nil }); err != nil || k != n {
+				b.Fatal(err, k)
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*n), "ns/event")
+	})
+	b.Run("walk-raw", func(b *testing.B) {
+		for b.Loop() {
+			k := 0
+			err := s.db.View(func(tx *bolt.Tx) error {
+				return tx.Bucket(bLog).ForEach(func(_, v []byte) error { k += len(v) & 1; return nil })
+			})
+			if err != nil {
+				b.Fatal(err)
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*n), "ns/event")
+	})
+}
+
+func btoi(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// cpuTime is the process's user and system CPU time: on a shared machine
+// it varies less than the wall clock.
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }

@@ -139,8 +139,10 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 			if len(ep.fresh) == 0 {
 				continue
 			}
-			if err := ver.verify(tx, entCur, ep.id, ep.stored); err != nil {
-				return err
+			if !s.noEntityCheck {
+				if err := ver.verify(tx, entCur, ep.id, ep.stored); err != nil {
+					return err
+				}
 			}
 			if ep.rec.Kind == record.KindSite {
 				st, err := stateTx(tx, ep.id)

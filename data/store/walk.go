@@ -22,6 +22,7 @@ type pageWalk struct {
 	used     map[uint64]string // page → what it holds (leaves false: branch pages only)
 	free     []uint64          // the free-page list, sorted (leaves false: read before the walk)
 	below    map[uint64]uint64 // free page → the nearest leaf page before it (leaves false)
+	lowest   map[uint64]bool   // branch page → its children are leaves (leaves false)
 	problems []string          // what does not hold together
 	counts   map[string]int    // pages by type
 	onLeaf   func(bucket []byte, p rawPage)
@@ -64,7 +65,7 @@ func newPageWalk(f *os.File, m rawMeta, size int64, leaves bool) *pageWalk {
 
 // run walks the root bucket and every bucket in it, then the freelist.
 func (w *pageWalk) run() {
-	w.tree(nil, w.meta.Root, nil, nil, 0, true)
+	w.tree(nil, w.meta.Root, nil, nil, 0)
 	if w.meta.Freelist != ^uint64(0) {
 		buf, err := w.rf.page(w.meta.Freelist)
 		if err != nil {
@@ -81,7 +82,7 @@ func (w *pageWalk) run() {
 // tree walks the subtree at page id of bucket name (nil: the root
 // bucket, whose leaf values are bucket headers); keys must lie in
 // [lo, hi) (nil: unbounded).
-func (w *pageWalk) tree(name []byte, id uint64, lo, hi []byte, depth int, readLeaf bool) {
+func (w *pageWalk) tree(name []byte, id uint64, lo, hi []byte, depth int) {
 	what := "the bucket list"
 	if name != nil {
 		what = fmt.Sprintf("bucket %q", name)
@@ -92,20 +93,6 @@ func (w *pageWalk) tree(name []byte, id uint64, lo, hi []byte, depth int, readLe
 	}
 	if id < 2 || id >= w.meta.HWM {
 		w.problem("%s: page %d is outside the file's pages 2..%d", what, id, w.meta.HWM-1)
-		return
-	}
-	if !readLeaf {
-		// A leaf below a branch when only branches are walked: read
-		// nothing, keep nothing per leaf (a store of millions of events
-		// has hundreds of thousands); only check it against the free
-		// pages and note it as the nearest leaf before the next free one.
-		w.counts["leaf"]++
-		j, hit := slices.BinarySearch(w.free, id)
-		if hit {
-			w.problem("the free-page list names page %d, which %s uses", id, what)
-		} else if j < len(w.free) && id > w.below[w.free[j]] {
-			w.below[w.free[j]] = id
-		}
 		return
 	}
 	buf, err := w.rf.page(id)
@@ -160,6 +147,10 @@ func (w *pageWalk) elements(name []byte, p rawPage, lo, hi []byte, depth int, wh
 			return
 		}
 		prev = e.Key
+		if p.Flags == rawBranch && !w.leaves && w.childrenAreLeaves(p) {
+			w.unreadLeaf(e.Child, what)
+			continue
+		}
 		if p.Flags == rawBranch {
 			var next []byte
 			if i+1 < p.Count {
@@ -172,8 +163,7 @@ func (w *pageWalk) elements(name []byte, p rawPage, lo, hi []byte, depth int, wh
 			} else {
 				next = hi
 			}
-			childLeaf := w.leaves || !w.isLowestBranch(p)
-			w.tree(name, e.Child, bytes.Clone(e.Key), bytes.Clone(next), depth+1, childLeaf)
+			w.tree(name, e.Child, bytes.Clone(e.Key), bytes.Clone(next), depth+1)
 			continue
 		}
 		if name == nil {
@@ -187,19 +177,39 @@ func (w *pageWalk) elements(name []byte, p rawPage, lo, hi []byte, depth int, wh
 	}
 }
 
-// isLowestBranch is decided by reading the first child's header: when
-// walking branches only, the children of the lowest branches are leaves
-// and are not read.
-func (w *pageWalk) isLowestBranch(p rawPage) bool {
-	e, err := p.elem(0)
-	if err != nil || e.Child >= w.rf.pages() {
-		return false
+// childrenAreLeaves reads the first child's header of a branch page
+// (once per page: every leaf of a B+tree is at the same depth, so the
+// first child tells for all).
+func (w *pageWalk) childrenAreLeaves(p rawPage) bool {
+	if w.lowest == nil {
+		w.lowest = map[uint64]bool{}
 	}
-	head := make([]byte, rawPageHeader)
-	if _, err := w.rf.f.ReadAt(head, int64(e.Child)*w.rf.pageSize); err != nil {
-		return false
+	if v, ok := w.lowest[p.ID]; ok {
+		return v
 	}
-	return binary.LittleEndian.Uint16(head[8:])&rawLeaf != 0
+	v := false
+	if e, err := p.elem(0); err == nil && e.Child < w.rf.pages() {
+		head := make([]byte, rawPageHeader)
+		if _, err := w.rf.f.ReadAt(head, int64(e.Child)*w.rf.pageSize); err == nil {
+			v = binary.LittleEndian.Uint16(head[8:])&rawLeaf != 0
+		}
+	}
+	w.lowest[p.ID] = v
+	return v
+}
+
+// unreadLeaf is a leaf below a branch when only branches are walked: it
+// is not read and nothing is kept per leaf (a store of millions of
+// events has hundreds of thousands); it is only checked against the free
+// pages and noted as the nearest leaf before the next free one.
+func (w *pageWalk) unreadLeaf(id uint64, what string) {
+	w.counts["leaf"]++
+	j, hit := slices.BinarySearch(w.free, id)
+	if hit {
+		w.problem("the free-page list names page %d, which %s uses", id, what)
+	} else if j < len(w.free) && id > w.below[w.free[j]] {
+		w.below[w.free[j]] = id
+	}
 }
 
 // bucketEntry follows one entry of the root bucket: a bucket header with
@@ -216,7 +226,7 @@ func (w *pageWalk) bucketEntry(e rawElem, depth int) {
 	}
 	root := binary.LittleEndian.Uint64(e.Value)
 	if root != 0 {
-		w.tree(name, root, nil, nil, 0, true)
+		w.tree(name, root, nil, nil, 0)
 		return
 	}
 	p, err := parsePageHeader(e.Value[rawBucketSize:])
