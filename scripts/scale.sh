@@ -19,6 +19,9 @@
 # Environment: SCALE_DIR (work folder, default /tmp/baleassay-scale; the
 # bundles of 2M events take about 850 MB), SCALE_PER_BUNDLE (default 5500,
 # which makes about 200 bundles of 1,000,000 events), SCALE_DEVICES (6).
+# SCALE_IMPORTER=PATH imports with another build of bale (e.g. one of an
+# older commit, for before-and-after figures; the bundles are still made
+# by this one) and SCALE_LABEL prefixes the result lines.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 root=$(pwd)
@@ -28,6 +31,8 @@ devices=${SCALE_DEVICES:-6}
 mkdir -p "$work"
 bale="$work/bale"
 CGO_ENABLED=0 go build -o "$bale" ./cmd/bale
+importer=${SCALE_IMPORTER:-$bale}
+prefix=${SCALE_LABEL:+$SCALE_LABEL-}
 results="$work/results.txt"
 rss="$root/scripts/peakrss.sh"
 
@@ -47,7 +52,7 @@ gen() {
 # trust DIR STORE: trust the devices of a bundle folder in a store.
 trust() {
 	for k in "$1"/keys/*.pem; do
-		"$bale" trust add "$k" --name "$(basename "$(dirname "$(dirname "$k")")")-$(basename "$k" .pem)" --store "$2" >/dev/null
+		"$importer" trust add "$k" --name "$(basename "$(dirname "$(dirname "$k")")")-$(basename "$k" .pem)" --store "$2" >/dev/null
 	done
 }
 
@@ -59,7 +64,7 @@ import() {
 	events=$(awk '/generated season/ {print $5}' "$dir.txt")
 	trust "$dir" "$store"
 	local line
-	line=$(PEAKRSS_ERR=/dev/null "$rss" "$label" "$bale" import "$dir" --store "$store" --allow-demo)
+	line=$(PEAKRSS_ERR=/dev/null "$rss" "$prefix$label" "$importer" import "$dir" --store "$store" --allow-demo)
 	local wall
 	wall=$(sed 's/.*wall_s=\([0-9.]*\).*/\1/' <<<"$line")
 	log "$line events=$events bundles=$files events_per_s=$(awk -v e="$events" -v w="$wall" 'BEGIN{printf "%.0f", e/w}') store_mb=$(du -m "$store/records.db" | cut -f1)"
@@ -68,7 +73,7 @@ import() {
 step_growth() {
 	log "# growth: $(date -u +%FT%TZ), $(nproc) CPUs, load $(cut -d' ' -f1-3 /proc/loadavg)"
 	for n in 250000 500000 1000000 2000000; do
-		local dir store="$work/store-$n"
+		local dir store="$work/store-$prefix$n"
 		dir=$(gen "$n" 1 2025-11-28)
 		rm -rf "$store"
 		import "growth-$n" "$dir" "$store"

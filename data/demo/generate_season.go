@@ -52,19 +52,26 @@ func (s *season) run() error {
 		}
 		var evening []genBale
 		for t := 1; t <= tablets && !s.done(); t++ {
-			clock := day.Add(7 * time.Hour)
+			// The sites that deliver today, graded one after another
+			// between 07:00 and 17:00: each bale gets an equal slot.
+			var today []int
 			for i := range s.sites {
+				if s.sites[i].tab == t && (last || s.r.Float64() < rate) {
+					today = append(today, i)
+				}
+			}
+			if len(today) == 0 {
+				continue
+			}
+			slot := 10 * time.Hour / time.Duration(len(today))
+			for k, i := range today {
 				if s.done() {
 					break
 				}
-				if s.sites[i].tab != t || (!last && s.r.Float64() >= rate) {
-					continue
-				}
-				b, err := s.bale(&s.sites[i], t, clock)
+				b, err := s.bale(&s.sites[i], t, day.Add(7*time.Hour+time.Duration(k)*slot), slot)
 				if err != nil {
 					return err
 				}
-				clock = b.at.Add(time.Duration(75+s.r.IntN(30)) * time.Minute)
 				if s.r.Float64() < genConflictRate {
 					evening = append(evening, b)
 				}
@@ -151,10 +158,12 @@ func (s *season) addSite(at time.Time) error {
 	return nil
 }
 
-// bale: a tablet receives a bale at a site from `from` on, takes four to
-// six pulls, and now and then corrects the bale or a pull.
-func (s *season) bale(site *genSite, tab int, from time.Time) (genBale, error) {
-	rx := from.Add(time.Duration(s.r.IntN(40)) * time.Minute)
+// bale: a tablet receives a bale at a site at the start of its slot of
+// the working day, takes four to six pulls, and now and then corrects
+// the bale or a pull, all within the slot.
+func (s *season) bale(site *genSite, tab int, from time.Time, slot time.Duration) (genBale, error) {
+	step := max(time.Millisecond, slot/16) // pulls and corrections, at most 15 steps
+	rx := from.Add(time.Duration(s.r.Int64N(int64(step))))
 	l, w, h := 1.22+0.03*s.r.NormFloat64(), 0.76+0.02*s.r.NormFloat64(), 1.52+0.04*s.r.NormFloat64()
 	b := genBale{id: s.newID(rx), dev: tab, at: rx, rec: record.BaleRecord{
 		Site: site.id, ReceivedMs: rx.UnixMilli(), GrossKg: round2(clamp(545+80*s.r.NormFloat64(), 300, 770)),
@@ -169,7 +178,7 @@ func (s *season) bale(site *genSite, tab int, from time.Time) (genBale, error) {
 	comp := demoComposition(s.r, site.dirt)
 	at := rx
 	for p, n := 0, 4+s.r.IntN(3); p < n && !s.done(); p++ {
-		at = at.Add(time.Duration(8+s.r.IntN(6)) * time.Minute)
+		at = at.Add(step)
 		pr := genPullOf(s, comp, site.dirt)
 		pr.Bale, pr.Label, pr.TakenMs = b.id, fmt.Sprintf("P%d", p+1), at.UnixMilli()
 		gp := genPull{id: s.newID(at), rec: pr}
@@ -178,11 +187,11 @@ func (s *season) bale(site *genSite, tab int, from time.Time) (genBale, error) {
 		}
 		s.sum.Pulls++
 		if s.r.Float64() < genPullTwice && !s.done() {
-			at = at.Add(time.Minute)
+			at = at.Add(step / 2)
 			dup := genPull{id: s.newID(at), rec: pr}
 			id, err := s.emit(genEvent{dev: tab, at: at, ev: record.Event{Entity: dup.id, Kind: record.KindPull, Pull: &dup.rec}})
 			if err == nil && !s.done() {
-				at = at.Add(time.Minute)
+				at = at.Add(step / 2)
 				_, err = s.emit(genEvent{dev: tab, at: at, ev: record.Event{Entity: dup.id, Kind: record.KindPull, Deleted: true, Supersedes: []record.EventID{id}}})
 				s.sum.Deletions++
 			}
@@ -196,7 +205,7 @@ func (s *season) bale(site *genSite, tab int, from time.Time) (genBale, error) {
 		if s.r.Float64() >= genPullFix || s.done() {
 			continue
 		}
-		at = at.Add(2 * time.Minute)
+		at = at.Add(step / 2)
 		p := &b.pulls[i]
 		rec := p.rec
 		rec.Kg = make(map[string]float64, len(p.rec.Kg))
@@ -213,7 +222,7 @@ func (s *season) bale(site *genSite, tab int, from time.Time) (genBale, error) {
 		s.sum.Edits++
 	}
 	if s.r.Float64() < genBaleFix && !s.done() {
-		at = at.Add(3 * time.Minute)
+		at = at.Add(step)
 		rec := b.rec
 		rec.GrossKg = round2(rec.GrossKg + 5)
 		id, err := s.emit(genEvent{dev: tab, at: at, ev: record.Event{Entity: b.id, Kind: record.KindBale, Supersedes: []record.EventID{b.head}, Bale: &rec}})
