@@ -49,10 +49,14 @@ gen() {
 	echo "$dir"
 }
 
-# trust DIR STORE: trust the devices of a bundle folder in a store.
+# trust DIR STORE: trust the devices of a bundle folder in a store
+# (those already trusted stay as they are).
 trust() {
+	local k out
 	for k in "$1"/keys/*.pem; do
-		"$importer" trust add "$k" --name "$(basename "$(dirname "$(dirname "$k")")")-$(basename "$k" .pem)" --store "$2" >/dev/null
+		if ! out=$("$importer" trust add "$k" --name "$(basename "$(dirname "$(dirname "$k")")")-$(basename "$k" .pem)" --store "$2" 2>&1); then
+			grep -q "already trusted" <<<"$out" || { echo "$out" >&2; return 1; }
+		fi
 	done
 }
 
