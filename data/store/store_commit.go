@@ -149,11 +149,16 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 				if err != nil {
 					return err
 				}
-				u := siteUpdateOf(st)
-				if err := putSiteCache(tx, &c, u); err != nil {
-					return err
-				}
-				siteUpdates = append(siteUpdates, u)
+				siteUpdates = append(siteUpdates, siteUpdateOf(st))
+			}
+		}
+		// In id order, like every other bucket: a bundle of sites in any
+		// order then appends to each page once (random order would move a
+		// page's entries at every insert: quadratic within one write).
+		slices.SortFunc(siteUpdates, func(a, b geo.Update) int { return bytes.Compare(a.Site.ID[:], b.Site.ID[:]) })
+		for _, u := range siteUpdates {
+			if err := putSiteCache(tx, &c, u); err != nil {
+				return err
 			}
 		}
 		if extra != nil {

@@ -8,7 +8,10 @@ import (
 	"baleassay/data/record"
 	"fmt"
 	"math/rand/v2"
+	"os"
 	"path/filepath"
+	"strconv"
+	"strings"
 	"testing"
 	"time"
 )
@@ -76,10 +79,23 @@ func (g rngReader) Read(p []byte) (int, error) {
 // timer), the whole import: signature, checks, write, site index. ns per
 // event that stays flat from 10k to 80k is linear time; the old layout
 // took 0.67 s, 1.5 s, 5.5 s and 19.6 s for the sites.
+// BALEASSAY_ONE_BUNDLE=160000,320000,480000 runs other sizes (480,000
+// sites make a bundle just under the 64 MiB cap).
 func BenchmarkImportOneBundle(b *testing.B) {
 	key := xKey(b, 0x61)
+	sizes := []int{10_000, 20_000, 40_000, 80_000}
+	if v := os.Getenv("BALEASSAY_ONE_BUNDLE"); v != "" {
+		sizes = nil
+		for _, f := range strings.Split(v, ",") {
+			n, err := strconv.Atoi(f)
+			if err != nil || n < 2 {
+				b.Fatalf("BALEASSAY_ONE_BUNDLE=%q: give event counts separated by commas", v)
+			}
+			sizes = append(sizes, n)
+		}
+	}
 	for _, mix := range []string{"sites", "pulls", "edits", "heads"} {
-		for _, n := range []int{10_000, 20_000, 40_000, 80_000} {
+		for _, n := range sizes {
 			raws := oneBundleMix(b, mix, n)
 			bundle, err := SealBundle(key, BundleHeader{Device: testkit.DevA, Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws)
 			if err != nil {
