@@ -15,6 +15,7 @@
 #   open     open the 2M store to a ready site index and answer a query
 #   export   export every event of the 1M store
 #   bundle   single bundles of 10k..80k sites, pulls and edits (Go benchmark)
+#   cap      single bundles up to the 64 MiB cap, each in its own process
 #
 # Environment: SCALE_DIR (work folder, default /tmp/baleassay-scale; the
 # bundles of 2M events take about 850 MB), SCALE_PER_BUNDLE (default 5500,
@@ -123,6 +124,22 @@ step_export() {
 step_bundle() {
 	log "# bundle: $(date -u +%FT%TZ), load $(cut -d' ' -f1-3 /proc/loadavg)"
 	go test ./data/transfer -run '^$' -bench 'ImportOneBundle' -benchtime 1x -count 1 | grep Benchmark | tee -a "$results"
+}
+
+# One bundle of each mix up to the 64 MiB cap, each imported into an
+# empty store by a process of its own.
+step_cap() {
+	local dir="$work/one-bundles" sizes=${SCALE_ONE_BUNDLE:-80000,160000,320000,400000}
+	log "# cap: $(date -u +%FT%TZ), load $(cut -d' ' -f1-3 /proc/loadavg)"
+	rm -rf "$dir"
+	BALEASSAY_WRITE_BUNDLES="$dir" BALEASSAY_ONE_BUNDLE="$sizes" go test ./data/transfer -run '^TestWriteOneBundles$' -count 1 >/dev/null
+	local f store
+	for f in "$dir"/*.bale; do
+		store="$work/store-one"
+		rm -rf "$store"
+		"$importer" trust add "$dir/keys/bench.pem" --name bench --store "$store" >/dev/null
+		log "$("$rss" "one-$(basename "$f" .bale)" "$importer" import "$f" --store "$store") bytes=$(stat -c %s "$f")"
+	done
 }
 
 steps=("$@")

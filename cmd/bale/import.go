@@ -61,7 +61,7 @@ func runImport(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	defer d.Close()
-	defer limitImportMemory()()
+	defer limitImportMemory(files)()
 	rep, err := d.Import(context.Background(), files, desk.ImportOptions{AllowDemo: *allowDemo}, newProgress(stderr, len(files)).show)
 	if err != nil {
 		return err

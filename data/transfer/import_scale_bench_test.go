@@ -124,3 +124,37 @@ func BenchmarkImportOneBundle(b *testing.B) {
 		}
 	}
 }
+
+// TestWriteOneBundles (BALEASSAY_WRITE_BUNDLES=DIR, with
+// BALEASSAY_ONE_BUNDLE=N,...) writes the one-bundle mixes of
+// BenchmarkImportOneBundle as files DIR/<mix>-<n>.bale, and the signer's
+// public key as DIR/keys/bench.pem, for scripts/scale.sh to import each
+// in a process of its own and measure its memory.
+func TestWriteOneBundles(t *testing.T) {
+	dir := os.Getenv("BALEASSAY_WRITE_BUNDLES")
+	if dir == "" {
+		t.Skip("set BALEASSAY_WRITE_BUNDLES=DIR to write the one-bundle mixes")
+	}
+	key := xKey(t, 0x61)
+	if err := os.MkdirAll(filepath.Join(dir, "keys"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "keys", "bench.pem"), key.PublicPEM(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range strings.Split(os.Getenv("BALEASSAY_ONE_BUNDLE"), ",") {
+		n, err := strconv.Atoi(f)
+		if err != nil || n < 2 {
+			t.Fatalf("BALEASSAY_ONE_BUNDLE: %q", f)
+		}
+		for _, mix := range []string{"sites", "pulls", "edits", "heads"} {
+			b, err := SealBundle(key, BundleHeader{Device: testkit.DevA, Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, oneBundleMix(t, mix, n))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(filepath.Join(dir, fmt.Sprintf("%s-%d.bale", mix, n)), b, 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+}
