@@ -29,6 +29,8 @@ var (
 	ErrTombstone      = errors.New("data: a deletion must supersede an event and carry no payload")
 	ErrKindMismatch   = errors.New("data: event kind differs from the entity's kind")
 	ErrUnknownSetting = errors.New("data: unknown setting kind")
+	ErrOutOfRange     = errors.New("data: value outside its physical range")
+	ErrControlChar    = errors.New("data: text holds a control character")
 )
 
 // FieldError is a validation error located at one field of one record.

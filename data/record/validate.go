@@ -88,12 +88,12 @@ func ValidateEventAt(e Event, now time.Time) ([]Warning, error) {
 	if !e.Kind.Valid() {
 		return nil, &FieldError{Field: "kind", Value: strconv.Itoa(int(e.Kind)), Err: ErrKind}
 	}
-	if e.Clock.WallMs <= 0 {
-		return nil, &FieldError{Field: "clock", Value: strconv.FormatInt(e.Clock.WallMs, 10), Err: ErrNotPositive}
+	if err := checkTime("clock", e.Clock.WallMs); err != nil {
+		return nil, err
 	}
 	if lim := now.Add(MaxClockAhead).UnixMilli(); e.Clock.WallMs > lim {
 		w = append(w, Warning{WarnFutureClock, "clock", fmt.Sprintf("stamp %s is %s ahead of this device's clock; the author's clock may be wrong",
-			e.Clock.Time().Format(time.RFC3339), time.Duration(e.Clock.WallMs-now.UnixMilli())*time.Millisecond)})
+			e.Clock.Time().Format(time.RFC3339), FormatSkew(e.Clock.WallMs-now.UnixMilli()))})
 	}
 	seen := make(map[EventID]bool, len(e.Supersedes))
 	for i, s := range e.Supersedes {
@@ -160,6 +160,10 @@ func checkText(field, s string, max int, required bool) error {
 	if !utf8.ValidString(s) {
 		return &FieldError{Field: field, Err: fmt.Errorf("%w: not UTF-8", ErrInvalid)}
 	}
+	if r, at, ok := TerminalSafe(s); !ok {
+		return &FieldError{Field: field, Value: fmt.Sprintf("U+%04X at character %d", r, utf8.RuneCountInString(s[:at])+1),
+			Err: fmt.Errorf("%w: names, tags, labels and notes are one line of printable text", ErrControlChar)}
+	}
 	if n := utf8.RuneCountInString(s); n > max {
 		return &FieldError{Field: field, Value: fmt.Sprintf("%d characters", n), Err: fmt.Errorf("%w (at most %d)", ErrTooLong, max)}
 	}
@@ -208,14 +212,11 @@ func validateBale(b BaleRecord) ([]Warning, error) {
 	if b.Site.IsZero() {
 		return nil, &FieldError{Field: "bale.site", Err: ErrMissingID}
 	}
-	if b.ReceivedMs <= 0 {
-		return nil, &FieldError{Field: "bale.received", Value: strconv.FormatInt(b.ReceivedMs, 10), Err: ErrNotPositive}
-	}
-	if err := checkFinite("bale.gross_kg", b.GrossKg); err != nil {
+	if err := checkTime("bale.received", b.ReceivedMs); err != nil {
 		return nil, err
 	}
-	if b.GrossKg <= 0 {
-		return nil, &FieldError{Field: "bale.gross_kg", Value: fnum(b.GrossKg), Err: ErrNotPositive}
+	if err := checkKg("bale.gross_kg", b.GrossKg, true, ErrNonFinite, ErrNotPositive); err != nil {
+		return nil, err
 	}
 	dims := []struct {
 		name string
@@ -228,6 +229,9 @@ func validateBale(b BaleRecord) ([]Warning, error) {
 		}
 		if d.v < 0 {
 			return nil, &FieldError{Field: d.name, Value: fnum(d.v), Err: ErrNegative}
+		}
+		if d.v > MaxBaleDimM {
+			return nil, &FieldError{Field: d.name, Value: fnum(d.v), Err: fmt.Errorf("%w: above %g m; give metres, not centimetres", ErrOutOfRange, MaxBaleDimM)}
 		}
 		if d.v == 0 {
 			zero++
@@ -275,8 +279,11 @@ func assessPull(p PullRecord, kgKeys []string) (assess.Pull, error) {
 	}
 	for _, k := range SortedKeys(p.Pieces) {
 		n := p.Pieces[k]
-		if n < 0 || n > math.MaxInt32 {
+		if n < 0 {
 			return ap, &FieldError{Field: "pull.pieces." + k, Value: strconv.FormatInt(n, 10), Err: assess.ErrNegativeCount}
+		}
+		if n > MaxPieces {
+			return ap, &FieldError{Field: "pull.pieces." + k, Value: strconv.FormatInt(n, 10), Err: fmt.Errorf("%w: above %d pieces", ErrOutOfRange, MaxPieces)}
 		}
 		if err := ap.SetPieces(k, int(n)); err != nil {
 			return ap, &FieldError{Field: "pull.pieces." + k, Err: err}
@@ -292,24 +299,28 @@ func validatePull(p PullRecord) error {
 	if err := checkText("pull.label", p.Label, maxNameRunes, true); err != nil {
 		return err
 	}
+	if p.TakenMs != 0 {
+		if err := checkTime("pull.taken", p.TakenMs); err != nil {
+			return err
+		}
+	}
 	kgKeys := SortedKeys(p.Kg) // sorted once: errors name the first bad key in key order
 	for _, k := range kgKeys {
-		x := p.Kg[k]
 		if _, ok := assess.CategoryIndex(k); !ok {
 			return &FieldError{Field: "pull.kg." + k, Err: fmt.Errorf("%w (valid keys: %s)", assess.ErrUnknownCategory, strings.Join(assess.CategoryKeys(), ", "))}
 		}
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return &FieldError{Field: "pull.kg." + k, Value: fnum(x), Err: assess.ErrNonFiniteMass}
-		}
-		if x < 0 {
-			return &FieldError{Field: "pull.kg." + k, Value: fnum(x), Err: assess.ErrNegativeMass}
+		if err := checkKg("pull.kg."+k, p.Kg[k], false, assess.ErrNonFiniteMass, assess.ErrNegativeMass); err != nil {
+			return err
 		}
 	}
-	if err := checkFinite("pull.stated_kg", p.StatedKg); err != nil {
+	// Each part is at most MaxBaleKg, so the sum of at most 24 parts is
+	// finite; the sum itself is held to the same bound.
+	if parts := partsKg(p, kgKeys); parts > MaxBaleKg {
+		return &FieldError{Field: "pull.kg", Value: fmt.Sprintf("parts total %s kg", fnum(parts)),
+			Err: fmt.Errorf("%w: a pull weighs at most %g kg, the most a bale weighs", ErrOutOfRange, MaxBaleKg)}
+	}
+	if err := checkKg("pull.stated_kg", p.StatedKg, false, ErrNonFinite, ErrNegative); err != nil {
 		return err
-	}
-	if p.StatedKg < 0 {
-		return &FieldError{Field: "pull.stated_kg", Value: fnum(p.StatedKg), Err: ErrNegative}
 	}
 	ap, err := assessPull(p, kgKeys)
 	if err != nil {
