@@ -23,7 +23,7 @@ func SortHistory(evs []Stamped) {
 	for i, e := range evs {
 		index[e.ID] = i
 	}
-	waiting := make([]int, n)  // predecessors of i not yet placed
+	waiting := make([]int, n) // predecessors of i not yet placed
 	after := make([][]int, n) // events that supersede i
 	for i, e := range evs {
 		seen := map[int]bool{}

@@ -53,7 +53,9 @@ func TestValidateRanges(t *testing.T) {
 	clock := func(ms int64) record.Event {
 		return testkit.SiteEv(testkit.Ent(1), testkit.DevA, ms, "Yard", 1, 1)
 	}
-	name := func(s string) record.Event { return testkit.SiteEv(testkit.Ent(1), testkit.DevA, now.UnixMilli(), s, 1, 1) }
+	name := func(s string) record.Event {
+		return testkit.SiteEv(testkit.Ent(1), testkit.DevA, now.UnixMilli(), s, 1, 1)
+	}
 	notes := func(s string) record.Event {
 		e := name("Yard")
 		e.Site.Notes = s
