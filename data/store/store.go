@@ -55,6 +55,10 @@ type Options struct {
 	Now func() time.Time
 	// Timeout overrides OpenTimeout when positive.
 	Timeout time.Duration
+	// Device is the device id a new store takes (the transfer layer
+	// derives it from the device's signing key); zero means random. An
+	// existing store keeps the id it has.
+	Device record.DeviceID
 
 	// beforeCommit, when set (tests only), runs at the end of every write
 	// transaction; an error from it is treated as a failed write.
@@ -124,9 +128,12 @@ func OpenWith(dir string, o Options) (*Store, error) {
 		if d := m.Get([]byte(metaDevice)); len(d) == len(s.device) {
 			copy(s.device[:], d)
 		} else {
-			dev, err := record.NewDeviceID()
-			if err != nil {
-				return err
+			dev := o.Device
+			if dev == (record.DeviceID{}) {
+				var err error
+				if dev, err = record.NewDeviceID(); err != nil {
+					return err
+				}
 			}
 			s.device = dev
 			if err := m.Put([]byte(metaDevice), dev[:]); err != nil {
