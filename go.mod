@@ -8,11 +8,9 @@ require (
 	github.com/google/uuid v1.6.0
 	github.com/veraison/go-cose v1.3.0
 	go.etcd.io/bbolt v1.5.0
+	golang.org/x/sys v0.45.0
 	gonum.org/v1/gonum v0.17.0
 	pgregory.net/rapid v1.3.0
 )
 
-require (
-	github.com/x448/float16 v0.8.4 // indirect
-	golang.org/x/sys v0.45.0 // indirect
-)
+require github.com/x448/float16 v0.8.4 // indirect

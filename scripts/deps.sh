@@ -5,6 +5,8 @@ set -euo pipefail
 
 # python3-cbor2: independent CBOR decoder for the sync-file interop test.
 packages=(python3 python3-cbor2)
+# python3-cryptography: independent Ed25519 check of bundle signatures and authorship proofs (interop test).
+packages+=(python3-cryptography)
 
 missing=()
 for p in "${packages[@]}"; do

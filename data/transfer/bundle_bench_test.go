@@ -38,9 +38,9 @@ func xSetup100k(b *testing.B) *xBenchSetup {
 	if xBenchCache != nil {
 		return xBenchCache
 	}
-	raws, evs := testkit.BenchRaws(b, 100_000, 1)
 	key := xKey(b, 0x11)
-	bundle, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws)
+	raws, evs := testkit.BenchRawsBy(b, 100_000, 1, testkit.XferNow.AddDate(-1, 0, 0).UnixMilli(), key.DeviceID())
+	bundle, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -55,7 +55,7 @@ func xSetup100k(b *testing.B) *xBenchSetup {
 			size += bodyOverhead(len(raws[j])) + len(raws[j])
 			j++
 		}
-		p, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: seq, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws[i:j])
+		p, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: seq, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws[i:j], nil)
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -93,7 +93,7 @@ func BenchmarkTransfer100k(b *testing.B) {
 	b.Run("seal", func(b *testing.B) {
 		b.SetBytes(int64(len(st.bundle)))
 		for b.Loop() {
-			if _, err := SealBundle(st.key, BundleHeader{Seq: 1, Part: 1, Parts: 1}, st.raws); err != nil {
+			if _, err := SealBundle(st.key, BundleHeader{Seq: 1, Part: 1, Parts: 1}, st.raws, nil); err != nil {
 				b.Fatal(err)
 			}
 		}
@@ -303,14 +303,14 @@ func xPeakMemory(t *testing.T, n, perPart int, checkOnly, timeOrdered bool) {
 	wall := testkit.XferNow.AddDate(-1, 0, 0).UnixMilli()
 	for done := 0; done < n; {
 		k := min(n-done, perPart)
-		raws, evs := testkit.BenchRawsFrom(t, k, seq+100, wall) // a seed per part: no duplicates
+		raws, evs := testkit.BenchRawsBy(t, k, seq+100, wall, key.DeviceID()) // a seed per part: no duplicates
 		raws = raws[:k]
 		if timeOrdered {
 			wall = evs[len(evs)-1].Clock.WallMs + 1
 		}
 		seq++
 		h := BundleHeader{Device: evs[0].Device, Seq: seq, Prev: prev, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}
-		b, err := SealBundle(key, h, raws)
+		b, err := SealBundle(key, h, raws, nil)
 		if err != nil {
 			t.Fatal(err)
 		}

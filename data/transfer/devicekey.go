@@ -1,6 +1,7 @@
 package transfer
 
 import (
+	"baleassay/data/record"
 	"crypto/ed25519"
 	"crypto/rand"
 	"crypto/x509"
@@ -35,6 +36,24 @@ func (k *DeviceKey) Public() ed25519.PublicKey { return k.priv.Public().(ed25519
 
 // Fingerprint returns SHA-256 of the public key.
 func (k *DeviceKey) Fingerprint() Fingerprint { return FingerprintOf(k.Public()) }
+
+// DeviceID is the id of the device this key belongs to: see DeviceIDOf.
+func (k *DeviceKey) DeviceID() record.DeviceID { return k.Fingerprint().Device() }
+
+// DeviceIDOf is the device id bound to an Ed25519 public key: the first
+// 16 bytes of SHA-256 of the raw 32-byte key, so the same as the first
+// 32 hex digits of its fingerprint. A device id therefore names exactly
+// one key (finding a second key with the same id takes about 2¹²⁸
+// tries), and anyone holding the key can check the id without asking
+// anybody: an event's author field says whose signature it must carry.
+func DeviceIDOf(pub ed25519.PublicKey) record.DeviceID { return FingerprintOf(pub).Device() }
+
+// Device is the device id bound to the key with this fingerprint.
+func (f Fingerprint) Device() record.DeviceID {
+	var d record.DeviceID
+	copy(d[:], f[:len(d)])
+	return d
+}
 
 // PublicPEM returns the public key as a PEM "PUBLIC KEY" block
 // (SubjectPublicKeyInfo, RFC 8410 §4), the file `bale trust add` reads.

@@ -22,8 +22,9 @@ type Inspection struct {
 	SignatureOK bool  // verifies with the key in the file, trusted or not
 	SigErr      error // why not
 	Header      BundleHeader
-	BodyErr     error  // the strict body reader
-	Events      int    // events in the body
+	BodyErr     error // the strict body reader
+	Events      int   // events in the body
+	Proofs      []ProofInfo
 	Diagnostic  string // payload in CBOR diagnostic notation (RFC 8949 §8)
 }
 
@@ -64,7 +65,7 @@ func InspectBundle(raw []byte, trust TrustFunc) Inspection {
 	if in.SigErr = verifySign1(env, env.kid); in.SigErr == nil {
 		in.SignatureOK = true
 	}
-	h, raws, _, err := decodeBody(env.payload, env.payloadOff)
+	h, proofRaws, raws, ids, err := decodeBody(env.payload, env.payloadOff)
 	if err != nil {
 		in.BodyErr = err
 		if d, derr := diagMode.Diagnose(env.payload); derr == nil {
@@ -75,11 +76,32 @@ func InspectBundle(raw []byte, trust TrustFunc) Inspection {
 		return in
 	}
 	in.Header, in.Events = h, len(raws)
-	if h.Key != in.Signer {
-		in.BodyErr = bundleErr(ErrBundleHeader, "header.key", env.payloadOff, "header names key %s, bundle is signed by %s", h.Key, in.Signer)
+	in.BodyErr = checkSigner(h, in.Signer, env.payloadOff)
+	for _, pr := range proofRaws {
+		pi := ProofInfo{Size: len(pr)}
+		if p, err := ParseAuthorProof(pr); err != nil {
+			pi.Err = err
+		} else {
+			pi.Device, pi.Key, pi.Lists = p.Device, p.Key, p.Len()
+		}
+		in.Proofs = append(in.Proofs, pi)
+	}
+	if in.BodyErr == nil {
+		if _, err := checkAuthorship(h.Device, proofRaws, raws, ids); err != nil {
+			in.BodyErr = err
+		}
 	}
 	in.Diagnostic = bodyDiagnostic(env.payload, raws)
 	return in
+}
+
+// ProofInfo is one authorship proof as Inspect found it.
+type ProofInfo struct {
+	Size   int
+	Device record.DeviceID // the author it speaks for
+	Key    Fingerprint
+	Lists  int   // event ids it lists
+	Err    error // why it does not count, if it does not
 }
 
 // bodyDiagnostic writes [header, [[h'id', <<event>>], ...]] one event
@@ -96,6 +118,22 @@ func bodyDiagnostic(payload []byte, raws [][]byte) string {
 		hd = "(" + err.Error() + ")"
 	}
 	b.WriteString("[\n  " + hd + ",\n  [")
+	w.off = len(payload) - len(rest)
+	if proofs, err := readProofs(w); err == nil {
+		for i, pr := range proofs {
+			pd, err := diagMode.Diagnose(pr)
+			if err != nil {
+				pd = "h'" + hex.EncodeToString(pr) + "'"
+			} else {
+				pd = "<<" + pd + ">>"
+			}
+			if i > 0 {
+				b.WriteByte(',')
+			}
+			b.WriteString("\n    " + pd)
+		}
+	}
+	b.WriteString("\n  ],\n  [")
 	for i, r := range raws {
 		id := record.IDOf(r)
 		ed, err := diagMode.Diagnose(r)
@@ -147,6 +185,17 @@ func (in Inspection) WriteText(w io.Writer) error {
 		}
 		p("clock:      %s+%d", time.UnixMilli(h.WallMs).UTC().Format(time.RFC3339), h.Logical)
 		p("events:     %d", in.Events)
+		for k, pi := range in.Proofs {
+			if pi.Err != nil {
+				p("proof %d:    REFUSED: %v", k+1, pi.Err)
+				continue
+			}
+			who := "another device"
+			if pi.Device == h.Device {
+				who = "the signer"
+			}
+			p("proof %d:    device %s (%s) signed for %d events, key %s", k+1, pi.Device, who, pi.Lists, pi.Key)
+		}
 	}
 	p("payload (RFC 8949 §8 diagnostic notation):\n%s", in.Diagnostic)
 	return nil
