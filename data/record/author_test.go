@@ -13,6 +13,7 @@ import (
 func TestAuthorOfProperty(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		e := genEvent(t)
+		e.Clock.WallMs = rapid.Int64().Draw(t, "wall")               // negative stamps too
 		e.Kind = record.Kind(rapid.IntRange(0, 255).Draw(t, "kind")) // kinds above 23 take a two-byte head
 		raw, err := record.EncodeEvent(e)
 		if err != nil {
@@ -21,6 +22,9 @@ func TestAuthorOfProperty(t *testing.T) {
 		dev, ok := record.AuthorOf(raw)
 		if !ok || dev != e.Device {
 			t.Fatalf("AuthorOf = %v, %v; want %v", dev, ok, e.Device)
+		}
+		if h, ok := record.ClockOf(raw); !ok || h != e.Clock {
+			t.Fatalf("ClockOf = %v, %v; want %v", h, ok, e.Clock)
 		}
 	})
 }
@@ -40,6 +44,9 @@ func FuzzAuthorOf(f *testing.F) {
 		}
 		if !ok || dev != e.Device {
 			t.Fatalf("DecodeEvent accepted an event by %v, AuthorOf says %v, %v", e.Device, dev, ok)
+		}
+		if h, ok := record.ClockOf(raw); !ok || h != e.Clock {
+			t.Fatalf("DecodeEvent accepted an event stamped %v, ClockOf says %v, %v", e.Clock, h, ok)
 		}
 	})
 }

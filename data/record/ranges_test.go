@@ -51,7 +51,9 @@ func TestValidateRanges(t *testing.T) {
 		return e
 	}
 	clock := func(ms int64) record.Event {
-		return testkit.SiteEv(testkit.Ent(1), testkit.DevA, ms, "Yard", 1, 1)
+		e := testkit.SiteEv(testkit.Ent(1), testkit.DevA, now.UnixMilli(), "Yard", 1, 1)
+		e.Clock.WallMs = ms // as given: testkit moves small stamps after T0
+		return e
 	}
 	name := func(s string) record.Event {
 		return testkit.SiteEv(testkit.Ent(1), testkit.DevA, now.UnixMilli(), s, 1, 1)
