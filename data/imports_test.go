@@ -27,20 +27,22 @@ var allowed = map[string][]string{
 	"assess":                {},
 	"yield":                 {"assess"},
 	"data":                  {},
-	"data/record":           {"assess"},
+	"data/record":           {"assess", "yield"},
 	"data/geo":              {"data/record"},
 	"data/store":            {"assess", "data/record", "data/geo"},
 	"data/transfer":         {"data/record", "data/store"},
 	"data/demo":             {"assess", "data/record", "data/store"},
 	"data/internal/testkit": {"data/record"},
+	"data/desk":             {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo"},
 	"data/publish":          {"assess", "yield", "data/record", "data/store"},
-	"cmd/bale":              {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "data/publish"},
-	"ui/...":                {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "ui/...", gio},
-	"cmd/baleassay":         {"ui/...", gio},
+	"cmd/bale":              {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "data/publish"},
+	"ui/...":                {"data/desk", "assess", "yield", "data/record", "data/geo", "ui/...", gio},
+	"cmd/baleassay":         {"ui/...", "data/desk", gio},
 }
 
 // testOnly are extra imports some packages' tests need.
 var testOnly = map[string][]string{
+	"cmd/bale":      {"data/store"},
 	"data/transfer": {"assess"},
 	"data/demo":     {"data/geo"},
 }

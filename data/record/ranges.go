@@ -29,21 +29,34 @@ const (
 	MaxPieces = 1_000_000
 )
 
-// The range of every stored time: clock stamps, bale receipt and pull
-// sampling times, in Unix milliseconds, from 2000-01-01 (inclusive) to
-// 2100-01-01 (exclusive) UTC. A time outside it comes from a clock that
-// lost its setting (1970) or from a damaged or hostile file; it would
-// also break RFC 3339 output (years past 9999) and duration arithmetic.
+// The range of every stored time, in Unix milliseconds UTC. Clock
+// stamps say when a device recorded an event: from 2000-01-01
+// (inclusive) to 2100-01-01 (exclusive); a stamp outside comes from a
+// clock that lost its setting (1970) or from a damaged or hostile file.
+// Dates a grader types (a bale's receipt, a pull's sampling) may be
+// entered after the fact for old audits, so they start at 1950-01-01.
+// Both bounds keep RFC 3339 output (years to 9999) and duration
+// arithmetic far from overflowing.
 var (
 	MinTimeMs = time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli()
 	MaxTimeMs = time.Date(2100, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli() // exclusive
+	MinDateMs = time.Date(1950, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli()
 )
 
-// checkTime refuses a time outside [MinTimeMs, MaxTimeMs).
+// checkTime refuses a clock stamp outside [MinTimeMs, MaxTimeMs).
 func checkTime(field string, ms int64) error {
 	if ms < MinTimeMs || ms >= MaxTimeMs {
 		return &FieldError{Field: field, Value: strconv.FormatInt(ms, 10),
-			Err: fmt.Errorf("%w: a time must lie from 2000-01-01 to 2099-12-31 UTC; check the device's date", ErrOutOfRange)}
+			Err: fmt.Errorf("%w: a clock stamp must lie from 2000-01-01 to 2099-12-31 UTC; check the device's date", ErrOutOfRange)}
+	}
+	return nil
+}
+
+// checkDate refuses a typed date outside [MinDateMs, MaxTimeMs).
+func checkDate(field string, ms int64) error {
+	if ms < MinDateMs || ms >= MaxTimeMs {
+		return &FieldError{Field: field, Value: strconv.FormatInt(ms, 10),
+			Err: fmt.Errorf("%w: a date must lie from 1950-01-01 to 2099-12-31 UTC", ErrOutOfRange)}
 	}
 	return nil
 }

@@ -13,13 +13,15 @@ import (
 )
 
 // Boundary rows of the physical ranges (ranges.go: MaxBaleKg 5,000 kg,
-// MaxBaleDimM 5 m, MaxPieces 10⁶, times 2000-01-01 to 2100-01-01 UTC;
+// MaxBaleDimM 5 m, MaxPieces 10⁶, clock stamps 2000-01-01 to 2100-01-01
+// UTC, typed dates from 1950-01-01;
 // the bounds are this program's own, stated in ranges.go) and of the
 // terminal-safe text rule. Every row outside a range was accepted
 // before the ranges existed.
 func TestValidateRanges(t *testing.T) {
 	now := testkit.T0
 	next := func(x float64) float64 { return math.Nextafter(x, math.Inf(1)) }
+	y1950 := time.Date(1950, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli()
 	y2000 := time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli()
 	y2100 := time.Date(2100, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli()
 	bale := func(kg, dim float64) record.Event {
@@ -98,14 +100,16 @@ func TestValidateRanges(t *testing.T) {
 		{"pull pieces 2^62", pieces(1 << 62), record.ErrOutOfRange},
 		{"pull pieces negative", pieces(-1), assess.ErrNegativeCount},
 		{"pull taken not given", taken(0), nil},
-		{"pull taken 1999-12-31T23:59:59.999", taken(y2000 - 1), record.ErrOutOfRange},
-		{"pull taken 2000-01-01", taken(y2000), nil},
-		{"pull taken negative", taken(-5), record.ErrOutOfRange},
-		{"received 2000-01-01", received(y2000), nil},
-		{"received just before 2000", received(y2000 - 1), record.ErrOutOfRange},
+		{"pull taken 1949-12-31T23:59:59.999", taken(y1950 - 1), record.ErrOutOfRange},
+		{"pull taken 1950-01-01", taken(y1950), nil},
+		{"pull taken 1969 (negative)", taken(-5), nil},
+		{"pull taken year 1653", taken(-1e13), record.ErrOutOfRange},
+		{"received 1950-01-01", received(y1950), nil},
+		{"received just before 1950", received(y1950 - 1), record.ErrOutOfRange},
+		{"received 1985 (an old audit entered now)", received(time.Date(1985, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli()), nil},
 		{"received 2099-12-31T23:59:59.999", received(y2100 - 1), nil},
 		{"received 2100-01-01", received(y2100), record.ErrOutOfRange},
-		{"received 0", received(0), record.ErrOutOfRange},
+		{"received min int64", received(math.MinInt64), record.ErrOutOfRange},
 		{"clock 2000-01-01", clock(y2000), nil},
 		{"clock 1970 (a reset clock)", clock(86_400_000), record.ErrOutOfRange},
 		{"clock 2^62 ms", clock(1 << 62), record.ErrOutOfRange},

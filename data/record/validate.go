@@ -1,6 +1,7 @@
 package record
 
 import (
+	"bytes"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -10,6 +11,7 @@ import (
 	"unicode/utf8"
 
 	"baleassay/assess"
+	"baleassay/yield"
 )
 
 // Limits used by validation.
@@ -212,7 +214,7 @@ func validateBale(b BaleRecord) ([]Warning, error) {
 	if b.Site.IsZero() {
 		return nil, &FieldError{Field: "bale.site", Err: ErrMissingID}
 	}
-	if err := checkTime("bale.received", b.ReceivedMs); err != nil {
+	if err := checkDate("bale.received", b.ReceivedMs); err != nil {
 		return nil, err
 	}
 	if err := checkKg("bale.gross_kg", b.GrossKg, true, ErrNonFinite, ErrNotPositive); err != nil {
@@ -300,7 +302,7 @@ func validatePull(p PullRecord) error {
 		return err
 	}
 	if p.TakenMs != 0 {
-		if err := checkTime("pull.taken", p.TakenMs); err != nil {
+		if err := checkDate("pull.taken", p.TakenMs); err != nil {
 			return err
 		}
 	}
@@ -352,6 +354,29 @@ func validateSetting(s SettingRecord) error {
 	}
 	if !json.Valid(s.Body) {
 		return &FieldError{Field: "setting.body", Err: ErrBadSetting}
+	}
+	// The same readers the audit and the yield use, so that a setting
+	// that would not load is refused on save and on import alike.
+	var name string
+	switch s.Kind {
+	case SettingSpec:
+		sp, err := assess.ParseSpec(s.Body)
+		if err != nil {
+			return &FieldError{Field: "setting.body", Err: fmt.Errorf("%w: %w", ErrBadSetting, err)}
+		}
+		name = sp.Name
+	default:
+		l, err := yield.ReadLine(bytes.NewReader(s.Body), s.Name)
+		if err != nil {
+			return &FieldError{Field: "setting.body", Err: fmt.Errorf("%w: %w", ErrBadSetting, err)}
+		}
+		if _, err := yield.Compile(l); err != nil {
+			return &FieldError{Field: "setting.body", Err: fmt.Errorf("%w: %w", ErrBadSetting, err)}
+		}
+		name = l.Name
+	}
+	if name != s.Name {
+		return &FieldError{Field: "setting.name", Value: s.Name, Err: fmt.Errorf("%w: the document calls itself %q", ErrSettingName, name)}
 	}
 	return nil
 }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"slices"
+	"time"
 
 	"baleassay/assess"
 	"baleassay/data/internal/testkit"
@@ -403,9 +404,9 @@ func fixCases() []fixCase {
 			e.Pull.Pieces = map[string]int64{"pet_clear": 1 << 62}
 			return e
 		}), want: []error{ErrBundleEvent, record.ErrOutOfRange}},
-		{name: "event-bale-received-1969", build: evOf(func(g *fixGen) record.Event {
+		{name: "event-bale-received-1900", build: evOf(func(g *fixGen) record.Event {
 			e := g.mk.Bale(g.mk.Entity(), g.siteID, 500)
-			e.Bale.ReceivedMs = -1
+			e.Bale.ReceivedMs = time.Date(1900, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli()
 			return e
 		}), want: []error{ErrBundleEvent, record.ErrOutOfRange}},
 		{name: "event-name-terminal-escape", build: evOf(func(g *fixGen) record.Event {
