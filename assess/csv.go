@@ -1,12 +1,12 @@
 package assess
 
 import (
+	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strconv"
 	"strings"
 )
@@ -39,7 +39,7 @@ func (e *InputError) Error() string {
 		}
 	}
 	if e.Field != "" {
-		return fmt.Sprintf("%s: column %q: %s", loc, e.Field, e.Msg)
+		return fmt.Sprintf("%s: column %s: %s", loc, excerpt(e.Field), e.Msg)
 	}
 	return fmt.Sprintf("%s: %s", loc, e.Msg)
 }
@@ -54,12 +54,11 @@ type column struct {
 
 // ReadPullsFile reads a pulls CSV file; see ReadPulls.
 func ReadPullsFile(path string) ([]Pull, error) {
-	f, err := os.Open(path)
+	b, err := ReadFileLimited(path, MaxPullsFileBytes)
 	if err != nil {
 		return nil, &InputError{File: path, Msg: fmt.Sprintf("cannot read the file (%v); check the path", err), Err: err}
 	}
-	defer f.Close()
-	return ReadPulls(f, path)
+	return ReadPulls(bytes.NewReader(b), path)
 }
 
 // ReadPulls reads pulls from CSV (RFC 4180, via encoding/csv). The first
@@ -101,12 +100,12 @@ func ReadPulls(r io.Reader, name string) ([]Pull, error) {
 		}
 		if first, dup := seen[p.Label]; dup {
 			return nil, &InputError{File: name, Line: line, Column: 1, Field: "pull",
-				Msg: fmt.Sprintf("pull label %q is used twice (first on line %d); give every pull its own label", p.Label, first), Err: ErrDuplicatePull}
+				Msg: fmt.Sprintf("pull label %s is used twice (first on line %d); give every pull its own label", excerpt(p.Label), first), Err: ErrDuplicatePull}
 		}
 		seen[p.Label] = line
 		if p.TotalKg() <= 0 {
 			return nil, &InputError{File: name, Line: line, Field: "pull",
-				Msg: fmt.Sprintf("pull %q weighs 0 kg; enter its masses or delete the row", p.Label), Err: ErrEmptyPull}
+				Msg: fmt.Sprintf("pull %s weighs 0 kg; enter its masses or delete the row", excerpt(p.Label)), Err: ErrEmptyPull}
 		}
 		pulls = append(pulls, p)
 	}
@@ -134,9 +133,9 @@ func parseHeader(cr *csv.Reader, header []string, name string) ([]column, error)
 		}
 		idx, ok := CategoryIndex(key)
 		if !ok {
-			msg := fmt.Sprintf("unknown category %q; valid keys are: %s (add _count for piece counts)", key, strings.Join(CategoryKeys(), ", "))
+			msg := fmt.Sprintf("unknown category %s; valid keys are: %s (add _count for piece counts)", excerpt(key), strings.Join(CategoryKeys(), ", "))
 			if s := suggestKey(key); len(s) > 0 {
-				msg = fmt.Sprintf("unknown category %q; did you mean %s? valid keys are: %s", key, strings.Join(s, " or "), strings.Join(CategoryKeys(), ", "))
+				msg = fmt.Sprintf("unknown category %s; did you mean %s? valid keys are: %s", excerpt(key), strings.Join(s, " or "), strings.Join(CategoryKeys(), ", "))
 			}
 			return nil, herr(i+1, msg, ErrUnknownCategory)
 		}
@@ -175,9 +174,9 @@ func parseRow(cr *csv.Reader, rec []string, cols []column, name string) (Pull, e
 			return &InputError{File: name, Line: line, Column: colNo, Field: field, Msg: msg, Err: sentinel}
 		}
 		if c.pieces {
-			n, err := strconv.Atoi(cell)
+			n, err := ParseWhole(cell)
 			if err != nil {
-				return Pull{}, cerr(fmt.Sprintf("piece count %q is not a whole number", cell), ErrBadNumber)
+				return Pull{}, cerr(fmt.Sprintf("piece count %s is not a whole number", excerpt(cell)), ErrBadNumber)
 			}
 			if n < 0 {
 				return Pull{}, cerr(fmt.Sprintf("piece count %d is negative; counts are 0 or more", n), ErrNegativeCount)
@@ -185,12 +184,15 @@ func parseRow(cr *csv.Reader, rec []string, cols []column, name string) (Pull, e
 			_ = p.SetPieces(field, n)
 			continue
 		}
-		v, err := strconv.ParseFloat(cell, 64)
+		v, err := ParseDecimal(cell)
+		if f, ferr := strconv.ParseFloat(cell, 64); err != nil && ferr == nil && (math.IsNaN(f) || math.IsInf(f, 0)) {
+			v, err = f, nil // named below as not finite
+		}
 		switch {
 		case err != nil:
-			return Pull{}, cerr(fmt.Sprintf("mass %q is not a number; write kilograms with a decimal point, e.g. 1.25", cell), ErrBadNumber)
+			return Pull{}, cerr(fmt.Sprintf("mass %s is not a number; write kilograms as a plain decimal, e.g. 1.25 (no hexadecimal, no digit separators)", excerpt(cell)), ErrBadNumber)
 		case math.IsNaN(v) || math.IsInf(v, 0):
-			return Pull{}, cerr(fmt.Sprintf("mass %q is not a finite number; write kilograms, e.g. 1.25", cell), ErrNonFiniteMass)
+			return Pull{}, cerr(fmt.Sprintf("mass %s is not a finite number; write kilograms, e.g. 1.25", excerpt(cell)), ErrNonFiniteMass)
 		case v < 0:
 			return Pull{}, cerr(fmt.Sprintf("mass %g kg is negative; masses are 0 or more", v), ErrNegativeMass)
 		}

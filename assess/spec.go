@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"sort"
 	"strings"
 )
@@ -102,6 +101,12 @@ func (s Spec) Validate() error {
 // ParseSpec reads a spec from JSON, refusing unknown fields, and
 // validates it.
 func ParseSpec(b []byte) (Spec, error) {
+	if len(b) > MaxDocumentFileBytes {
+		return Spec{}, fmt.Errorf("spec JSON has %d bytes, more than a spec holds (%d): %w", len(b), MaxDocumentFileBytes, ErrBadSpec)
+	}
+	if err := CheckJSON(b); err != nil {
+		return Spec{}, fmt.Errorf("spec JSON: %v: %w", err, ErrBadSpec)
+	}
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	var s Spec
@@ -129,9 +134,9 @@ func LoadSpec(nameOrPath string) (Spec, error) {
 	if s, ok := BuiltinSpec(nameOrPath); ok {
 		return s, nil
 	}
-	b, err := os.ReadFile(nameOrPath)
+	b, err := ReadFileLimited(nameOrPath, MaxDocumentFileBytes)
 	if err != nil {
-		return Spec{}, fmt.Errorf("spec %q is neither a built-in spec (%s) nor a readable file: %v", nameOrPath, strings.Join(BuiltinSpecNames(), ", "), err)
+		return Spec{}, fmt.Errorf("spec %q is neither a built-in spec (%s) nor a readable spec file: %w", nameOrPath, strings.Join(BuiltinSpecNames(), ", "), err)
 	}
 	s, err := ParseSpec(b)
 	if err != nil {
