@@ -1,6 +1,7 @@
 package record
 
 import (
+	"baleassay/assess"
 	"fmt"
 	"math"
 	"strconv"
@@ -78,32 +79,11 @@ func checkKg(field string, x float64, positive bool, nonFinite, negative error) 
 }
 
 // TerminalSafe reports the first character of s that must not be
-// stored in a name, tag, label or note, and its byte offset: C0 and C1
-// control characters (terminal escapes, newlines, tabs, DEL) and the
-// Unicode bidirectional controls that can make printed text read
-// differently from what it holds (U+061C, U+200E, U+200F, U+202A–U+202E,
-// U+2066–U+2069), and the line and paragraph separators U+2028, U+2029.
-// ok is true when s holds none. Invalid UTF-8 is refused elsewhere.
-func TerminalSafe(s string) (r rune, at int, ok bool) {
-	for i, c := range s {
-		if unsafeRune(c) {
-			return c, i, false
-		}
-	}
-	return 0, 0, true
-}
-
-func unsafeRune(c rune) bool {
-	switch {
-	case c < 0x20 || (c >= 0x7f && c <= 0x9f):
-		return true
-	case c == 0x061c || c == 0x200e || c == 0x200f || c == 0x2028 || c == 0x2029:
-		return true
-	case c >= 0x202a && c <= 0x202e, c >= 0x2066 && c <= 0x2069:
-		return true
-	}
-	return false
-}
+// stored in a name, tag, label or note, and its byte offset; it is
+// assess.TerminalSafe (control characters, bidirectional controls, line
+// and paragraph separators). ok is true when s holds none. Invalid UTF-8
+// is refused elsewhere.
+func TerminalSafe(s string) (r rune, at int, ok bool) { return assess.TerminalSafe(s) }
 
 // FormatSkew writes a clock difference given in milliseconds for people
 // ("3m0s", "45 days", "12 years"), for any int64 without overflow:

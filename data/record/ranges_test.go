@@ -187,3 +187,28 @@ func TestFormatSkew(t *testing.T) {
 		t.Fatalf("warning %v, err %v", w, err)
 	}
 }
+
+// Settings refuse JSON that reads differently in different readers (a
+// repeated key) or carries a terminal escape, on save and import alike.
+func TestValidateSettingJSON(t *testing.T) {
+	now := testkit.T0
+	setting := func(body string) record.Event {
+		return record.Event{Version: 1, Entity: testkit.Ent(5), Kind: record.KindSetting, Device: testkit.DevA, Clock: record.HLC{WallMs: now.UnixMilli()},
+			Setting: &record.SettingRecord{Kind: record.SettingSpec, Name: "glycol feed", Body: []byte(body)}}
+	}
+	ok := `{"name":"glycol feed","limits":[{"item":"pet","min":0.8}]}`
+	if _, err := record.ValidateEventAt(setting(ok), now); err != nil {
+		t.Fatalf("valid spec refused: %v", err)
+	}
+	for _, c := range []struct {
+		body string
+		want error
+	}{
+		{`{"name":"glycol feed","limits":[{"item":"pet","min":0.8}],"limits":[]}`, assess.ErrDuplicateKey},
+		{`{"name":"glycol feed","limits":[{"item":"pet\u001b[2J","min":0.8}]}`, assess.ErrControlText},
+	} {
+		if _, err := record.ValidateEventAt(setting(c.body), now); !errors.Is(err, record.ErrBadSetting) || !errors.Is(err, c.want) {
+			t.Errorf("%s: %v, want ErrBadSetting and %v", c.body, err, c.want)
+		}
+	}
+}

@@ -355,6 +355,11 @@ func validateSetting(s SettingRecord) error {
 	if !json.Valid(s.Body) {
 		return &FieldError{Field: "setting.body", Err: ErrBadSetting}
 	}
+	// A repeated key reads differently in different readers; a control
+	// character in a name or description reaches a terminal later.
+	if err := assess.CheckJSON(s.Body); err != nil {
+		return &FieldError{Field: "setting.body", Err: fmt.Errorf("%w: %w", ErrBadSetting, err)}
+	}
 	// The same readers the audit and the yield use, so that a setting
 	// that would not load is refused on save and on import alike.
 	var name string
