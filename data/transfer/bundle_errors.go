@@ -10,6 +10,7 @@ import (
 // errors.Is; the typed errors below add where it happened.
 var (
 	ErrBundleEmpty       = errors.New("data: bundle file is empty")
+	ErrBundleNotFile     = errors.New("data: not a regular file")
 	ErrBundleTooLarge    = errors.New("data: bundle file is larger than the import limit")
 	ErrBundleTruncated   = errors.New("data: bundle is truncated")
 	ErrBundleTrailing    = errors.New("data: bytes after the end of the bundle")

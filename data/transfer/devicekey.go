@@ -116,6 +116,9 @@ func LoadOrCreateDeviceKey(dir string) (key *DeviceKey, created bool, err error)
 }
 
 func loadDeviceKey(path string) (*DeviceKey, error) {
+	if err := checkPrivateDir(filepath.Dir(path)); err != nil {
+		return nil, err
+	}
 	st, err := os.Stat(path)
 	if err != nil {
 		return nil, err

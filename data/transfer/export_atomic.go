@@ -15,11 +15,12 @@ import (
 const (
 	tempPrefix = ".baleassay-"
 	tempSuffix = ".tmp"
-	// staleAfter is how old a temporary file must be before it counts as
-	// left behind (its writer also holds a lock on it where the system
-	// has file locks).
-	staleAfter = 10 * time.Second
 )
+
+// staleAfter is how old a temporary file must be before it counts as
+// left behind (its writer also holds a lock on it where the system has
+// file locks). Tests shorten it.
+var staleAfter = 10 * time.Second
 
 // ErrTargetExists refuses to write over an existing file. It wraps
 // fs.ErrExist.

@@ -1,6 +1,7 @@
 package transfer
 
 import (
+	"baleassay/assess"
 	"baleassay/data/record"
 	"baleassay/data/store"
 	"bytes"
@@ -174,18 +175,16 @@ func ReadBundleFile(path string, max int64) ([]byte, error) {
 	if max <= 0 {
 		max = MaxBundleBytes
 	}
-	f, err := os.Open(path)
+	// A FIFO, a device or a folder named *.bale is refused from its
+	// status, before it is opened (opening a FIFO waits for a writer).
+	f, st, err := assess.OpenRegular(path)
+	if errors.Is(err, assess.ErrNotRegular) {
+		return nil, bundleErr(ErrBundleNotFile, "file", -1, "%v: only regular files are read", err)
+	}
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	st, err := f.Stat()
-	if err != nil {
-		return nil, err
-	}
-	if !st.Mode().IsRegular() {
-		return nil, bundleErr(ErrBundleMalformed, "file", -1, "%s is not a regular file", path)
-	}
 	if st.Size() > max {
 		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", st.Size(), max)
 	}
