@@ -24,6 +24,11 @@ type DemoOptions struct {
 	End   time.Time // last day of the scenario (default: today, UTC; never after the clock)
 	Weeks int       // default 6
 	Seed  uint64    // default 1
+	// Device gives the invented devices' ids by name ("yard tablet",
+	// "lab laptop"); nil derives them from the name and the seed. The
+	// desk passes ids of invented signing keys, so that the demo's
+	// records carry their authors' proofs like any others.
+	Device func(name string) record.DeviceID
 }
 
 // DemoSummary says what WriteDemo made.
@@ -95,7 +100,11 @@ func WriteDemo(s *store.Store, o DemoOptions) (DemoSummary, error) {
 	binary.LittleEndian.PutUint64(seed[:], o.Seed)
 	idr := rand.NewChaCha8(seed)
 	r := rand.New(rand.NewPCG(o.Seed, 0xba1e))
-	yard, lab := demoDevice("yard tablet", o.Seed), demoDevice("lab laptop", o.Seed)
+	device := o.Device
+	if device == nil {
+		device = func(name string) record.DeviceID { return demoDevice(name, o.Seed) }
+	}
+	yard, lab := device("yard tablet"), device("lab laptop")
 	sum := DemoSummary{YardDevice: yard, LabDevice: lab, From: start, To: end}
 
 	var raws [][]byte
