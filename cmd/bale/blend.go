@@ -25,6 +25,9 @@ type polyolFlags []string
 func (p *polyolFlags) String() string     { return strings.Join(*p, " ") }
 func (p *polyolFlags) Set(v string) error { *p = append(*p, v); return nil }
 
+// Repeatable: --polyol is given once per polyol.
+func (p *polyolFlags) Repeatable() bool { return true }
+
 // blendJSON is the stable JSON output of bale blend (see README).
 type blendJSON struct {
 	Polyols             []polyolJSON `json:"polyols"`

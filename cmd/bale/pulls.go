@@ -1,6 +1,7 @@
 package main
 
 import (
+	"baleassay/assess"
 	"fmt"
 	"io"
 	"os"
@@ -55,7 +56,7 @@ func readPullsArg(arg, unitS string) ([]record.PullRecord, error) {
 	if arg == "-" {
 		return desk.ReadPulls(stdin, "stdin", unit)
 	}
-	f, err := os.Open(arg)
+	f, _, err := assess.OpenRegular(arg) // a FIFO or folder is refused, not waited on
 	if err != nil {
 		return nil, fmt.Errorf("cannot read %s: %v", arg, err)
 	}
