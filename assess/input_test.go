@@ -83,4 +83,3 @@ func TestCheckJSON(t *testing.T) {
 		t.Fatalf("spec with a repeated key: %v", err)
 	}
 }
-
