@@ -7,6 +7,7 @@ package transfer
 import (
 	"baleassay/data/internal/testkit"
 	"baleassay/data/record"
+	"baleassay/data/store"
 	"crypto/sha256"
 	"encoding/json"
 	"fmt"
@@ -101,14 +102,19 @@ func BenchmarkTransfer100k(b *testing.B) {
 	})
 	b.Run("export", func(b *testing.B) {
 		dir := b.TempDir()
-		s := xferStore(b, dir, testkit.XferNow)
+		// A store of st.key's device, holding its own 100,000 events.
+		s, err := store.OpenWith(dir, store.Options{Now: func() time.Time { return testkit.XferNow }, Device: st.key.DeviceID()})
+		if err != nil {
+			b.Fatal(err)
+		}
+		defer s.Close()
 		if _, err := s.ApplyRaw(st.raws, nil); err != nil {
 			b.Fatal(err)
 		}
 		out := filepath.Join(dir, "x.bale")
 		b.SetBytes(int64(len(st.bundle)))
 		for b.Loop() {
-			if _, err := Export(s, st.key, out, ExportOptions{}); err != nil {
+			if _, err := Export(s, st.key, out, ExportOptions{Force: true}); err != nil {
 				b.Fatal(err)
 			}
 		}
@@ -137,6 +143,30 @@ func BenchmarkTransfer100k(b *testing.B) {
 			}
 		}
 		xReport(b, n)
+	})
+	b.Run("authorship", func(b *testing.B) { // the share of open that checks the authors' proofs, timed in the same iterations
+		env, err := parseSign1(st.bundle)
+		if err != nil {
+			b.Fatal(err)
+		}
+		h, proofs, raws, ids, err := decodeBody(env.payload, env.payloadOff)
+		if err != nil {
+			b.Fatal(err)
+		}
+		var whole, auth time.Duration
+		for b.Loop() {
+			t0 := time.Now()
+			if _, err := OpenBundle(st.bundle, trust); err != nil {
+				b.Fatal(err)
+			}
+			t1 := time.Now()
+			if _, err := checkAuthorship(h.Device, proofs, raws, ids); err != nil {
+				b.Fatal(err)
+			}
+			whole, auth = whole+t1.Sub(t0), auth+time.Since(t1)
+		}
+		b.ReportMetric(auth.Seconds()/whole.Seconds(), "authorship/open")
+		b.ReportMetric(float64(auth.Milliseconds())/float64(b.N), "authorship-ms")
 	})
 	b.Run("ratios", func(b *testing.B) { // the three decodes timed in the same iterations
 		var plain, check, serial, js time.Duration
@@ -236,6 +266,7 @@ func xPlainDecode(b *testing.B, bundle []byte) {
 	var body struct {
 		_      struct{} `cbor:",toarray"`
 		Header map[int]any
+		Proofs [][]byte
 		Events [][2][]byte
 	}
 	if err := cbor.Unmarshal(env.payload, &body); err != nil {

@@ -3,9 +3,11 @@ package transfer
 import (
 	"baleassay/data/record"
 	"bytes"
+	"encoding/binary"
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"math/bits"
 	"slices"
 )
 
@@ -41,6 +43,9 @@ type AuthorProof struct {
 	Device record.DeviceID // the author: DeviceIDOf(Key's public key)
 	Key    Fingerprint
 	ids    []byte // the statement's id entries, idEntry bytes each, ascending
+
+	shift  uint // Has's index: see buildIndex
+	starts []int32
 }
 
 // Len is the number of events the proof lists.
@@ -53,21 +58,52 @@ func (p *AuthorProof) ID(i int) record.EventID {
 	return id
 }
 
-// Has reports whether the proof lists id (binary search).
+// Has reports whether the proof lists id. Event ids are SHA-256 hashes,
+// spread evenly, so a table of where each run of leading bits starts
+// (one entry per listed id, rounded up to a power of two: built on the
+// first call, about 4 bytes per id) finds an id's place in one step;
+// a binary search within its run finishes, so ids chosen to crowd one
+// run cost at most log₂ n steps.
 func (p *AuthorProof) Has(id record.EventID) bool {
-	lo, hi := 0, p.Len()
+	if p.starts == nil {
+		p.buildIndex()
+	}
+	key := binary.BigEndian.Uint64(id[:8])
+	b := key >> p.shift
+	lo, hi := int(p.starts[b]), int(p.starts[b+1]) // ids with these leading bits are in [lo, hi)
 	for lo < hi {
 		m := int(uint(lo+hi) >> 1)
-		switch c := bytes.Compare(p.ids[m*idEntry+2:(m+1)*idEntry], id[:]); {
-		case c == 0:
-			return true
-		case c < 0:
+		if p.prefix(m) < key {
 			lo = m + 1
-		default:
+		} else {
 			hi = m
 		}
 	}
+	for i := lo; i < p.Len() && p.prefix(i) == key; i++ {
+		if bytes.Equal(p.ids[i*idEntry+2:(i+1)*idEntry], id[:]) {
+			return true
+		}
+	}
 	return false
+}
+
+// prefix is the first 8 bytes of the i-th id as a number.
+func (p *AuthorProof) prefix(i int) uint64 { return binary.BigEndian.Uint64(p.ids[i*idEntry+2:]) }
+
+// buildIndex fills starts: starts[b] is the first id whose leading
+// 64 − shift bits are at least b.
+func (p *AuthorProof) buildIndex() {
+	n := p.Len()
+	bitsN := max(1, bits.Len(uint(n)))
+	p.shift = uint(64 - bitsN)
+	p.starts = make([]int32, 1<<bitsN+1)
+	j := 0
+	for b := range p.starts {
+		for j < n && p.prefix(j)>>p.shift < uint64(b) {
+			j++
+		}
+		p.starts[b] = int32(j)
+	}
 }
 
 // statement returns the deterministic CBOR of the authorship statement
@@ -230,9 +266,18 @@ func checkAuthorship(signer record.DeviceID, proofRaws, raws [][]byte, ids []rec
 		}
 		proofs[k] = p
 	}
+	// Proofs by device; at most one of the signer's.
+	byDev := map[record.DeviceID][]int{}
+	for k, p := range proofs {
+		if p.Device == signer && len(byDev[signer]) == 1 {
+			return nil, &ProofError{Index: k, Err: fmt.Errorf("a second proof of the signing device %s: its events are listed by one proof", signer)}
+		}
+		byDev[p.Device] = append(byDev[p.Device], k)
+	}
 	authors := make([]record.DeviceID, len(raws))
-	index := make(map[record.EventID]int32, len(raws))
-	own := 0
+	covered := make([]bool, len(raws))
+	used := make([]bool, len(proofs))
+	own, ownListed := 0, 0
 	for i, raw := range raws {
 		dev, ok := record.AuthorOf(raw)
 		if !ok {
@@ -243,32 +288,32 @@ func checkAuthorship(signer record.DeviceID, proofRaws, raws [][]byte, ids []rec
 			return nil, &EventRefusedError{Index: i, ID: ids[i].String(), Err: err}
 		}
 		authors[i] = dev
-		index[ids[i]] = int32(i)
 		if dev == signer {
 			own++
 		}
-	}
-	covered := make([]bool, len(raws))
-	ownProofs := 0
-	for k, p := range proofs {
-		matched := 0
-		for j := range p.Len() {
-			if i, ok := index[p.ID(j)]; ok && authors[i] == p.Device {
-				covered[i] = true
-				matched++
+		// Binary search in the author's proofs (their ids are sorted): the
+		// first that lists the event covers it.
+		for _, k := range byDev[dev] {
+			if proofs[k].Has(ids[i]) {
+				covered[i], used[k] = true, true
+				if dev == signer {
+					ownListed++
+				}
+				break
 			}
 		}
-		if matched == 0 {
+	}
+	// A proof not yet credited must still list some event of its device
+	// (it may list only events an earlier proof covers).
+	for k, p := range proofs {
+		for i := 0; !used[k] && i < len(raws); i++ {
+			used[k] = authors[i] == p.Device && p.Has(ids[i])
+		}
+		if !used[k] {
 			return nil, &ProofError{Index: k, Err: fmt.Errorf("the proof of device %s covers no event of this bundle", p.Device)}
 		}
-		if p.Device == signer {
-			ownProofs++
-			if ownProofs > 1 {
-				return nil, &ProofError{Index: k, Err: fmt.Errorf("a second proof of the signing device %s: its events are listed by one proof", signer)}
-			}
-			if matched != p.Len() || matched != own {
-				return nil, &ProofError{Index: k, Err: fmt.Errorf("the signing device's proof lists %d events; the bundle holds %d of its events and the proof must list exactly those", p.Len(), own)}
-			}
+		if p.Device == signer && (ownListed != p.Len() || own != p.Len()) {
+			return nil, &ProofError{Index: k, Err: fmt.Errorf("the signing device's proof lists %d events; the bundle holds %d of its events and the proof must list exactly those", p.Len(), own)}
 		}
 	}
 	for i, ok := range covered {
