@@ -2,6 +2,8 @@ package assess
 
 import (
 	"errors"
+	"math"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -82,4 +84,27 @@ func TestCheckJSON(t *testing.T) {
 	if !errors.Is(err, ErrBadSpec) || !strings.Contains(err.Error(), "twice") {
 		t.Fatalf("spec with a repeated key: %v", err)
 	}
+}
+
+// FuzzParseDecimal: whatever ParseDecimal accepts is a plain decimal
+// (digits, at most one point, an optional exponent) that strconv reads
+// to the same finite value; it never accepts hexadecimal, digit
+// separators, Inf or NaN.
+func FuzzParseDecimal(f *testing.F) {
+	for _, s := range []string{"1.25", "0x1p4", "1_0", "Inf", "-0", ".5e-3", "9e999"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		x, err := ParseDecimal(s)
+		if err != nil {
+			return
+		}
+		if strings.ContainsAny(s, "xXpP_iInN") || strings.Count(s, ".") > 1 {
+			t.Fatalf("accepted %q", s)
+		}
+		y, perr := strconv.ParseFloat(s, 64)
+		if perr != nil || y != x || math.IsInf(x, 0) || math.IsNaN(x) {
+			t.Fatalf("%q: %g, strconv says %g, %v", s, x, y, perr)
+		}
+	})
 }
