@@ -1,0 +1,134 @@
+package main
+
+import (
+	"fmt"
+	"io"
+
+	"baleassay/data/desk"
+)
+
+// exportFormats are the sub-modes of bale export that write files for
+// other tools (spreadsheets, GIS) rather than signed bundles.
+var exportFormats = map[string]func(args []string, stdout io.Writer) error{
+	"csv":     runExportCSV,
+	"geojson": runExportGeoJSON,
+}
+
+const exportFormatsUsage = "csv bales|pulls|sites FILE [--from DATE] [--to DATE] [--line NAME|FILE] [--force] | " +
+	"geojson sites FILE [--within LAT LON KM [--area]] [--from DATE] [--to DATE] [--force]"
+
+func runExportCSV(args []string, stdout io.Writer) error {
+	fs := newFlags("export csv")
+	dir := storeFlag(fs)
+	from := fs.String("from", "", "first day received (2026-03-02)")
+	to := fs.String("to", "", "last day received, inclusive")
+	line := fs.String("line", "", "line profile of the _point yield columns (default: the built-in line)")
+	force := fs.Bool("force", false, "replace FILE if it is there")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 2 {
+		return usagef("give a table (bales, pulls or sites) and a FILE")
+	}
+	t, err := desk.ParseTable(pos[0])
+	if err != nil {
+		return err
+	}
+	r, err := desk.ParseDateRange(*from, *to)
+	if err != nil {
+		return err
+	}
+	if err := refuseExisting(pos[1], *force); err != nil {
+		return err
+	}
+	d, err := openDesk(*dir, false)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	var rows int
+	err = desk.WriteFile(pos[1], *force, func(w io.Writer) error {
+		rows, err = d.ExportCSV(w, t, desk.ExportOptions{Range: r, Line: *line})
+		return err
+	})
+	if err != nil {
+		return existsHint(err)
+	}
+	return wrote(stdout, pos[1], fmt.Sprintf("%s table, %s", t, desk.Plural(rows, "row", "rows")))
+}
+
+func runExportGeoJSON(args []string, stdout io.Writer) error {
+	fs := newFlags("export geojson")
+	dir := storeFlag(fs)
+	within := fs.Bool("within", false, "only the sites within KM of LAT LON (three numbers)")
+	area := fs.Bool("area", false, "with --within: add the region's circle as a polygon feature")
+	from := fs.String("from", "", "first day received (2026-03-02): bale counts and verdicts of that range")
+	to := fs.String("to", "", "last day received, inclusive")
+	force := fs.Bool("force", false, "replace FILE if it is there")
+	pos, err := parseWithNumbers(fs, args)
+	if err != nil {
+		return err
+	}
+	opt := desk.GeoJSONOptions{Area: *area}
+	switch {
+	case *within:
+		q, rest, err := withinArgs(pos)
+		if err != nil {
+			return err
+		}
+		opt.Within, pos = q, rest
+		if len(pos) != 2 {
+			return usagef("give sites, a FILE and --within LAT LON KM")
+		}
+	case *area:
+		return usagef("--area needs --within LAT LON KM")
+	case len(pos) != 2:
+		return usagef("give sites and a FILE")
+	}
+	if pos[0] != "sites" {
+		return usagef("only sites can be written as GeoJSON (got %q)", pos[0])
+	}
+	if opt.Range, err = desk.ParseDateRange(*from, *to); err != nil {
+		return err
+	}
+	if err := refuseExisting(pos[1], *force); err != nil {
+		return err
+	}
+	d, err := openDesk(*dir, false)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	var n int
+	err = desk.WriteFile(pos[1], *force, func(w io.Writer) error {
+		n, err = d.ExportGeoJSON(w, opt)
+		return err
+	})
+	if err != nil {
+		return existsHint(err)
+	}
+	return wrote(stdout, pos[1], desk.Plural(n, "site", "sites"))
+}
+
+// withinArgs takes the three numbers of --within LAT LON KM out of the
+// positional arguments (they may come anywhere; the others are not
+// numbers) and returns the region and the rest.
+func withinArgs(pos []string) (*desk.Query, []string, error) {
+	var nums, rest []string
+	for _, a := range pos {
+		if recIsNumber(a) {
+			nums = append(nums, a)
+		} else {
+			rest = append(rest, a)
+		}
+	}
+	if len(nums) != 3 {
+		return nil, nil, usagef("--within takes three numbers: LAT LON KM")
+	}
+	v, err := recFloats([]string{"LAT", "LON", "KM"}, nums)
+	if err != nil {
+		return nil, nil, err
+	}
+	return &desk.Query{Kind: desk.QueryWithin, Lat: v[0], Lon: v[1], Km: v[2]}, rest, nil
+}
