@@ -35,7 +35,8 @@ var allowed = map[string][]string{
 	"data/internal/testkit": {"data/record"},
 	"data/desk":             {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo"},
 	"data/publish":          {"assess", "yield", "data/record", "data/store"},
-	"cmd/bale":              {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "data/publish"},
+	"data/report":           {"data/desk", "assess", "yield", "data/record", "data/geo"},
+	"cmd/bale":              {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "data/publish", "data/report"},
 	"ui/...":                {"data/desk", "assess", "yield", "data/record", "data/geo", "ui/...", gio},
 	"cmd/baleassay":         {"ui/...", "data/desk", gio},
 }
