@@ -6,6 +6,9 @@ set -euo pipefail
 # python3-cbor2: independent CBOR decoder for the sync-file interop test.
 packages=(python3 python3-cbor2)
 
+# Chromium: the headless browser the HTML report test renders with.
+packages+=(chromium)
+
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
@@ -22,5 +25,5 @@ else
   exit 1
 fi
 echo "baleassay: installing ${missing[*]}" >&2
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" update -q
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" install -y -q "${missing[@]}"
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 update -q
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 install -y -q "${missing[@]}"
