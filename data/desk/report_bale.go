@@ -33,11 +33,14 @@ type BaleReport struct {
 	Limiting []assess.LimitReport
 	Yield    YieldRun
 	Cautions []Caution // the bale caution, then the yield's
+	// CautionTexts are the cautions as they apply (the hot-glycol one
+	// names the glycol charged).
+	CautionTexts []string
 }
 
 // ReportBale gathers a stored bale's report: AuditBale and YieldBale on
-// the same pulls, cancellable through ctx (the draws), with progress (may
-// be nil).
+// the same pulls, with the ranking of what drives the spread, cancellable
+// through ctx (the draws), with progress (may be nil).
 func (d *Desk) ReportBale(ctx context.Context, text string, opt BaleReportOptions, progress func(Progress)) (BaleReport, error) {
 	a, err := d.AuditBale(text, opt.Audit)
 	if err != nil {
@@ -47,7 +50,9 @@ func (d *Desk) ReportBale(ctx context.Context, text string, opt BaleReportOption
 	if err != nil {
 		return BaleReport{}, err
 	}
-	run, err := d.YieldPulls(ctx, a.Input.Pulls, a.Record.GrossKg, plan, opt.Yield, progress)
+	yo := opt.Yield
+	yo.Sensitivity = true
+	run, err := d.YieldPulls(ctx, a.Input.Pulls, a.Record.GrossKg, plan, yo, progress)
 	if err != nil {
 		return BaleReport{}, err
 	}
@@ -59,6 +64,9 @@ func (d *Desk) ReportBale(ctx context.Context, text string, opt BaleReportOption
 		rep.Site = site
 	}
 	rep.Limiting = limiting(a.Report.Spec)
+	for _, c := range rep.Cautions {
+		rep.CautionTexts = append(rep.CautionTexts, run.CautionText(c))
+	}
 	return rep, nil
 }
 

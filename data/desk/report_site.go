@@ -69,8 +69,9 @@ type SiteReport struct {
 	PerTonne  PerTonne
 	Reference SpecMin
 	// LabelClash lists bales whose pulls share a label (two devices).
-	LabelClash []BalePoint
-	Cautions   []Caution
+	LabelClash   []BalePoint
+	Cautions     []Caution
+	CautionTexts []string // as they apply to the report's plan
 }
 
 // ReportSites gathers a site or region report for bales received in r.
@@ -142,6 +143,9 @@ func (d *Desk) ReportSites(scope SiteScope, r DateRange, opt SiteReportOptions) 
 	rep.PerTonne.Line, rep.PerTonne.Glycol, rep.PerTonne.GlycolRatio, rep.PerTonne.Molar = plan.Line.Line().Name, g.Glycol, g.Ratio, g.Molar
 	rep.Reference = d.referenceMin(rep.Bales)
 	rep.Others = others(all, in, rep.Scope.Within)
+	for _, c := range rep.Cautions {
+		rep.CautionTexts = append(rep.CautionTexts, YieldRun{Plan: plan}.CautionText(c))
+	}
 	return rep, nil
 }
 

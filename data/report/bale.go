@@ -32,7 +32,7 @@ func WriteBale(w io.Writer, r desk.BaleReport) error {
 	baleComposition(p, r.Audit)
 	baleYield(p, r)
 
-	return p.write(w, r.Generated, r.Demo, r.Cautions)
+	return p.write(w, r.Generated, r.Demo, r.CautionTexts)
 }
 
 func baleFacts(p *page, r desk.BaleReport) {
@@ -80,11 +80,9 @@ func baleVerdict(p *page, r desk.BaleReport) {
 	}
 	grade := ""
 	if a.Spec.Grade != "" {
-		sure := "sure"
-		if !a.Spec.GradeSure {
-			sure = "not yet sure: the interval spans a grade boundary"
-		}
-		grade = fmt.Sprintf("; grade <strong>%s</strong> (%s)", esc(a.Spec.Grade), sure)
+		grade = fmt.Sprintf("; grade <strong>%s</strong> (%s)", esc(a.Spec.Grade), gradeState(a.Spec.GradeState))
+	} else if a.Spec.GradeState == "withheld" {
+		grade = "; no grade (a failing bale gets none)"
 	}
 	p.h(`<p class="verdict">%s against spec <strong>%s</strong>%s%s</p>`, badge(a.Spec.Verdict), esc(a.Spec.Name), grade, p.notes.ref(mVerdict))
 	if a.Hazards.Found {
@@ -96,33 +94,67 @@ func baleVerdict(p *page, r desk.BaleReport) {
 	} else {
 		p.h("<h3>Limiting items</h3><ul>")
 		for _, l := range r.Limiting {
-			more := ""
-			if l.Verdict == "undecided" {
-				if l.MorePulls != nil {
-					more = fmt.Sprintf("; about %s more to decide at the current spread", esc(desk.Plural(*l.MorePulls, "pull", "pulls")))
-				} else {
-					more = "; more pulls cannot be counted from this spread"
-				}
-			}
 			iv := ""
 			if l.Low != nil && l.High != nil {
 				iv = " (" + pctRange(*l.Low, *l.High) + ")"
 			}
-			p.h("<li>%s <strong>%s</strong>: estimate %s%s against %s%s%s</li>", badge(l.Verdict), esc(l.Item), pct(l.Fraction), iv, boundText(l), more, noteText(l.Note))
+			p.h("<li>%s <strong>%s</strong>: estimate %s%s against %s%s%s</li>", badge(l.Verdict), esc(l.Item), pct(l.Fraction), iv, boundText(l), needText(l), noteText(l.Note))
 		}
 		p.h("</ul>")
 	}
-	if adv := a.Advice; adv.Why != "" {
-		need := ""
-		if adv.PullsNeeded != nil {
-			need = fmt.Sprintf(" %s in all (%d taken) for ±%s relative precision on %s.", esc(desk.Plural(*adv.PullsNeeded, "pull", "pulls")), a.Pulls, level(adv.RelPrecision), esc(adv.Item))
-		}
-		p.h("<p><strong>Sample:</strong>%s %s.%s</p>", need, esc(capital(strings.TrimSuffix(adv.Why, "."))), p.notes.ref(mSampleSize))
-	}
+	adviceText(p, a)
 	id := p.id("limits")
 	p.figure("limits", limitChart(id, a.Spec.Limits, a.Confidence),
 		fmt.Sprintf("Each limit of spec %s on its own scale: the band is the %s interval, the ring the estimate, the dashed line the limit.", esc(a.Spec.Name), level(a.Confidence)))
 	p.h("</section>\n")
+}
+
+// gradeState says how sure a grade is.
+func gradeState(s string) string {
+	switch s {
+	case "sure":
+		return "sure: the whole interval lies in the band"
+	case "spans":
+		return "not yet sure: the interval reaches into another band"
+	case "no_interval":
+		return "from the estimate only: one pull gives no interval"
+	}
+	return esc(s)
+}
+
+// needText says what would decide an undecided limit.
+func needText(l assess.LimitReport) string {
+	if l.Verdict != "undecided" {
+		return ""
+	}
+	switch l.Need {
+	case "pulls":
+		if l.MorePulls != nil {
+			return fmt.Sprintf("; about %s more to decide at the current spread", esc(desk.Plural(*l.MorePulls, "pull", "pulls")))
+		}
+	case "whole_bale":
+		return "; only a sort of the whole bale can decide it"
+	case "beyond_reach":
+		return "; more pulls cannot decide it in reason"
+	}
+	return "; how many more pulls decide it cannot be said from this spread"
+}
+
+// adviceText writes the advice on the sample.
+func adviceText(p *page, a assess.Report) {
+	adv := a.Advice
+	if adv.Why == "" {
+		return
+	}
+	var b strings.Builder
+	if adv.MorePulls != nil && *adv.MorePulls > 0 && adv.PullsNeeded != nil {
+		fmt.Fprintf(&b, " About %s more (%d in all, %d taken).", esc(desk.Plural(*adv.MorePulls, "pull", "pulls")), *adv.PullsNeeded, a.Pulls)
+	}
+	if adv.SortWholeBale {
+		b.WriteString(" Only a sort of the whole bale decides.")
+	}
+	fmt.Fprintf(&b, " %s.", esc(capital(strings.TrimSuffix(adv.Why, "."))))
+	p.h("<p><strong>Sample:</strong>%s%s</p>", b.String(), p.notes.ref(mSampleSize))
 }
 
 func noteText(s string) string {
@@ -146,8 +178,16 @@ func baleComposition(p *page, au desk.Audit) {
 	var pet, other []bar
 	var none []string
 	for _, c := range a.Categories {
+		if c.NoneFound != nil {
+			none = append(none, "<li>"+esc(shortName(c.Name))+": "+esc(c.NoneFound.Text)+"</li>")
+		}
+		if c.Kg == 0 && c.NoneFound == nil {
+			none = append(none, "<li>"+esc(shortName(c.Name))+": none found</li>")
+		}
 		if c.Kg == 0 {
-			none = append(none, noneFound(c))
+			if cat, ok := assess.LookupCategory(c.Key); ok && !cat.IsTargetPET() && c.NoneFound != nil {
+				other = append(other, shareBar(shortName(c.Name), c))
+			}
 			continue
 		}
 		label := shortName(c.Name)
@@ -165,20 +205,33 @@ func baleComposition(p *page, au desk.Audit) {
 		p.figure("target-pet", barChart{id: p.id("target-pet"), title: "Target PET by kind", desc: "Mass share of the bale of each kind of target PET found, with intervals.",
 			bars: pet, tick: tickPct, axis: "share of the bale's mass, %"}.svg(), "Target PET categories found, with resin code in brackets.")
 	}
+	absent := ""
+	for _, c := range a.Categories {
+		if c.Kg == 0 && c.NoneFound != nil {
+			absent = " A row without a bar was found in no pull: its whisker runs from 0 to the upper bound." + p.notes.ref(mNoneFound)
+			break
+		}
+	}
 	if len(other) > 0 {
-		p.figure("contaminants", barChart{id: p.id("contaminants"), title: "Everything else found", desc: "Mass share of the bale of each non-target category found, with intervals.",
+		p.figure("contaminants", barChart{id: p.id("contaminants"), title: "Everything else", desc: "Mass share of the bale of each category that is not target PET, with intervals; for one found in no pull, its upper bound.",
 			bars: other, tick: tickPct, axis: "share of the bale's mass, % (scale fitted to these items)"}.svg(),
-			"Other categories found in the pulls, on a scale of their own.")
+			"Categories other than target PET, on a scale of their own."+absent)
 	}
 	if len(none) > 0 {
-		p.h("<p><strong>Found in no pull:</strong> %s.%s</p>", strings.Join(none, "; "), p.notes.ref(mNoneFound))
+		p.h("<p><strong>Found in no pull</strong> (bounded, not proven absent):%s</p><ul>%s</ul>", p.notes.ref(mNoneFound), strings.Join(none, ""))
 	}
 	p.h("</section>\n")
 }
 
-// shareBar is a share with its interval as a bar.
+// shareBar is a share with its interval as a bar; a category found in no
+// pull shows its upper bound.
 func shareBar(label string, s assess.ShareReport) bar {
 	b := bar{label: label, value: s.Fraction, text: pct(s.Fraction)}
+	if s.NoneFound != nil {
+		b.lo, b.hi, b.interval = 0, s.NoneFound.Upper, true
+		b.text = "none found · ≤ " + pctUp(s.NoneFound.Upper)
+		return b
+	}
 	if s.Low != nil && s.High != nil {
 		b.lo, b.hi, b.interval = *s.Low, *s.High, true
 		b.text += " (" + pctRange(*s.Low, *s.High) + ")"
@@ -189,8 +242,3 @@ func shareBar(label string, s assess.ShareReport) bar {
 }
 
 func tickPct(v float64) string { return num(100*v, 3) }
-
-// noneFound writes a category that no pull held.
-func noneFound(c assess.ShareReport) string {
-	return esc(shortName(c.Name))
-}

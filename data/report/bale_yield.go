@@ -14,7 +14,13 @@ func baleYield(p *page, r desk.BaleReport) {
 	run := r.Yield
 	rep, mc, gly := run.Report, run.MC, run.Report.Glycolysate
 	p.h(`<section id="yield"><h2>What the line and the reactor make of it</h2>`)
-	how := "audit resampled and line efficiencies drawn from their ranges"
+	how := "composition drawn from the audit's estimator, line efficiencies from their ranges"
+	switch mc.Spread {
+	case yield.SpreadNone:
+		how = "one pull shows no spread: the composition is held at its estimate and the P10–P90 carry only the line's and the recipe's ranges"
+	case yield.SpreadKnown:
+		how = "the whole bale was sorted: the composition is known and the P10–P90 carry only the line's and the recipe's ranges"
+	}
 	p.h("<p>Line <strong>%s</strong>; %d draws, seed %d (%s).%s</p>", esc(run.Plan.Line.Line().Name), mc.Draws, mc.Seed, how, p.notes.refs(mLine, mBootstrap))
 	p.figure("flow", flowChart(p.id("flow"), run),
 		"Heights in proportion to mass. The flake includes the process water the dryer leaves in it; the glycolysate includes the glycol added.")
@@ -23,6 +29,10 @@ func baleYield(p *page, r desk.BaleReport) {
 		{"glycolysate, kg", gly.GlycolysateKg, mc.GlycolysateKg, 1},
 		{"hydroxyl value, mg KOH/g", gly.HydroxylValue, mc.HydroxylValue, 1},
 	}, mc.Draws), "The band runs from P10 to P90 of the draws, the tick is the median (P50), the ring the point estimate.")
+	if len(run.Drivers) > 0 {
+		p.figure("drivers", driverChart(p.id("drivers"), run.Drivers),
+			"Each input varied alone, the others held at their estimate or midpoint; its share of the flake's variance. Measure the top ones better first."+p.notes.ref(mSensitivity))
+	}
 	if len(rep.Checks) > 0 {
 		verdict := "pass"
 		if !run.FlakePass {
@@ -109,6 +119,32 @@ func glycolysis(p *page, g yield.Glycolysate, rc yield.Recipe) {
 		desc: fmt.Sprintf("Weight share of molecules with k terephthalate units, Flory distribution with p = %s.", num(g.Dist.P, 4)),
 		cols: cols, tick: func(v float64) string { return num(v, 1) }, axis: "weight %", xaxis: "terephthalate units per molecule, k (0 is free glycol)"}.svg(),
 		fmt.Sprintf("Weight %% by chain length (most-probable distribution, p = %s); %s of the product has %d or more units.", num(g.Dist.P, 4), pct(g.Dist.LongOligomerWt), yield.LongOligomerUnits))
+}
+
+// driverChart ranks what drives the spread of the flake: for the inputs
+// with the largest shares, the share of the flake's variance as a bar
+// with the input's name above it and its standard deviation beside it.
+func driverChart(id string, ds []yield.Driver) string {
+	const rh, top, shown = 34.0, 4.0, 6
+	ds = ds[:min(len(ds), shown)]
+	h := top + float64(len(ds))*rh + 40
+	s := newSVG(id, chartW, h, "What drives the spread of the flake",
+		fmt.Sprintf("The %d inputs with the largest share of the variance of the flake mass, each varied alone.", len(ds)))
+	x := func(v float64) float64 { return 20 + (plotX1-20)*math.Max(0, math.Min(v, 1)) }
+	for i, d := range ds {
+		y := top + float64(i)*rh
+		s.text(20, y+11, "start", "small", d.Name)
+		s.rect(20, y+15, math.Max(1, x(d.FlakeShare)-20), 12, "bar")
+		s.text(chartW-10, y+25, "end", "", fmt.Sprintf("%s · SD %s kg", pct(d.FlakeShare), num(d.FlakeSD, 2)))
+	}
+	yAxis := top + float64(len(ds))*rh + 2
+	s.line(20, yAxis, plotX1, yAxis, "axis")
+	for _, v := range []float64{0, 0.25, 0.5, 0.75, 1} {
+		s.line(x(v), yAxis, x(v), yAxis+4, "axis")
+		s.text(x(v), yAxis+16, "middle", "small", num(100*v, 0))
+	}
+	s.text((20+plotX1)/2, yAxis+30, "middle", "small mute", "share of the flake's variance, % (SD: the flake's standard deviation from this input alone)")
+	return s.String()
 }
 
 func received(ms int64) time.Time { return time.UnixMilli(ms).UTC() }

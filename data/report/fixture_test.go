@@ -104,6 +104,6 @@ func demoReports(t *testing.T) rendered {
 
 // The charts each report must hold (data-figure names).
 var (
-	baleCharts = []string{"limits", "groups", "target-pet", "contaminants", "flow", "spread", "chains"}
+	baleCharts = []string{"limits", "groups", "target-pet", "contaminants", "flow", "spread", "drivers", "chains"}
 	siteCharts = []string{"verdicts", "trend-pet", "trend-other_plastics", "trend-non_plastics", "trend-moisture_fines", "trend-hazards", "per-tonne", "map"}
 )

@@ -100,3 +100,17 @@ func tonnes(x float64) string {
 	}
 	return kg(x)
 }
+
+// pctUp writes an upper bound as a percentage with two significant
+// digits, rounded up so that the bound written is never below the bound
+// computed: 0.000852 → "0.086 %".
+func pctUp(x float64) string {
+	v := 100 * x
+	if !(v > 0) || math.IsInf(v, 0) {
+		return pct(x)
+	}
+	d := 1 - int(math.Floor(math.Log10(v))) // decimals for two significant digits
+	scale := math.Pow(10, float64(d))
+	up := math.Ceil(v*scale-1e-9) / scale
+	return fixed(up, max(0, d)) + nbsp + "%"
+}

@@ -20,6 +20,7 @@ const (
 	mPieces
 	mLine
 	mBootstrap
+	mSensitivity
 	mGlycolysis
 	mWelford
 	mPerTonne
@@ -45,8 +46,11 @@ var methodText = map[method]string{
 	mPieces:     "Piece-count shares: Wilson score interval (E. B. Wilson, J. Am. Stat. Assoc. 22 (1927) 209) and Clopper–Pearson exact interval (Biometrika 26 (1934) 404).",
 	mLine: "Wash line: a mass balance stage by stage (sorting, grinding, air classifying, sink–float by handbook densities, caustic wash, drying, screening) that closes to 1e-9; " +
 		"the line's efficiencies are the named profile's, the built-in ones illustrative (from memory or common practice): replace them with your own line's.",
-	mBootstrap: "P10–P90: a bootstrap of the pulls (B. Efron and R. J. Tibshirani, <i>An Introduction to the Bootstrap</i>, Chapman &amp; Hall 1993) with line efficiencies drawn from their ranges; " +
+	mBootstrap: "P10–P90 of the draws: the composition drawn from the audit's own estimator (Cochran's ratio estimate with its covariance and the finite-population correction, " +
+		"as a multivariate t on n − 1 degrees of freedom, so that the drawn target-PET share's P5–P95 is the audit's 90 % interval), line efficiencies drawn uniformly from their ranges; " +
 		"percentiles by definition 7 of R. J. Hyndman and Y. Fan, Am. Stat. 50 (1996) 361.",
+	mSensitivity: "What drives the spread: the draws repeated with one input varying at a time; for a model additive in its inputs, each input's share is its first-order variance V[E(Y|X<sub>i</sub>)] " +
+		"(A. Saltelli et al., <i>Global Sensitivity Analysis: The Primer</i>, Wiley 2008, ch. 1).",
 	mGlycolysis: "Glycolysis: hydroxyl value by conservation of OH groups through transesterification (56 106 mg KOH per equivalent); chain lengths by Flory's most-probable distribution " +
 		"(P. J. Flory, J. Am. Chem. Soc. 64 (1942) 2205) as applied to PET glycolysis by Kirshanov et al., Polymers 15 (2023) 3146. Measure the product's hydroxyl and acid values (ASTM D4274, ASTM D4662) before use.",
 	mWelford: "Across bales: each bale's shares by Cochran's ratio estimate, then mean and sample standard deviation by Welford's running update (B. P. Welford, Technometrics 4 (1962) 419).",

@@ -5,8 +5,6 @@ import (
 	"io"
 	"strings"
 	"time"
-
-	"baleassay/data/desk"
 )
 
 // CSP is the page's Content-Security-Policy: nothing may be fetched, no
@@ -39,7 +37,7 @@ func (p *page) figure(name, chart, caption string) {
 
 // write writes the document: head with the policy and the style, the
 // body, then the notes, the cautions and when it was made.
-func (p *page) write(w io.Writer, generated time.Time, demo bool, cautions []desk.Caution) error {
+func (p *page) write(w io.Writer, generated time.Time, demo bool, cautions []string) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, `<!DOCTYPE html>
 <html lang="en">
@@ -60,7 +58,7 @@ func (p *page) write(w io.Writer, generated time.Time, demo bool, cautions []des
 	if len(cautions) > 0 {
 		b.WriteString(`<section class="cautions" id="cautions"><h2>Cautions</h2><ul>`)
 		for _, c := range cautions {
-			fmt.Fprintf(&b, "<li>%s</li>", esc(c.Text()))
+			fmt.Fprintf(&b, "<li>%s</li>", esc(c))
 		}
 		b.WriteString(`</ul><p>These figures do not make a yard, a wash line or a reactor safe: local codes, the site's safety rules and licensed practice come first.</p></section>` + "\n")
 	}

@@ -211,4 +211,11 @@ func TestReportEscapesText(t *testing.T) {
 			t.Errorf("%s report lost the site's name", name)
 		}
 	}
+	// What no pull held is bounded, in the chart and in the list, with
+	// the audit's own words.
+	glass, _ := br.Audit.Result.Category("glass")
+	if !glass.Absent() || !bytes.Contains(b.Bytes(), []byte("none found · ≤ "+pctUp(glass.None.Upper))) ||
+		!bytes.Contains(b.Bytes(), []byte("Glass: "+glass.None.Text())) {
+		t.Errorf("the bound of glass (found in no pull) is missing: %s", glass.None.Text())
+	}
 }

@@ -39,7 +39,7 @@ func WriteSites(w io.Writer, r desk.SiteReport) error {
 	siteTable(p, r)
 	p.h("</section>\n")
 	flagged(p, r)
-	return p.write(w, r.Generated, r.Demo, r.Cautions)
+	return p.write(w, r.Generated, r.Demo, r.CautionTexts)
 }
 
 func rangeText(r desk.DateRange) string {
