@@ -105,6 +105,6 @@ func (p *progress) show(e desk.Progress) {
 		return
 	}
 	if e.Step == desk.StepApplying && (p.files > 1 || e.Events >= 10_000) {
-		fmt.Fprintf(p.w, "import: file %d of %d: %s: checking and applying %d events\n", e.Done+1, e.Of, e.File, e.Events)
+		fmt.Fprintf(p.w, "import: file %d of %d: %s: checking and applying %s\n", e.Done+1, e.Of, e.File, desk.Plural(e.Events, "event", "events"))
 	}
 }

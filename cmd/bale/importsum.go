@@ -24,16 +24,18 @@ func countBundles(pos []string) (int, error) {
 	return len(files), nil
 }
 
-// printImport prints, after the run: every refused file with its reason,
-// every flagged file (all files with every), then one summary per device
-// and the totals.
+// printImport prints, after the run: every accepted file with a flag
+// (every file with every), one summary per device, the totals, and every
+// refused file with its reason.
 func printImport(w io.Writer, run desk.ImportRun, every bool) {
+	listed := false
 	for _, f := range run.Report.Files {
-		if every || f.Err != nil || len(f.Flags) > 0 {
+		if every || (f.Err == nil && len(f.Flags) > 0) {
 			fmt.Fprintln(w, f.SummaryLine())
+			listed = true
 		}
 	}
-	if len(run.Devices) > 0 {
+	if listed && len(run.Devices) > 0 {
 		fmt.Fprintln(w)
 	}
 	for _, dv := range run.Devices {
