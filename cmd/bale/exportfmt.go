@@ -39,23 +39,10 @@ func runExportCSV(args []string, stdout io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if err := refuseExisting(pos[1], *force); err != nil {
-		return err
-	}
-	d, err := openDesk(*dir, false)
-	if err != nil {
-		return err
-	}
-	defer d.Close()
-	var rows int
-	err = desk.WriteFile(pos[1], *force, func(w io.Writer) error {
-		rows, err = d.ExportCSV(w, t, desk.ExportOptions{Range: r, Line: *line})
-		return err
+	return writeOut(*dir, pos[1], *force, stdout, func(d *desk.Desk, w io.Writer) (string, error) {
+		rows, err := d.ExportCSV(w, t, desk.ExportOptions{Range: r, Line: *line})
+		return fmt.Sprintf("%s table, %s", t, desk.Plural(rows, "row", "rows")), err
 	})
-	if err != nil {
-		return existsHint(err)
-	}
-	return wrote(stdout, pos[1], fmt.Sprintf("%s table, %s", t, desk.Plural(rows, "row", "rows")))
 }
 
 func runExportGeoJSON(args []string, stdout io.Writer) error {
@@ -92,23 +79,10 @@ func runExportGeoJSON(args []string, stdout io.Writer) error {
 	if opt.Range, err = desk.ParseDateRange(*from, *to); err != nil {
 		return err
 	}
-	if err := refuseExisting(pos[1], *force); err != nil {
-		return err
-	}
-	d, err := openDesk(*dir, false)
-	if err != nil {
-		return err
-	}
-	defer d.Close()
-	var n int
-	err = desk.WriteFile(pos[1], *force, func(w io.Writer) error {
-		n, err = d.ExportGeoJSON(w, opt)
-		return err
+	return writeOut(*dir, pos[1], *force, stdout, func(d *desk.Desk, w io.Writer) (string, error) {
+		n, err := d.ExportGeoJSON(w, opt)
+		return desk.Plural(n, "site", "sites"), err
 	})
-	if err != nil {
-		return existsHint(err)
-	}
-	return wrote(stdout, pos[1], desk.Plural(n, "site", "sites"))
 }
 
 // withinArgs takes the three numbers of --within LAT LON KM out of the

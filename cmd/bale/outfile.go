@@ -35,3 +35,27 @@ func wrote(w io.Writer, path, what string) error {
 	_, err = fmt.Fprintf(w, "wrote %s (%s, %s bytes)\n", path, what, fmt.Sprint(fi.Size()))
 	return err
 }
+
+// writeOut opens the store dir names and writes path through write, never
+// over an existing file unless force (refused before any work), then
+// says what was written; write returns that in a few words.
+func writeOut(dir, path string, force bool, stdout io.Writer, write func(d *desk.Desk, w io.Writer) (string, error)) error {
+	if err := refuseExisting(path, force); err != nil {
+		return err
+	}
+	d, err := openDesk(dir, false)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	var what string
+	err = desk.WriteFile(path, force, func(w io.Writer) error {
+		var err error
+		what, err = write(d, w)
+		return err
+	})
+	if err != nil {
+		return existsHint(err)
+	}
+	return wrote(stdout, path, what)
+}

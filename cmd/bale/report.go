@@ -32,11 +32,13 @@ func runReportBale(args []string, stdout io.Writer) error {
 	flakeSpec := fs.String("flake-spec", "", "flake spec JSON file, or 'none' (default: the built-in one)")
 	draws := fs.Int("draws", yield.DefaultDraws, "Monte Carlo draws")
 	seed := fs.Uint64("seed", 1, "random seed; the same seed gives the same numbers")
-	pos, d, err := openForArgs(fs, dir, args, 1, "give one bale (id, prefix, suffix or tag)")
+	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
 	}
-	defer d.Close()
+	if len(pos) != 1 {
+		return usagef("give one bale (id, prefix, suffix or tag)")
+	}
 	if *out == "" {
 		return usagef("give --html FILE")
 	}
@@ -45,18 +47,13 @@ func runReportBale(args []string, stdout io.Writer) error {
 	}
 	opt := desk.BaleReportOptions{Audit: desk.AuditOptions{Spec: *spec},
 		Line: *line, FlakeSpec: *flakeSpec, Yield: desk.YieldOptions{MC: yield.MCOptions{Draws: *draws, Seed: *seed}}}
-	// Refuse an existing file before the work.
-	if err := refuseExisting(*out, *force); err != nil {
-		return err
-	}
-	rep, err := d.ReportBale(context.Background(), pos[0], opt, nil)
-	if err != nil {
-		return err
-	}
-	if err := desk.WriteFile(*out, *force, func(w io.Writer) error { return report.WriteBale(w, rep) }); err != nil {
-		return existsHint(err)
-	}
-	return wrote(stdout, *out, "bale "+rep.Record.Tag)
+	return writeOut(*dir, *out, *force, stdout, func(d *desk.Desk, w io.Writer) (string, error) {
+		rep, err := d.ReportBale(context.Background(), pos[0], opt, nil)
+		if err != nil {
+			return "", err
+		}
+		return "bale " + rep.Record.Tag, report.WriteBale(w, rep)
+	})
 }
 
 func runReportSite(args []string, stdout io.Writer) error {
@@ -96,20 +93,11 @@ func runReportSite(args []string, stdout io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if err := refuseExisting(*out, *force); err != nil {
-		return err
-	}
-	d, err := openDesk(*dir, false)
-	if err != nil {
-		return err
-	}
-	defer d.Close()
-	rep, err := d.ReportSites(scope, r, desk.SiteReportOptions{Line: *line, FlakeSpec: *flakeSpec})
-	if err != nil {
-		return err
-	}
-	if err := desk.WriteFile(*out, *force, func(w io.Writer) error { return report.WriteSites(w, rep) }); err != nil {
-		return existsHint(err)
-	}
-	return wrote(stdout, *out, fmt.Sprintf("%s, %s", desk.Plural(len(rep.Sites), "site", "sites"), desk.Plural(rep.All.Bales, "bale", "bales")))
+	return writeOut(*dir, *out, *force, stdout, func(d *desk.Desk, w io.Writer) (string, error) {
+		rep, err := d.ReportSites(scope, r, desk.SiteReportOptions{Line: *line, FlakeSpec: *flakeSpec})
+		if err != nil {
+			return "", err
+		}
+		return fmt.Sprintf("%s, %s", desk.Plural(len(rep.Sites), "site", "sites"), desk.Plural(rep.All.Bales, "bale", "bales")), report.WriteSites(w, rep)
+	})
 }

@@ -55,46 +55,29 @@ func demoReports(t *testing.T) rendered {
 		}
 		demo.bale = b.Bytes()
 		q := desk.Query{Kind: desk.QueryWithin, Lat: 45, Lon: 4.7, Km: 25}
-		rr, err := d.ReportSites(desk.SiteScope{Within: &q}, desk.DateRange{}, desk.SiteReportOptions{})
-		if err != nil {
-			demo.err = err
-			return
-		}
-		var r bytes.Buffer
-		if demo.err = WriteSites(&r, rr); demo.err != nil {
-			return
-		}
-		demo.region = r.Bytes()
-		sr, err := d.ReportSites(desk.SiteScope{Site: "Kettleby Yard"}, desk.DateRange{}, desk.SiteReportOptions{})
-		if err != nil {
-			demo.err = err
-			return
-		}
-		var s bytes.Buffer
-		if demo.err = WriteSites(&s, sr); demo.err != nil {
-			return
-		}
-		demo.site = s.Bytes()
-		later, _ := desk.ParseDateRange("2030-01-01", "")
-		er, err := d.ReportSites(desk.SiteScope{Site: "Kettleby Yard"}, later, desk.SiteReportOptions{})
-		if err != nil {
-			demo.err = err
-			return
-		}
-		var e bytes.Buffer
-		if demo.err = WriteSites(&e, er); demo.err != nil {
-			return
-		}
-		demo.empty = e.Bytes()
 		far := desk.Query{Kind: desk.QueryWithin, Lat: -33.9, Lon: 18.4, Km: 10}
-		nr, err := d.ReportSites(desk.SiteScope{Within: &far}, desk.DateRange{}, desk.SiteReportOptions{})
-		if err != nil {
-			demo.err = err
-			return
+		later, _ := desk.ParseDateRange("2030-01-01", "")
+		for _, c := range []struct {
+			dst   *[]byte
+			scope desk.SiteScope
+			r     desk.DateRange
+		}{
+			{&demo.region, desk.SiteScope{Within: &q}, desk.DateRange{}},
+			{&demo.site, desk.SiteScope{Site: "Kettleby Yard"}, desk.DateRange{}},
+			{&demo.empty, desk.SiteScope{Site: "Kettleby Yard"}, later},
+			{&demo.nowhere, desk.SiteScope{Within: &far}, desk.DateRange{}},
+		} {
+			rep, err := d.ReportSites(c.scope, c.r, desk.SiteReportOptions{})
+			if err != nil {
+				demo.err = err
+				return
+			}
+			var buf bytes.Buffer
+			if demo.err = WriteSites(&buf, rep); demo.err != nil {
+				return
+			}
+			*c.dst = buf.Bytes()
 		}
-		var nw bytes.Buffer
-		demo.err = WriteSites(&nw, nr)
-		demo.nowhere = nw.Bytes()
 	})
 	if demo.err != nil {
 		t.Fatal(demo.err)

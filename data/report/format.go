@@ -5,6 +5,8 @@ import (
 	"strconv"
 	"strings"
 	"time"
+
+	"baleassay/data/desk"
 )
 
 // nbsp joins a number to its unit.
@@ -16,14 +18,7 @@ func num(x float64, digits int) string {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
 		return "–"
 	}
-	s := strconv.FormatFloat(x, 'f', digits, 64)
-	if strings.Contains(s, ".") {
-		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-	}
-	if s == "-0" {
-		s = "0"
-	}
-	return s
+	return desk.Num(x, digits)
 }
 
 // fixed writes x with exactly digits decimals ("–" for NaN), for columns.
