@@ -211,6 +211,27 @@ func TestReportEscapesText(t *testing.T) {
 			t.Errorf("%s report lost the site's name", name)
 		}
 	}
+	// One pull: no interval, no spread of the audit; the page says so and
+	// draws no NaN.
+	one, err := d.AddBale(desk.BaleInput{Site: site.String(), BaleRecord: record.BaleRecord{GrossKg: 480, Tag: "ONE"}}, desk.SaveOptions{Confirm: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, _, err := d.AddPulls(one.String(), pulls[1:], desk.SaveOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	or, err := d.ReportBale(context.Background(), one.String(), desk.BaleReportOptions{}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ob bytes.Buffer
+	if err := WriteBale(&ob, or); err != nil {
+		t.Fatal(err)
+	}
+	if err := selfContained(ob.Bytes()); err != nil || bytes.Contains(ob.Bytes(), []byte("NaN")) ||
+		!bytes.Contains(ob.Bytes(), []byte("one pull shows no spread")) || !bytes.Contains(ob.Bytes(), []byte("(no interval)")) {
+		t.Errorf("one-pull bale report: %v", err)
+	}
 	// What no pull held is bounded, in the chart and in the list, with
 	// the audit's own words.
 	glass, _ := br.Audit.Result.Category("glass")

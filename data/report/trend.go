@@ -65,14 +65,19 @@ func (c trendChart) svg() string {
 			s.text(x(b.Start)+2, bottom+28, "start", "small mute", fmt.Sprintf("n=%d", c.stat(b).N))
 		}
 	}
-	for _, p := range c.bales {
-		if p.Audit.State == desk.AuditDone && !p.Received().Before(t0) && p.Received().Before(t1) {
-			s.circle(x(p.Received()), y(c.share(p)), 2.2, "pt")
+	dots := "dots: single bales"
+	if audited(c.bales) <= MaxDots {
+		for _, p := range c.bales {
+			if p.Audit.State == desk.AuditDone && !p.Received().Before(t0) && p.Received().Before(t1) {
+				s.circle(x(p.Received()), y(c.share(p)), 2.2, "pt")
+			}
 		}
+	} else {
+		dots = fmt.Sprintf("single bales not drawn above %d", MaxDots)
 	}
 	if c.ref != nil {
 		s.line(left, y(c.ref.at), right, y(c.ref.at), "limit")
-		s.text(right, y(c.ref.at)-5, "end", "small limit-t", c.ref.label)
+		s.text(right, y(c.ref.at)-5, "end", "small limit-t halo", c.ref.label)
 	}
 	var d strings.Builder
 	pen := false
@@ -103,7 +108,7 @@ func (c trendChart) svg() string {
 		s.text(mx, y(st.Mean)-8, "middle", "small bold halo", fixed(100*st.Mean, pctDigits(100*st.Mean)))
 	}
 	s.text((left+right)/2, h-6, "middle", "small mute",
-		fmt.Sprintf("%s received (UTC); squares: mean of the %s, dots: single bales", capital(c.trend.Unit.String()), c.trend.Unit))
+		fmt.Sprintf("%s received (UTC); squares: mean of the %s, %s", capital(c.trend.Unit.String()), c.trend.Unit, dots))
 	return s.String()
 }
 
@@ -113,4 +118,18 @@ func capital(s string) string {
 		return s
 	}
 	return string(s[0]-'a'+'A') + s[1:]
+}
+
+// MaxDots is the most bales a trend draws one by one; more would make the
+// page heavy without showing more (the means and counts still show).
+const MaxDots = 2000
+
+func audited(ps []desk.BalePoint) int {
+	n := 0
+	for _, p := range ps {
+		if p.Audit.State == desk.AuditDone {
+			n++
+		}
+	}
+	return n
 }
