@@ -418,3 +418,7 @@ func (v *variances) variances() []float64 {
 	}
 	return out
 }
+
+// IsStreamName reports whether s can name a reject stream: lower-case
+// letters, digits and _, starting with a letter, at most 64 bytes.
+func IsStreamName(s string) bool { return len(s) <= 64 && streamName.MatchString(s) }
