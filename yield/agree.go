@@ -44,10 +44,12 @@ func (v CoverageVerdict) String() string {
 	return fmt.Sprintf("CoverageVerdict(%d)", uint8(v))
 }
 
-// Pair is one predicted quantity and what was measured.
+// Pair is one predicted quantity and what was measured, with the
+// measurement's own standard deviation (0 when not stated).
 type Pair struct {
 	Predicted Summary
 	Measured  float64
+	MeasureSD float64
 }
 
 // Agreement is how predictions of one quantity compare with what was
@@ -69,6 +71,14 @@ type Agreement struct {
 	// Clopper–Pearson interval at AgreementLevel.
 	Coverage, CoverageLow, CoverageHigh float64
 	Verdict                             CoverageVerdict
+	// InsideWithError counts measurements within the P10–P90 widened by
+	// the measurement's own error: each side's distance d from the mean
+	// becomes √(d² + (z₀.₉·s)²), z₀.₉ = 1.2816 the normal 90 % quantile
+	// and s the measurement's SD (the two errors added as independent and
+	// roughly normal). It asks whether the prediction's spread is honest
+	// for what a scale or a titration can show; VerdictWithError judges it.
+	InsideWithError  int
+	VerdictWithError CoverageVerdict
 }
 
 // Agree compares predictions with measurements: the bias (mean of
@@ -100,6 +110,12 @@ func Agree(pairs []Pair) Agreement {
 		default:
 			a.Inside++
 		}
+		e := z90 * math.Max(0, p.MeasureSD)
+		lo := pm - math.Hypot(pm-p.Predicted.P10, e)
+		hi := pm + math.Hypot(p.Predicted.P90-pm, e)
+		if p.Measured >= lo && p.Measured <= hi {
+			a.InsideWithError++
+		}
 	}
 	a.Bias, a.SD = meanSD(d)
 	a.BiasRel, a.SDRel = meanSD(rel)
@@ -114,17 +130,26 @@ func Agree(pairs []Pair) Agreement {
 	}
 	iv := assess.ClopperPearson(a.Inside, a.N, AgreementLevel)
 	a.CoverageLow, a.CoverageHigh = iv.Low, iv.High
-	switch {
-	case a.N < MinCoverageN:
-		a.Verdict = CoverageTooFew
-	case NominalCoverage < iv.Low:
-		a.Verdict = CoverageTooWide
-	case NominalCoverage > iv.High:
-		a.Verdict = CoverageTooNarrow
-	default:
-		a.Verdict = CoverageAsStated
-	}
+	a.Verdict = judgeCoverage(a.Inside, a.N)
+	a.VerdictWithError = judgeCoverage(a.InsideWithError, a.N)
 	return a
+}
+
+// z90 is the standard normal 0.9 quantile, the distance of a normal
+// P90 from the mean in SDs (Abramowitz & Stegun, table 26.1: 1.2816).
+const z90 = 1.2815515655446004
+
+func judgeCoverage(inside, n int) CoverageVerdict {
+	iv := assess.ClopperPearson(inside, n, AgreementLevel)
+	switch {
+	case n < MinCoverageN:
+		return CoverageTooFew
+	case NominalCoverage < iv.Low:
+		return CoverageTooWide
+	case NominalCoverage > iv.High:
+		return CoverageTooNarrow
+	}
+	return CoverageAsStated
 }
 
 // meanSD is the mean and the sample standard deviation (n − 1); NaN

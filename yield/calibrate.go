@@ -42,6 +42,27 @@ type CalibrateOptions struct {
 	// MoistureSD is the standard deviation of a moisture reading in
 	// percentage points; 0 means DefaultMoistureSD.
 	MoistureSD float64
+	// HydroxylSD and AcidSD are the standard deviations of the
+	// laboratory's hydroxyl and acid values, mg KOH/g (0: not stated).
+	// They do not calibrate the line; they widen the coverage check of
+	// those quantities (Agreement.InsideWithError).
+	HydroxylSD, AcidSD float64
+}
+
+// MeasureSD is the standard deviation of a measured value y of a
+// quantity: a weighing's √((ScaleRelSD·y)² + ScaleAbsKg²), a moisture
+// reading's MoistureSD, the laboratory's stated SDs (defaults applied).
+func (o CalibrateOptions) MeasureSD(q Observable, y float64) float64 {
+	o = o.WithDefaults()
+	switch q.Kind {
+	case ObsMoisturePct:
+		return o.MoistureSD
+	case ObsHydroxylValue:
+		return o.HydroxylSD
+	case ObsAcidValue:
+		return o.AcidSD
+	}
+	return math.Hypot(o.ScaleRelSD*y, o.ScaleAbsKg)
 }
 
 // Default measurement errors: a weighing good to half a per cent with a
@@ -165,7 +186,7 @@ func Calibrate(l Line, ms []Measurement, opt CalibrateOptions) (LineCalibration,
 	if _, err := Compile(l); err != nil {
 		return LineCalibration{}, err
 	}
-	opt = opt.withDefaults()
+	opt = opt.WithDefaults()
 	if err := opt.check(); err != nil {
 		return LineCalibration{}, err
 	}
@@ -416,7 +437,8 @@ func plural(n int, one, many string) string {
 	return many
 }
 
-func (o CalibrateOptions) withDefaults() CalibrateOptions {
+// WithDefaults fills the zero measurement errors with the defaults.
+func (o CalibrateOptions) WithDefaults() CalibrateOptions {
 	if o.ScaleRelSD == 0 {
 		o.ScaleRelSD = DefaultScaleRelSD
 	}
@@ -435,6 +457,14 @@ func (o CalibrateOptions) check() error {
 		v     float64
 	}{{"scale_rel_sd", o.ScaleRelSD}, {"scale_abs_kg", o.ScaleAbsKg}, {"moisture_sd", o.MoistureSD}} {
 		if err := checkPositive("calibration", c.field, c.v); err != nil {
+			return err
+		}
+	}
+	for _, c := range []struct {
+		field string
+		v     float64
+	}{{"hydroxyl_sd", o.HydroxylSD}, {"acid_sd", o.AcidSD}} {
+		if err := checkNonNegative("calibration", c.field, c.v); err != nil {
 			return err
 		}
 	}
@@ -475,10 +505,7 @@ func (m Measurement) noise(i int, opt CalibrateOptions) (*mat.Cholesky, error) {
 			}
 			c.SetSym(a, b, v)
 		}
-		sd := opt.MoistureSD
-		if o.Kind != ObsMoisturePct {
-			sd = math.Hypot(opt.ScaleRelSD*y, opt.ScaleAbsKg)
-		}
+		sd := opt.MeasureSD(o, y)
 		c.SetSym(a, a, math.Max(0, c.At(a, a))+sd*sd)
 	}
 	var ch mat.Cholesky
