@@ -132,7 +132,7 @@ func PredictBatch(ctx context.Context, b Batch, plan Plan, opt MCOptions) (Batch
 		for j, sh := range est.Categories {
 			comp[j] += sh.Fraction * bb.BaleKg
 		}
-		sims[i] = newSimulator(bb.Pulls, bb.BaleKg, plan, MCOptions{Seed: opt.Seed + uint64(i)*0x9e3779b97f4a7c15})
+		sims[i] = newSimulator(est.Spread, bb.BaleKg, plan, MCOptions{Seed: opt.Seed + uint64(i)*0x9e3779b97f4a7c15})
 	}
 	k := len(b.Observe)
 	pred := BatchPrediction{Observe: b.Observe, Point: make([]float64, k), Full: make([]Summary, k), Draws: draws,
@@ -194,23 +194,12 @@ func PredictBatch(ctx context.Context, b Batch, plan Plan, opt MCOptions) (Batch
 	return pred, nil
 }
 
-// batchDraw fills s.comp with one bootstrap draw of the bale's
-// composition in kg, the composition step of draw.
+// batchDraw fills s.comp with one draw of the bale's composition in
+// kg from its audit's spread, the composition step of draw.
 func (s *simulator) batchDraw() {
-	clear(s.sum)
-	wsum := 0.0
-	nc := s.nCat
-	for range s.nPulls {
-		i := s.rng.IntN(s.nPulls)
-		row := s.kg[i*nc : (i+1)*nc]
-		for j, v := range row {
-			s.sum[j] += v
-		}
-		wsum += s.w[i]
-	}
-	scale := s.baleKg / wsum
-	for j, v := range s.sum {
-		s.comp[j] = v * scale
+	s.drawComposition()
+	for j, v := range s.x {
+		s.comp[j] = v * s.massKg
 	}
 }
 

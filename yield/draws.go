@@ -56,7 +56,11 @@ func RunOutcomes(ctx context.Context, pulls []assess.Pull, baleKg float64, plan 
 	if draws < 1 || draws > MaxDraws {
 		return rep, fieldErr("monte carlo", "draws", ErrOutOfRange, "%d draws: give 1 to %d", draws, MaxDraws)
 	}
-	s := newSimulator(pulls, baleKg, plan, opt)
+	est, err := assess.Assess(assess.Audit{Pulls: pulls, BaleKg: baleKg}, assess.Options{Method: assess.MethodRatio})
+	if err != nil {
+		return rep, err
+	}
+	s := newSimulator(est.Spread, baleKg, plan, opt)
 	var o Outcome
 	for d := range draws {
 		if d%progressEvery == 0 && d > 0 {
@@ -89,7 +93,7 @@ func (s *simulator) outcome(o *Outcome, flake, product, ohv float64) {
 			pet += v
 		}
 	}
-	*o = Outcome{BaleKg: s.baleKg, LiquidKg: s.comp[s.m.liquid], FlakeKg: flake, FlakeDryKg: dry, PETKg: pet,
+	*o = Outcome{BaleKg: s.massKg, LiquidKg: s.comp[s.m.liquid], FlakeKg: flake, FlakeDryKg: dry, PETKg: pet,
 		GlycolysateKg: product, HydroxylValue: ohv}
 	if pet > 0 {
 		o.GlycolKg = s.plan.recipeFor(pet, dry, s.glycol).GlycolKg
