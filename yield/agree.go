@@ -135,9 +135,9 @@ func Agree(pairs []Pair) Agreement {
 	return a
 }
 
-// z90 is the standard normal 0.9 quantile, the distance of a normal
-// P90 from the mean in SDs (Abramowitz & Stegun, table 26.1: 1.2816).
-const z90 = 1.2815515655446004
+// z90 is the standard normal 0.9 quantile (1.2816), the distance of a
+// normal P90 from the mean in SDs, from gonum through assess.NormalZ.
+var z90 = assess.NormalZ(0.8)
 
 func judgeCoverage(inside, n int) CoverageVerdict {
 	iv := assess.ClopperPearson(inside, n, AgreementLevel)

@@ -24,8 +24,9 @@ func TestAgreeHandWorked(t *testing.T) {
 	if a.N != 5 || math.Abs(a.Bias-1) > 1e-12 || math.Abs(a.SD-math.Sqrt(85)) > 1e-12 || math.Abs(a.BiasRel-0.01) > 1e-12 {
 		t.Errorf("N %d bias %v SD %v rel %v", a.N, a.Bias, a.SD, a.BiasRel)
 	}
-	// t(0.95, 4) = 2.1318 (Student's t table; e.g. Abramowitz & Stegun table 26.10).
-	if h := a.BiasHigh - a.Bias; math.Abs(h-2.1318*math.Sqrt(85)/math.Sqrt(5)) > 1e-3 {
+	// Source: Student's t table, t(0.95; 4 df) = 2.132 (NIST/SEMATECH
+	// e-Handbook of Statistical Methods, 1.3.6.7.2).
+	if h := a.BiasHigh - a.Bias; math.Abs(h-2.132*math.Sqrt(85)/math.Sqrt(5)) > 1e-3 {
 		t.Errorf("bias half-width %v", h)
 	}
 	if a.Inside != 3 || a.Below != 1 || a.Above != 1 || a.Coverage != 0.6 || a.InsideWithError != 3 {

@@ -200,3 +200,29 @@ func TestBuiltinPriceSheetFile(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+// FuzzReadPriceSheet: any input is either refused with a FieldError or
+// gives a sheet whose value of a plain outcome is a finite number.
+func FuzzReadPriceSheet(f *testing.F) {
+	b, _ := BuiltinPriceSheet().MarshalIndent()
+	f.Add(b)
+	f.Add([]byte(`{"name":"a","currency":"EUR","route":"flake","flake_per_t":-1e6,"flake_deductions":{"pvc_ppm":0}}`))
+	f.Add([]byte(`{"name":"a","currency":"USD","route":"glycolysate","hydroxyl_value":{"min":0,"max":1e-300,"deduction_per_t":1e6}}`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		p, err := ReadPriceSheet(bytes.NewReader(data), "fuzz")
+		if err != nil {
+			var fe *FieldError
+			if !errors.As(err, &fe) {
+				t.Fatalf("refusal is not a FieldError: %v", err)
+			}
+			return
+		}
+		o := Outcome{BaleKg: 500, LiquidKg: 5, FlakeKg: 350, FlakeDryKg: 347, PETKg: 340, GlycolKg: 347, GlycolysateKg: 690, HydroxylValue: 528}
+		o.fails[ItemPVC] = true
+		for _, r := range []Route{RouteFlake, RouteGlycolysate} {
+			if v := p.Worth(&o, r).Net; math.IsNaN(v) || math.IsInf(v, 0) {
+				t.Fatalf("%s value %v from an accepted sheet", r, v)
+			}
+		}
+	})
+}
