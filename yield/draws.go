@@ -83,16 +83,7 @@ func RunOutcomes(ctx context.Context, pulls []assess.Pull, baleKg float64, plan 
 
 // outcome fills o from the simulator's state after a draw.
 func (s *simulator) outcome(o *Outcome, flake, product, ohv float64) {
-	dry, pet := 0.0, 0.0
-	for c, v := range s.st {
-		if c == s.m.liquid {
-			continue
-		}
-		dry += v
-		if isPETComp[c] {
-			pet += v
-		}
-	}
+	dry, pet := s.m.dryAndPET(s.st)
 	*o = Outcome{BaleKg: s.massKg, LiquidKg: s.comp[s.m.liquid], FlakeKg: flake, FlakeDryKg: dry, PETKg: pet,
 		GlycolysateKg: product, HydroxylValue: ohv}
 	if pet > 0 {

@@ -146,15 +146,11 @@ func runValue(args []string, stdout, stderr io.Writer) error {
 		return usagef("--from and --to go with --site")
 	}
 	if _, err := os.Stat(pos[0]); err != nil && !strings.ContainsAny(pos[0], "/\\.") {
-		d, err := openDesk(*dir, false)
+		d, plan, err := openWithPlan(*dir, a, fs, rf)
 		if err != nil {
 			return err
 		}
 		defer d.Close()
-		plan, err := valuePlan(d, a, fs, rf)
-		if err != nil {
-			return err
-		}
 		v, err := d.ValueBale(context.Background(), pos[0], plan, opt, nil)
 		if err != nil {
 			return err
@@ -208,6 +204,21 @@ func valuePlan(d *desk.Desk, a valueArgs, fs *flag.FlagSet, rf *recipeFlags) (yi
 	}
 	rf.ranges(&plan)
 	return plan, nil
+}
+
+// openWithPlan opens the store and builds the value's plan with its
+// stored lines; the caller closes the desk.
+func openWithPlan(dir string, a valueArgs, fs *flag.FlagSet, rf *recipeFlags) (*desk.Desk, yield.Plan, error) {
+	d, err := openDesk(dir, false)
+	if err != nil {
+		return nil, yield.Plan{}, err
+	}
+	plan, err := valuePlan(d, a, fs, rf)
+	if err != nil {
+		d.Close()
+		return nil, plan, err
+	}
+	return d, plan, nil
 }
 
 func sheetLine(p yield.PriceSheet) string {
@@ -288,15 +299,11 @@ func valueSite(a valueArgs, dir string, fs *flag.FlagSet, rf *recipeFlags, opt d
 	if err != nil {
 		return usagef("%v", err)
 	}
-	d, err := openDesk(dir, false)
+	d, plan, err := openWithPlan(dir, a, fs, rf)
 	if err != nil {
 		return err
 	}
 	defer d.Close()
-	plan, err := valuePlan(d, a, fs, rf)
-	if err != nil {
-		return err
-	}
 	sv, err := d.ValueSite(context.Background(), a.site, r, plan, opt, nil)
 	if err != nil {
 		return err
