@@ -78,7 +78,9 @@
 // Results are plain structs of typed values; states are enums with
 // String() (AuditState, Refusal, Concern, Step, SettingKind, QueryKind,
 // Unit, Caution, FingerprintSource; assess.Verdict, assess.Bound,
-// assess.Method from the audit). Nothing needs a string compared.
+// assess.Method from the audit; yield.Route, yield.ObsKind,
+// yield.CoverageVerdict and record.Method from value and calibration).
+// Nothing needs a string compared.
 //
 // Errors wrap a sentinel of this package (ErrNotFound, ErrAmbiguous,
 // ErrWrongKind, ErrDeleted, ErrRefused, ErrNeedsConfirm, ErrNoPulls,
