@@ -1,193 +1,121 @@
 package main
 
-// Source: the demo scenario and invented stores; the checks are the
-// commands' documented behaviour (README, "The lab's desk").
+// Source: invented sites, bales, pulls and measured batches, and the
+// invented demo scenario; checks follow the commands' documented
+// behaviour.
 
 import (
-	"bytes"
-	"encoding/csv"
 	"encoding/json"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"baleassay/yield"
 )
 
-// demoStore makes the demo scenario in a temporary folder.
-func demoStore(t *testing.T) string {
-	t.Helper()
-	dir := t.TempDir()
-	if code, _, e := bale(t, "demo", "--store", dir); code != 0 {
-		t.Fatalf("demo: %s", e)
-	}
-	return dir
-}
-
-func TestReportCommands(t *testing.T) {
-	store, out := demoStore(t), t.TempDir()
-	page := filepath.Join(out, "bale.html")
-	code, stdout, e := bale(t, "report", "bale", "VO-04117", "--html", page, "--draws", "2000", "--store", store)
-	if code != 0 || !strings.Contains(stdout, "wrote "+page) {
-		t.Fatalf("report bale: %d %q %q", code, stdout, e)
-	}
-	first, _ := os.ReadFile(page)
-	if !bytes.Contains(first, []byte("<h1>Bale VO-04117</h1>")) || !bytes.Contains(first, []byte(`data-figure="flow"`)) {
-		t.Fatal("the bale report lacks its title or its mass flow")
-	}
-	// Never replaced without --force; replaced with it.
-	code, _, e = bale(t, "report", "bale", "VO-04117", "--html", page, "--seed", "9", "--store", store)
-	if code != 1 || !strings.Contains(e, "already there") || !strings.Contains(e, "--force") {
-		t.Fatalf("second report without --force: %d %q", code, e)
-	}
-	if now, _ := os.ReadFile(page); !bytes.Equal(now, first) {
-		t.Fatal("the report was changed without --force")
-	}
-	if code, _, e := bale(t, "report", "bale", "VO-04117", "--html", page, "--seed", "9", "--draws", "2000", "--force", "--store", store); code != 0 {
-		t.Fatalf("--force: %q", e)
-	}
-	region := filepath.Join(out, "region.html")
-	code, stdout, e = bale(t, "report", "site", "--within", "45.0", "4.7", "25", "--from", "2026-11-01", "--html", region, "--store", store)
-	if code != 0 || !strings.Contains(stdout, "9 sites") {
-		t.Fatalf("report site --within: %d %q %q", code, stdout, e)
-	}
-	if b, _ := os.ReadFile(region); !bytes.Contains(b, []byte("received from 2026-11-01")) || !bytes.Contains(b, []byte(`data-figure="map"`)) {
-		t.Fatal("the region report lacks its range or its map")
-	}
-	if code, _, e := bale(t, "report", "site", "Kettleby Yard", "--html", filepath.Join(out, "k.html"), "--store", store); code != 0 {
-		t.Fatalf("report site NAME: %q", e)
-	}
-	for _, args := range [][]string{
-		{"report", "site", "--within", "45", "4.7", "--html", "x.html"},
-		{"report", "site", "Kettleby Yard", "--within", "45", "4.7", "25", "--html", "x.html"},
-		{"report", "site", "Kettleby Yard"},
-		{"report", "bale", "VO-04117"},
-		{"report", "pile", "x"},
-	} {
-		if code, _, _ := bale(t, append(args, "--store", store)...); code != 2 {
-			t.Errorf("%v: exit %d, want 2 (usage)", args, code)
-		}
-	}
-	if code, _, e := bale(t, "report", "bale", "NO-SUCH", "--html", filepath.Join(out, "n.html"), "--store", store); code != 1 || !strings.Contains(e, "NO-SUCH") {
-		t.Errorf("unknown bale: %d %q", code, e)
-	}
-}
-
-func TestExportCSVAndGeoJSONCommands(t *testing.T) {
-	store, out := demoStore(t), t.TempDir()
-	for _, tab := range []string{"bales", "pulls", "sites"} {
-		path := filepath.Join(out, tab+".csv")
-		code, stdout, e := bale(t, "export", "csv", tab, path, "--from", "2026-11-02", "--to", "2026-11-08", "--store", store)
-		if code != 0 || !strings.Contains(stdout, tab+" table") {
-			t.Fatalf("export csv %s: %d %q %q", tab, code, stdout, e)
-		}
-		raw, _ := os.ReadFile(path)
-		recs, err := csv.NewReader(bytes.NewReader(raw)).ReadAll()
-		if err != nil || len(recs) < 2 {
-			t.Fatalf("%s.csv: %d records, %v", tab, len(recs), err)
-		}
-		if code, _, e := bale(t, "export", "csv", tab, path, "--store", store); code != 1 || !strings.Contains(e, "already there") {
-			t.Errorf("export csv over a file: %d %q", code, e)
-		}
-	}
-	geo := filepath.Join(out, "sites.geojson")
-	code, stdout, e := bale(t, "export", "geojson", "sites", geo, "--within", "45", "4.7", "25", "--area", "--store", store)
-	if code != 0 || !strings.Contains(stdout, "9 sites") {
-		t.Fatalf("export geojson: %d %q %q", code, stdout, e)
-	}
-	var fc struct {
-		Type     string
-		Features []struct{ Geometry struct{ Type string } }
-	}
-	raw, _ := os.ReadFile(geo)
-	if json.Unmarshal(raw, &fc) != nil || fc.Type != "FeatureCollection" || len(fc.Features) != 10 || fc.Features[9].Geometry.Type != "Polygon" {
-		t.Fatalf("geojson: %s", raw[:min(300, len(raw))])
-	}
-	for _, args := range [][]string{
-		{"export", "csv", "tables", filepath.Join(out, "x.csv")},
-		{"export", "csv", "bales"},
-		{"export", "geojson", "bales", filepath.Join(out, "x.json")},
-		{"export", "geojson", "sites", filepath.Join(out, "x.json"), "--area"},
-	} {
-		if code, _, _ := bale(t, append(args, "--store", store)...); code != 2 {
-			t.Errorf("%v: exit %d, want 2 (usage)", args, code)
-		}
-	}
-	if _, err := os.Stat(filepath.Join(out, "x.csv")); err == nil {
-		t.Error("a refused export left a file")
-	}
-}
-
-// TestImportFolderCommand imports a folder with two devices' bundles, a
-// missing bundle, a tampered file and a note: one summary per device,
-// every refusal listed, exit status 1.
-func TestImportFolderCommand(t *testing.T) {
-	lab, stick := t.TempDir(), t.TempDir()
-	for i, name := range []string{"north", "south"} {
-		tab := grader(t)
-		if code, _, e := bale(t, "trust", "add", mustKey(t, tab), "--name", "tablet "+name, "--store", lab); code != 0 {
-			t.Fatalf("trust: %q", e)
-		}
-		for n := 1; n <= 3; n++ {
-			if code, _, e := bale(t, "sites", "add", "--name", name+" yard "+string(rune('A'+n)), "--lat", "51.0", "--lon", string(rune('0'+i))+".5", "--store", tab, "--yes"); code != 0 {
-				t.Fatalf("sites add: %q", e)
-			}
-			if code, _, e := bale(t, "export", "--to", filepath.Join(stick, name+"-"+string(rune('0'+n))+".bale"), "--since-last", "lab", "--store", tab); code != 0 {
-				t.Fatalf("export: %q", e)
-			}
-		}
-	}
-	os.Remove(filepath.Join(stick, "south-2.bale"))
-	raw, _ := os.ReadFile(filepath.Join(stick, "north-3.bale"))
-	raw[len(raw)/2] ^= 1
-	os.WriteFile(filepath.Join(stick, "north-3.bale"), raw, 0o644)
-	os.WriteFile(filepath.Join(stick, "notes.txt"), []byte("x"), 0o644)
-	code, out, e := bale(t, "import", stick, "--store", lab)
-	if code != 1 {
-		t.Fatalf("exit %d, want 1\n%s\n%s", code, out, e)
-	}
-	for _, want := range []string{
-		"(tablet north): 2 bundles (1–2) in 2 files, 5 events: 5 new",
-		"(tablet south): 2 bundles (1, 3) in 2 files",
-		"1 bundle missing",
-		"gap: bundle 2 from device",
-		"5 files read: 4 accepted",
-		"1 refused; 1 file not ending in .bale left alone",
-		"refused: north-3.bale: ",
-		"tampered",
-	} {
+func TestValueCommand(t *testing.T) {
+	out := recMust(t, "value", "../../testdata/demo-bale-0417.csv", "--bale-kg", "548", "--draws", "500")
+	for _, want := range []string{"ILLUSTRATIVE", "glycolysate (sheet)", "Whole bale (548 kg)", "Caution"} {
 		if !strings.Contains(out, want) {
-			t.Errorf("summary lacks %q:\n%s", want, out)
+			t.Errorf("value output lacks %q:\n%s", want, out)
 		}
 	}
-	if !strings.Contains(e, "1 of 5 files refused") || !strings.Contains(e, "import: file 5 of 5") {
-		t.Errorf("stderr %q", e)
+	var v valueJSON
+	js := recMust(t, "value", "../../testdata/demo-bale-0417.csv", "--bale-kg", "548", "--draws", "500", "--route", "flake", "--json")
+	if err := json.Unmarshal([]byte(js), &v); err != nil {
+		t.Fatal(err)
 	}
-	code, out, _ = bale(t, "import", stick, "--store", lab, "--json")
-	var rep struct {
-		Devices []struct {
-			Bundles []uint64
-			Missing int
-			New     int
-		}
-		Refused []struct{ Path, Error string }
-		Skipped []string
+	if v.Headline != "flake" || len(v.Routes) != 2 || !v.Prices.Illustrative || v.Prices.Currency != "EUR" || v.Routes[0].PerT.P50 == nil {
+		t.Errorf("json: %+v", v)
 	}
-	if code != 1 || json.Unmarshal([]byte(out), &rep) != nil || len(rep.Devices) != 2 || len(rep.Refused) != 1 || len(rep.Skipped) != 1 {
-		t.Fatalf("--json: %d %s", code, out)
+	// The sheet in use, as a file to start from, reads back.
+	sheet := recMust(t, "value", "--show-prices")
+	if _, err := yield.ReadPriceSheet(strings.NewReader(sheet), "shown"); err != nil {
+		t.Errorf("--show-prices does not read back: %v", err)
 	}
-	for _, d := range rep.Devices {
-		if d.New != 0 {
-			t.Errorf("second import brought %d new events", d.New)
-		}
+	bad := filepath.Join(t.TempDir(), "prices.json")
+	os.WriteFile(bad, []byte(`{"name":"x","currency":"EUR","route":"flake","wash_cost_per_t":-3}`), 0o644)
+	if code, _, errs := recRun(t, "value", "../../testdata/demo-bale-0417.csv", "--bale-kg", "548", "--prices", bad); code != 1 || !strings.Contains(errs, "wash cost") {
+		t.Errorf("bad sheet: %d %s", code, errs)
+	}
+	if code, _, _ := recRun(t, "value", "../../testdata/demo-bale-0417.csv"); code != 2 {
+		t.Errorf("no --bale-kg: exit %d", code)
+	}
+	if code, _, _ := recRun(t, "value", "../../testdata/demo-bale-0417.csv", "--bale-kg", "548", "--route", "pellets"); code != 2 {
+		t.Errorf("unknown route: exit %d", code)
 	}
 }
 
-// mustKey writes a store's public key and returns its path.
-func mustKey(t *testing.T, store string) string {
-	t.Helper()
-	pub := filepath.Join(t.TempDir(), "key.pem")
-	if code, _, e := bale(t, "key", "--store", store, "--public", pub); code != 0 {
-		t.Fatalf("key: %q", e)
+func TestMeasuredCommands(t *testing.T) {
+	dir := t.TempDir()
+	st := []string{"--store", dir}
+	recMust(t, append([]string{"sites", "add", "--name", "Tansy Cross Yard", "--lat", "44.921", "--lon", "4.495"}, st...)...)
+	recMust(t, append([]string{"bales", "add", "--site", "Tansy Cross Yard", "--kg", "548", "--tag", "VO-77"}, st...)...)
+	stdin = strings.NewReader("pull,pet_clear,pvc,closures\nP1,23.9,0.1,1.7\nP2,12.8,0.16,0.7\nP3,20.1,0.05,1.1\n")
+	recMust(t, append([]string{"pulls", "add", "VO-77", "-"}, st...)...)
+	add := []string{"measured", "add", "--bales", "VO-77", "--flake-kg", "400", "--moisture-pct", "0.8", "--stream", "floats=12.5",
+		"--reactor-flake-kg", "300", "--glycol", "deg", "--glycol-kg", "300", "--ohv", "520", "--acid-value", "1.1", "--ran", "2026-03-01"}
+	if code, _, errs := recRun(t, append(append(append([]string{}, add...), "--stream", "skip_9=3"), st...)...); code != 1 || !strings.Contains(errs, "has no stream") {
+		t.Errorf("unknown stream: %d %s", code, errs)
 	}
-	return pub
+	if code, _, errs := recRun(t, append([]string{"measured", "add", "--bales", "VO-77", "--flake-kg", "150"}, st...)...); code != 1 || !strings.Contains(errs, "--yes") {
+		t.Errorf("implausible flake share: %d %s", code, errs)
+	}
+	if code, _, _ := recRun(t, append([]string{"measured", "add", "--bales", "VO-77", "--flake-kg", "400", "--ohv", "500"}, st...)...); code != 2 {
+		t.Errorf("hydroxyl value without a charge: exit %d", code)
+	}
+	out := recMust(t, append(add, st...)...)
+	if !strings.Contains(out, "saved measured batch") {
+		t.Fatalf("add: %s", out)
+	}
+	var rows []measuredJSON
+	if err := json.Unmarshal([]byte(recMust(t, append([]string{"measured", "list", "--json"}, st...)...)), &rows); err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 1 || rows[0].Reactor == nil || rows[0].Reactor.Glycol != "DEG" || rows[0].Reactor.HydroxylMethod != "ASTM D4274" ||
+		rows[0].Reactor.AcidMethod != "ASTM D4662" || rows[0].StreamsKg["floats"] != 12.5 || *rows[0].MoisturePct != 0.8 || rows[0].Ran != "2026-03-01T00:00:00Z" {
+		t.Fatalf("list: %+v", rows)
+	}
+	// One batch: predicted against measured, and a proposal (the prior
+	// dominates with one batch).
+	out = recMust(t, append([]string{"calibrate", "--draws", "300"}, st...)...)
+	if !strings.Contains(out, "1 batch predicted") || !strings.Contains(out, "flake_dry_kg") || !strings.Contains(out, "Tansy Cross Yard") {
+		t.Errorf("calibrate: %s", out)
+	}
+	out = recMust(t, append([]string{"measured", "remove", rows[0].ID}, st...)...)
+	if !strings.Contains(out, "removed measured batch") {
+		t.Errorf("remove: %s", out)
+	}
+	if out := recMust(t, append([]string{"measured", "list"}, st...)...); !strings.Contains(out, "no measured batches") {
+		t.Errorf("list after remove: %s", out)
+	}
+}
+
+func TestCalibrateCommandOnDemo(t *testing.T) {
+	dir := t.TempDir()
+	recMust(t, "demo", "--store", dir)
+	st := []string{"--store", dir}
+	var rep calibrationJSON
+	if err := json.Unmarshal([]byte(recMust(t, append([]string{"calibrate", "--draws", "800", "--json"}, st...)...)), &rep); err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Lines) != 1 || rep.Lines[0].Proposal == nil || !rep.Lines[0].Proposal.Valid || len(rep.Sites) == 0 || len(rep.Lines[0].Batches) < 5 {
+		t.Fatalf("calibrate json: %+v", rep)
+	}
+	file := filepath.Join(t.TempDir(), "line.json")
+	out := recMust(t, append([]string{"calibrate", "--draws", "800", "--save", "--out", file}, st...)...)
+	if !strings.Contains(out, "saved line") || !strings.Contains(out, "wrote the proposed profile") {
+		t.Errorf("save: %s", out)
+	}
+	if _, err := yield.ReadLineFile(file); err != nil {
+		t.Errorf("the written profile does not read back: %v", err)
+	}
+	out = recMust(t, append([]string{"settings", "list"}, st...)...)
+	if !strings.Contains(out, yield.BuiltinLineName) {
+		t.Errorf("the calibrated line is not stored: %s", out)
+	}
+	if code, _, errs := recRun(t, append([]string{"calibrate", "--line", "no such line", "--save"}, st...)...); code != 1 || !strings.Contains(errs, "0 lines") {
+		t.Errorf("save without batches: %d %s", code, errs)
+	}
 }
