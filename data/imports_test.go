@@ -46,6 +46,7 @@ var testOnly = map[string][]string{
 	"cmd/bale":      {"data/store"},
 	"data/transfer": {"assess"},
 	"data/demo":     {"data/geo"},
+	"data/report":   {"data/demo"},
 }
 
 func TestImportAllowList(t *testing.T) {

@@ -46,11 +46,11 @@ func TestReportCommands(t *testing.T) {
 		t.Fatalf("--force: %q", e)
 	}
 	region := filepath.Join(out, "region.html")
-	code, stdout, e = bale(t, "report", "site", "--within", "45.0", "4.7", "25", "--from", "2026-11-01", "--html", region, "--store", store)
+	code, stdout, e = bale(t, "report", "site", "--within", "45.0", "4.7", "25", "--from", "2001-01-01", "--html", region, "--store", store)
 	if code != 0 || !strings.Contains(stdout, "9 sites") {
 		t.Fatalf("report site --within: %d %q %q", code, stdout, e)
 	}
-	if b, _ := os.ReadFile(region); !bytes.Contains(b, []byte("received from 2026-11-01")) || !bytes.Contains(b, []byte(`data-figure="map"`)) {
+	if b, _ := os.ReadFile(region); !bytes.Contains(b, []byte("received from 2001-01-01")) || !bytes.Contains(b, []byte(`data-figure="map"`)) {
 		t.Fatal("the region report lacks its range or its map")
 	}
 	if code, _, e := bale(t, "report", "site", "Kettleby Yard", "--html", filepath.Join(out, "k.html"), "--store", store); code != 0 {
@@ -76,7 +76,7 @@ func TestExportCSVAndGeoJSONCommands(t *testing.T) {
 	store, out := demoStore(t), t.TempDir()
 	for _, tab := range []string{"bales", "pulls", "sites"} {
 		path := filepath.Join(out, tab+".csv")
-		code, stdout, e := bale(t, "export", "csv", tab, path, "--from", "2026-11-02", "--to", "2026-11-08", "--store", store)
+		code, stdout, e := bale(t, "export", "csv", tab, path, "--from", "2001-01-01", "--to", "2099-12-31", "--store", store)
 		if code != 0 || !strings.Contains(stdout, tab+" table") {
 			t.Fatalf("export csv %s: %d %q %q", tab, code, stdout, e)
 		}
@@ -88,6 +88,16 @@ func TestExportCSVAndGeoJSONCommands(t *testing.T) {
 		if code, _, e := bale(t, "export", "csv", tab, path, "--store", store); code != 1 || !strings.Contains(e, "already there") {
 			t.Errorf("export csv over a file: %d %q", code, e)
 		}
+	}
+	valued := filepath.Join(out, "valued.csv")
+	if code, _, e := bale(t, "export", "csv", "bales", valued, "--value", "--draws", "200", "--store", store); code != 0 {
+		t.Fatalf("export csv bales --value: %q", e)
+	}
+	if raw, _ := os.ReadFile(valued); !bytes.Contains(raw, []byte(",value_eur_per_t_")) {
+		t.Fatalf("no value columns: %.300s", raw)
+	}
+	if code, _, _ := bale(t, "export", "csv", "pulls", filepath.Join(out, "v.csv"), "--value", "--store", store); code != 2 {
+		t.Error("--value on the pulls table accepted")
 	}
 	geo := filepath.Join(out, "sites.geojson")
 	code, stdout, e := bale(t, "export", "geojson", "sites", geo, "--within", "45", "4.7", "25", "--area", "--store", store)

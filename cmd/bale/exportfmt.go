@@ -1,10 +1,12 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"io"
 
 	"baleassay/data/desk"
+	"baleassay/yield"
 )
 
 // exportFormats are the sub-modes of bale export that write files for
@@ -14,7 +16,7 @@ var exportFormats = map[string]func(args []string, stdout io.Writer) error{
 	"geojson": runExportGeoJSON,
 }
 
-const exportFormatsUsage = "csv bales|pulls|sites FILE [--from DATE] [--to DATE] [--line NAME|FILE] [--force] | " +
+const exportFormatsUsage = "csv bales|pulls|sites FILE [--from DATE] [--to DATE] [--line NAME|FILE] [--value [--prices FILE] [--draws N] [--seed S]] [--force] | " +
 	"geojson sites FILE [--within LAT LON KM [--area]] [--from DATE] [--to DATE] [--force]"
 
 func runExportCSV(args []string, stdout io.Writer) error {
@@ -24,6 +26,10 @@ func runExportCSV(args []string, stdout io.Writer) error {
 	to := fs.String("to", "", "last day received, inclusive")
 	line := fs.String("line", "", "line profile of the _point yield columns (default: the built-in line)")
 	force := fs.Bool("force", false, "replace FILE if it is there")
+	value := fs.Bool("value", false, "bales: add each bale's value per tonne (P10, P50, P90) under the price sheet")
+	prices := fs.String("prices", "", "bales: price sheet JSON file for the value columns (implies --value; default: the illustrative built-in sheet)")
+	draws := fs.Int("draws", 2000, "bales, with --value: Monte Carlo draws per bale")
+	seed := fs.Uint64("seed", 1, "bales, with --value: random seed")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -35,12 +41,25 @@ func runExportCSV(args []string, stdout io.Writer) error {
 	if err != nil {
 		return err
 	}
-	r, err := desk.ParseDateRange(*from, *to)
-	if err != nil {
+	opt := desk.ExportOptions{Line: *line}
+	if *value || *prices != "" {
+		if t != desk.TableBales {
+			return usagef("--value and --prices go with the bales table")
+		}
+		if *draws < 1 || *draws > yield.MaxDraws {
+			return usagef("--draws %d: give 1 to %d", *draws, yield.MaxDraws)
+		}
+		sheet, err := desk.LoadPrices(*prices)
+		if err != nil {
+			return err
+		}
+		opt.Value = &desk.ValueOptions{Prices: sheet, MC: yield.MCOptions{Draws: *draws, Seed: *seed}}
+	}
+	if opt.Range, err = desk.ParseDateRange(*from, *to); err != nil {
 		return err
 	}
 	return writeOut(*dir, pos[1], *force, stdout, func(d *desk.Desk, w io.Writer) (string, error) {
-		rows, err := d.ExportCSV(w, t, desk.ExportOptions{Range: r, Line: *line})
+		rows, err := d.ExportCSV(context.Background(), w, t, opt)
 		return fmt.Sprintf("%s table, %s", t, desk.Plural(rows, "row", "rows")), err
 	})
 }

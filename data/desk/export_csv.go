@@ -1,6 +1,7 @@
 package desk
 
 import (
+	"context"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -51,6 +52,10 @@ type ExportOptions struct {
 	// Line and FlakeSpec choose the plan of the point-yield columns, as
 	// Plan takes them.
 	Line, FlakeSpec string
+	// Value, when set, adds to the bales table the value per tonne of
+	// each audited bale under the price sheet (ValueColumns), from its
+	// own Monte Carlo draws with these options.
+	Value *ValueOptions
 }
 
 // ExportCSV writes one table as RFC 4180 CSV: CRLF line ends, one header
@@ -59,8 +64,9 @@ type ExportOptions struct {
 // in UTC (RFC 3339, milliseconds where they are not zero); numbers use a
 // dot and never an exponent; an unknown or not-measured value is an
 // empty field. It returns the data rows written. The columns are listed
-// in README ("bale export csv").
-func (d *Desk) ExportCSV(w io.Writer, t Table, opt ExportOptions) (int, error) {
+// in README ("bale export csv"). The value columns' draws stop when ctx
+// is done.
+func (d *Desk) ExportCSV(ctx context.Context, w io.Writer, t Table, opt ExportOptions) (int, error) {
 	sites, err := d.Sites()
 	if err != nil {
 		return 0, err
@@ -82,7 +88,13 @@ func (d *Desk) ExportCSV(w io.Writer, t Table, opt ExportOptions) (int, error) {
 	var n int
 	switch t {
 	case TableBales:
-		n, err = writeRows(cw, baleColumns(), points)
+		cols := baleColumns()
+		if opt.Value != nil {
+			if cols, err = d.valueColumns(ctx, cols, points, *plan, *opt.Value); err != nil {
+				return 0, err
+			}
+		}
+		n, err = writeRows(cw, cols, points)
 	case TablePulls:
 		n, err = d.writePulls(cw, points)
 	case TableSites:
@@ -223,4 +235,34 @@ func idOf(id record.EntityID) string {
 		return ""
 	}
 	return id.String()
+}
+
+// valueColumns appends the value columns of a price sheet: each audited
+// bale valued by ValuePulls (its own draws), an empty cell for a bale
+// that has no value.
+func (d *Desk) valueColumns(ctx context.Context, cols []column[BalePoint], points []BalePoint, plan yield.Plan, opt ValueOptions) ([]column[BalePoint], error) {
+	cells := make(map[record.EntityID][]string, len(points))
+	for _, p := range points {
+		if p.Audit.State != AuditDone {
+			continue
+		}
+		v, err := d.ValuePulls(ctx, p.Input.Pulls, p.Bale.GrossKg, plan, opt, nil)
+		if err != nil {
+			if ctx.Err() != nil {
+				return nil, ctx.Err()
+			}
+			continue
+		}
+		cells[p.ID] = ValueCells(&v.Value)
+	}
+	empty := ValueCells(nil)
+	for i, name := range ValueColumns(opt.prices()) {
+		cols = append(cols, column[BalePoint]{name, func(p *BalePoint) string {
+			if c, ok := cells[p.ID]; ok {
+				return c[i]
+			}
+			return empty[i]
+		}})
+	}
+	return cols, nil
 }

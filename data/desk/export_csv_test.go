@@ -7,6 +7,7 @@ package desk
 
 import (
 	"bytes"
+	"context"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -20,24 +21,28 @@ import (
 	"time"
 
 	"baleassay/assess"
+	"baleassay/data/demo"
 	"baleassay/data/record"
 	"baleassay/yield"
 )
 
-// demoDesk makes the demo scenario in a temporary store.
-func demoDesk(t *testing.T) *Desk {
+// demoScenario writes the demo scenario, six weeks ending on a fixed
+// day, into a temporary store: the dates the tests pick stay valid.
+func demoScenario(t *testing.T) *Desk {
 	t.Helper()
-	dir := t.TempDir()
-	if _, _, err := MakeDemo(DemoOptions{Dir: dir, Weeks: 6, Seed: 1}); err != nil {
-		t.Fatal(err)
-	}
-	d, err := Open(Location{Dir: dir}, Options{})
+	d, err := Open(Location{Dir: t.TempDir()}, Options{Create: true})
 	if err != nil {
 		t.Fatal(err)
 	}
 	t.Cleanup(func() { d.Close() })
+	if _, err := demo.WriteDemo(d.st, demo.DemoOptions{End: demoEnd, Weeks: 6, Seed: 1}); err != nil {
+		t.Fatal(err)
+	}
 	return d
 }
+
+// demoEnd is the last day of the demo in these tests.
+var demoEnd = time.Date(2026, 12, 1, 0, 0, 0, 0, time.UTC)
 
 // want is an expected field: a string, a number with the decimals it is
 // written with, a time, a bool, or nothing (an empty field).
@@ -265,7 +270,7 @@ func compare(t *testing.T, header []string, readers map[string][]map[string]any,
 func exportCSV(t *testing.T, d *Desk, tab Table, opt ExportOptions) []byte {
 	t.Helper()
 	var buf bytes.Buffer
-	if _, err := d.ExportCSV(&buf, tab, opt); err != nil {
+	if _, err := d.ExportCSV(context.Background(), &buf, tab, opt); err != nil {
 		t.Fatal(err)
 	}
 	return buf.Bytes()
@@ -331,7 +336,7 @@ func expectBales(t *testing.T, d *Desk, r DateRange) map[string]map[string]want 
 }
 
 func TestExportCSVBalesRoundTrip(t *testing.T) {
-	d := demoDesk(t)
+	d := demoScenario(t)
 	for _, r := range []DateRange{{}, {From: time.Date(2026, 11, 2, 0, 0, 0, 0, time.UTC), Until: time.Date(2026, 11, 9, 0, 0, 0, 0, time.UTC)}} {
 		header, readers := readBack(t, exportCSV(t, d, TableBales, ExportOptions{Range: r}))
 		compare(t, header, readers, "bale_id", expectBales(t, d, r))
@@ -339,7 +344,7 @@ func TestExportCSVBalesRoundTrip(t *testing.T) {
 }
 
 func TestExportCSVPullsRoundTrip(t *testing.T) {
-	d := demoDesk(t)
+	d := demoScenario(t)
 	r := DateRange{From: time.Date(2026, 11, 9, 0, 0, 0, 0, time.UTC), Until: time.Date(2026, 11, 16, 0, 0, 0, 0, time.UTC)}
 	header, readers := readBack(t, exportCSV(t, d, TablePulls, ExportOptions{Range: r}))
 	if want := 9 + 2*assess.NumCategories() + 1; len(header) != want {
@@ -376,7 +381,7 @@ func TestExportCSVPullsRoundTrip(t *testing.T) {
 }
 
 func TestExportCSVSitesRoundTrip(t *testing.T) {
-	d := demoDesk(t)
+	d := demoScenario(t)
 	// A site with no bales yet: its aggregate fields stay empty.
 	if _, err := d.AddSite(record.SiteRecord{Name: "Newfield Yard", Lat: 44.7, Lon: 4.1}, SaveOptions{Confirm: true}); err != nil {
 		t.Fatal(err)
@@ -483,5 +488,47 @@ func TestExportCSVHostileText(t *testing.T) {
 				t.Errorf("%s: tag %q", name, tag)
 			}
 		}
+	}
+}
+
+// TestExportCSVValueColumns adds the value columns of the illustrative
+// price sheet: each bale's cells equal what ValueBale gives with the same
+// draws and seed, and a bale without pulls has empty cells.
+func TestExportCSVValueColumns(t *testing.T) {
+	d := demoScenario(t)
+	r := DateRange{From: time.Date(2026, 11, 23, 0, 0, 0, 0, time.UTC), Until: time.Date(2026, 11, 26, 0, 0, 0, 0, time.UTC)}
+	vo := ValueOptions{MC: yield.MCOptions{Draws: 300, Seed: 5}}
+	raw := exportCSV(t, d, TableBales, ExportOptions{Range: r, Value: &vo})
+	header, readers := readBack(t, raw)
+	names := ValueColumns(yield.BuiltinPriceSheet())
+	if got := header[len(header)-3:]; fmt.Sprint(got) != fmt.Sprint(names) {
+		t.Fatalf("value columns %v, want %v", got, names)
+	}
+	plan, _ := d.Plan("", "")
+	rows := readers["encoding/csv"]
+	if len(rows) == 0 {
+		t.Fatal("no bales in the range: the test would check nothing")
+	}
+	valued := 0
+	for _, row := range rows {
+		id := row["bale_id"].(string)
+		want := ValueCells(nil)
+		if row["audit"] == AuditDone.String() {
+			v, err := d.ValueBale(context.Background(), id, plan, vo, nil)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want = ValueCells(&v.Value)
+			valued++
+		}
+		for i, n := range names {
+			got, _ := row[n].(string)
+			if got != want[i] {
+				t.Errorf("bale %s, %s: %q, want %q", id, n, got, want[i])
+			}
+		}
+	}
+	if valued == 0 {
+		t.Fatal("no bale was valued")
 	}
 }

@@ -119,7 +119,7 @@ func shoelace(ring [][2]float64) float64 {
 }
 
 func TestExportGeoJSONSites(t *testing.T) {
-	d := demoDesk(t)
+	d := demoScenario(t)
 	var buf bytes.Buffer
 	n, err := d.ExportGeoJSON(&buf, GeoJSONOptions{})
 	if err != nil {
@@ -168,7 +168,7 @@ func TestExportGeoJSONSites(t *testing.T) {
 // RFC, its vertices lie at the radius from the centre, and only the
 // region's sites are written.
 func TestExportGeoJSONArea(t *testing.T) {
-	d := demoDesk(t)
+	d := demoScenario(t)
 	q := &Query{Lat: 45.0, Lon: 4.7, Km: 25}
 	var buf bytes.Buffer
 	n, err := d.ExportGeoJSON(&buf, GeoJSONOptions{Within: q, Area: true})

@@ -56,7 +56,7 @@ func (d *Desk) ReportBale(ctx context.Context, text string, opt BaleReportOption
 	if err != nil {
 		return BaleReport{}, err
 	}
-	rep := BaleReport{Generated: d.now().UTC(), Demo: d.demo, Bale: a.Bale, Record: a.Record, Audit: a,
+	rep := BaleReport{Generated: d.now().UTC(), Demo: d.holdsDemo(), Bale: a.Bale, Record: a.Record, Audit: a,
 		Yield: run, Cautions: append([]Caution{CautionBale}, run.Cautions...)}
 	if site, ok, err := d.siteRow(a.Record.Site); err != nil {
 		return rep, err
@@ -98,4 +98,11 @@ func (d *Desk) siteRow(id record.EntityID) (SiteRow, bool, error) {
 		}
 	}
 	return SiteRow{}, false, nil
+}
+
+// holdsDemo reports whether the store is a demo store now (the demo may
+// have been written after it was opened).
+func (d *Desk) holdsDemo() bool {
+	v, err := d.st.IsDemo()
+	return d.demo || (err == nil && v)
 }

@@ -76,7 +76,7 @@ type SiteReport struct {
 
 // ReportSites gathers a site or region report for bales received in r.
 func (d *Desk) ReportSites(scope SiteScope, r DateRange, opt SiteReportOptions) (SiteReport, error) {
-	rep := SiteReport{Generated: d.now().UTC(), Demo: d.demo, Scope: scope, Range: r,
+	rep := SiteReport{Generated: d.now().UTC(), Demo: d.holdsDemo(), Scope: scope, Range: r,
 		Cautions: []Caution{CautionBale, CautionCaustic, CautionHotGlycol, CautionIsocyanate}}
 	all, err := d.Sites()
 	if err != nil {

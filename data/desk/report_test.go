@@ -85,7 +85,7 @@ func TestPerTonneIsMassWeighted(t *testing.T) {
 // TestReportSitesAgreesWithSummaries builds a region report of the demo
 // and checks it against the region summary and the listing.
 func TestReportSitesAgreesWithSummaries(t *testing.T) {
-	d := demoDesk(t)
+	d := demoScenario(t)
 	q := Query{Kind: QueryWithin, Lat: 45, Lon: 4.7, Km: 25}
 	r := DateRange{From: time.Date(2026, 11, 1, 0, 0, 0, 0, time.UTC)}
 	rep, err := d.ReportSites(SiteScope{Within: &q}, r, SiteReportOptions{})
@@ -147,7 +147,7 @@ func TestReportSitesAgreesWithSummaries(t *testing.T) {
 // TestReportBale checks the bale report against AuditBale and YieldBale
 // with the same seed.
 func TestReportBale(t *testing.T) {
-	d := demoDesk(t)
+	d := demoScenario(t)
 	opt := BaleReportOptions{Yield: YieldOptions{MC: yield.MCOptions{Draws: 2000, Seed: 7}}}
 	rep, err := d.ReportBale(context.Background(), "VO-04106", opt, nil)
 	if err != nil {

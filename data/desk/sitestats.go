@@ -21,6 +21,7 @@ type PointYield struct {
 // assessed, and its point yield when a plan was given.
 type BalePoint struct {
 	BaleRow
+	Input  assess.Audit  // the pulls as assessed, when Audit.State == AuditDone
 	Result assess.Result // valid when Audit.State == AuditDone
 	Yield  PointYield
 }
@@ -144,7 +145,10 @@ func (d *Desk) collect(sites []SiteRow, r DateRange, plan *yield.Plan) ([]SiteSt
 			}
 			if err != nil { // the summary assessed it: cannot differ
 				p.Audit.State, p.Audit.Err = AuditFailed, err
-			} else if plan != nil {
+			} else {
+				p.Input = a
+			}
+			if err == nil && plan != nil {
 				p.Yield = pointYield(a, *plan)
 			}
 		}

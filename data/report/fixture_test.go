@@ -5,7 +5,9 @@ import (
 	"context"
 	"sync"
 	"testing"
+	"time"
 
+	scenario "baleassay/data/demo"
 	"baleassay/data/desk"
 	"baleassay/yield"
 )
@@ -34,16 +36,19 @@ func demoReports(t *testing.T) rendered {
 			demo.err = err
 			return
 		}
-		if _, _, err := desk.MakeDemo(desk.DemoOptions{Dir: dir, Weeks: 6, Seed: 1}); err != nil {
-			demo.err = err
-			return
-		}
-		d, err := desk.Open(desk.Location{Dir: dir}, desk.Options{})
+		d, err := desk.Open(desk.Location{Dir: dir}, desk.Options{Create: true})
 		if err != nil {
 			demo.err = err
 			return
 		}
 		defer d.Close()
+		// Six weeks ending on a fixed day, so the pages do not change with
+		// the date the tests run.
+		end := time.Date(2026, 12, 1, 0, 0, 0, 0, time.UTC)
+		if _, err := scenario.WriteDemo(d.Store(), scenario.DemoOptions{End: end, Weeks: 6, Seed: 1}); err != nil {
+			demo.err = err
+			return
+		}
 		br, err := d.ReportBale(context.Background(), "VO-04106", desk.BaleReportOptions{Yield: desk.YieldOptions{MC: yield.MCOptions{Draws: 2000, Seed: 1}}}, nil)
 		if err != nil {
 			demo.err = err
