@@ -61,7 +61,7 @@ func baleYield(p *page, r desk.BaleReport) {
 	if len(warns) > 0 {
 		p.h("<h3>Warnings</h3><ul>")
 		for _, w := range warns {
-			p.h("<li>%s</li>", esc(w))
+			p.h("<li>%s</li>", esc(capital(w)))
 		}
 		p.h("</ul>")
 	}

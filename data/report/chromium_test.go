@@ -134,7 +134,7 @@ func TestReportsInChromium(t *testing.T) {
 		page   []byte
 		charts []string
 		height int
-	}{{"bale", r.bale, baleCharts, 4800}, {"region", r.region, siteCharts, 5600}, {"site", r.site, siteCharts, 5000}}
+	}{{"bale", r.bale, baleCharts, 6200}, {"region", r.region, siteCharts, 6000}, {"site", r.site, siteCharts, 5600}}
 	for _, pg := range pages {
 		p := probed(t, bin, dir, pg.name, pg.page)
 		if len(p.Violations) > 0 || len(p.Errors) > 0 || len(p.Resources) > 0 {
