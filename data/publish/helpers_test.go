@@ -1,0 +1,362 @@
+package publish
+
+import (
+	"bytes"
+	"context"
+	"crypto/sha256"
+	"math"
+	"sort"
+	"testing"
+	"time"
+
+	"baleassay/assess"
+	"baleassay/data"
+	"baleassay/data/publish/pgtest"
+	"github.com/jackc/pgx/v5"
+)
+
+// demoEnd fixes the demo scenario's last day so every run is the same.
+var demoEnd = time.Date(2026, 11, 27, 0, 0, 0, 0, time.UTC)
+
+func ctxT(t *testing.T) context.Context {
+	ctx, cancel := context.WithTimeout(context.Background(), 5*time.Minute)
+	t.Cleanup(cancel)
+	return ctx
+}
+
+// testOptions requires PostGIS in CI, where the server is installed with
+// it, and uses it where available elsewhere.
+func testOptions() Options {
+	o := Options{}
+	if pgtest.InCI() {
+		o.PostGIS = PostGISRequire
+	}
+	return o
+}
+
+func demoStore(t *testing.T) (*data.Store, data.DemoSummary) {
+	t.Helper()
+	s, err := data.Open(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { s.Close() })
+	sum, err := data.WriteDemo(s, data.DemoOptions{End: demoEnd})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s, sum
+}
+
+// rawEvents lists a store's events in insertion order.
+func rawEvents(t *testing.T, s *data.Store) [][]byte {
+	t.Helper()
+	var out [][]byte
+	err := s.ForEachRawSince(0, func(_ uint64, _ data.EventID, raw []byte) error {
+		out = append(out, bytes.Clone(raw))
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
+
+func mustPublish(t *testing.T, conn *pgx.Conn, src Source, o Options) Report {
+	t.Helper()
+	rep, err := Publish(ctxT(t), conn, src, o)
+	if err != nil {
+		t.Fatalf("publish: %v", err)
+	}
+	return rep
+}
+
+// dbHash is SHA-256 over the content of every table the publisher
+// fills except its own log (publish_log) and cursor: the events, the fold
+// and the audits, each in key order.
+func dbHash(t *testing.T, conn *pgx.Conn) [32]byte {
+	t.Helper()
+	qs := []string{
+		`SELECT coalesce(sha256(string_agg(id || raw, ''::bytea ORDER BY id)), '') FROM baleassay.events`,
+		`SELECT coalesce(sha256(string_agg(uuid_send(entity) || int2send(kind), ''::bytea ORDER BY entity)), '') FROM baleassay.entities`,
+		`SELECT coalesce(sha256(string_agg(uuid_send(entity) || superseded || superseding, ''::bytea ORDER BY entity, superseded, superseding)), '') FROM baleassay.supersessions`,
+		`SELECT coalesce(sha256(string_agg(uuid_send(entity) || event || boolsend(deleted), ''::bytea ORDER BY entity, event)), '') FROM baleassay.heads`,
+		`SELECT coalesce(sha256(string_agg(uuid_send(entity) || event || int4send(heads), ''::bytea ORDER BY entity)), '') FROM baleassay.current`,
+		`SELECT coalesce(sha256(string_agg(uuid_send(bale) || inputs || convert_to(coalesce(report::text, error), 'UTF8'), ''::bytea ORDER BY bale, inputs)), '') FROM baleassay.audits`,
+		`SELECT count(*)::text::bytea FROM baleassay.audit_pending`,
+	}
+	h := sha256.New()
+	for _, q := range qs {
+		var b []byte
+		if err := conn.QueryRow(ctxT(t), q).Scan(&b); err != nil {
+			t.Fatalf("%s: %v", q, err)
+		}
+		h.Write(b)
+		h.Write([]byte{0})
+	}
+	var out [32]byte
+	copy(out[:], h.Sum(nil))
+	return out
+}
+
+// checkMatchesStore checks that the database holds exactly the events of
+// s and that its fold, views and audits give what the store and 'bale'
+// give for them.
+func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
+	t.Helper()
+	ctx := ctxT(t)
+	// The event set: the same hash as data.Store.EventSetHash (id, 4-byte
+	// big-endian length, bytes, in id order).
+	want, err := s.EventSetHash()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []byte
+	if err := conn.QueryRow(ctx, `SELECT sha256(string_agg(id || int4send(octet_length(raw)) || raw, ''::bytea ORDER BY id)) FROM baleassay.events`).Scan(&got); err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(got, want[:]) {
+		t.Fatalf("event set hash: database %x, store %x", got, want)
+	}
+
+	// The fold: heads and shown event of every entity.
+	states, err := s.Entities(0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	type dbState struct {
+		heads   []string
+		current string
+		n       int
+	}
+	db := map[data.EntityID]*dbState{}
+	var (
+		ent [16]byte
+		ev  []byte
+		del bool
+	)
+	rows, _ := conn.Query(ctx, `SELECT entity, event, deleted FROM baleassay.heads ORDER BY entity, event`)
+	if _, err := pgx.ForEachRow(rows, []any{&ent, &ev, &del}, func() error {
+		st := db[ent]
+		if st == nil {
+			st = &dbState{}
+			db[ent] = st
+		}
+		st.heads = append(st.heads, string(ev))
+		return nil
+	}); err != nil {
+		t.Fatal(err)
+	}
+	var n int32
+	rows, _ = conn.Query(ctx, `SELECT entity, event, heads FROM baleassay.current`)
+	currents := 0
+	if _, err := pgx.ForEachRow(rows, []any{&ent, &ev, &n}, func() error {
+		currents++
+		if db[ent] == nil {
+			t.Errorf("current row for entity %x without heads", ent)
+			return nil
+		}
+		db[ent].current, db[ent].n = string(ev), int(n)
+		return nil
+	}); err != nil {
+		t.Fatal(err)
+	}
+	if len(db) != len(states) {
+		t.Errorf("entities with heads: database %d, store %d", len(db), len(states))
+	}
+	visible := 0
+	for _, st := range states {
+		d := db[st.ID]
+		if d == nil {
+			t.Errorf("entity %s missing from heads", st.ID)
+			continue
+		}
+		var wantHeads []string
+		for _, h := range st.Heads {
+			wantHeads = append(wantHeads, string(h.ID[:]))
+		}
+		sort.Strings(wantHeads)
+		if !equalStrings(d.heads, wantHeads) {
+			t.Errorf("entity %s heads: database %d, store %d", st.ID, len(d.heads), len(wantHeads))
+		}
+		cur, ok := st.Current()
+		if !ok {
+			if d.current != "" {
+				t.Errorf("deleted entity %s shown in the database", st.ID)
+			}
+			continue
+		}
+		visible++
+		if d.current != string(cur.ID[:]) || d.n != len(st.Heads) {
+			t.Errorf("entity %s: database shows %x with %d heads, store %s with %d", st.ID, d.current, d.n, cur.ID.Short(), len(st.Heads))
+		}
+	}
+	if currents != visible {
+		t.Errorf("current rows %d, visible entities %d", currents, visible)
+	}
+
+	// Conflicts.
+	conf, err := s.Conflicts()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var nConf int
+	if err := conn.QueryRow(ctx, `SELECT count(*) FROM baleassay.conflicts`).Scan(&nConf); err != nil {
+		t.Fatal(err)
+	}
+	if nConf != len(conf) {
+		t.Errorf("conflicts: database %d, store %d", nConf, len(conf))
+	}
+
+	// Sites as 'bale sites list' shows them.
+	sites, err := s.Sites()
+	if err != nil {
+		t.Fatal(err)
+	}
+	type siteRow struct {
+		name       string
+		lat, lon   float64
+		conflicted bool
+	}
+	dbSites := map[data.EntityID]siteRow{}
+	var r siteRow
+	rows, _ = conn.Query(ctx, `SELECT id, name, lat, lon, conflicted FROM baleassay.sites`)
+	if _, err := pgx.ForEachRow(rows, []any{&ent, &r.name, &r.lat, &r.lon, &r.conflicted}, func() error {
+		dbSites[ent] = r
+		return nil
+	}); err != nil {
+		t.Fatal(err)
+	}
+	if len(dbSites) != len(sites) {
+		t.Errorf("sites: database %d, store %d", len(dbSites), len(sites))
+	}
+	for _, sv := range sites {
+		d, ok := dbSites[sv.ID]
+		if !ok || d.name != sv.Site.Name || d.lat != sv.Site.Lat || d.lon != sv.Site.Lon || d.conflicted != sv.Conflicted {
+			t.Errorf("site %s: database %+v, store %+v conflicted=%v", sv.ID, d, sv.Site, sv.Conflicted)
+		}
+	}
+
+	// Bale count, and pulls per bale, as 'bale bales list'.
+	bales, err := s.Bales(data.EntityID{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	byBale, err := s.PullsByBale()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var nBales int
+	if err := conn.QueryRow(ctx, `SELECT count(*) FROM baleassay.bales`).Scan(&nBales); err != nil {
+		t.Fatal(err)
+	}
+	if nBales != len(bales) {
+		t.Errorf("bale count: database %d, store %d", nBales, len(bales))
+	}
+	dbPulls := map[data.EntityID]int64{}
+	var np int64
+	rows, _ = conn.Query(ctx, `SELECT id, pulls FROM baleassay.bales`)
+	if _, err := pgx.ForEachRow(rows, []any{&ent, &np}, func() error { dbPulls[ent] = np; return nil }); err != nil {
+		t.Fatal(err)
+	}
+	for _, b := range bales {
+		if dbPulls[b.ID] != int64(len(byBale[b.ID])) {
+			t.Errorf("bale %s pulls: database %d, store %d", b.ID, dbPulls[b.ID], len(byBale[b.ID]))
+		}
+	}
+
+	// Audits: the target-PET share of every audited bale, as 'bale show'
+	// computes it, exactly (the same code on the same records).
+	dbPET := map[data.EntityID]float64{}
+	var pet float64
+	rows, _ = conn.Query(ctx, `SELECT bale, target_pet FROM baleassay.bale_audits WHERE error IS NULL`)
+	if _, err := pgx.ForEachRow(rows, []any{&ent, &pet}, func() error { dbPET[ent] = pet; return nil }); err != nil {
+		t.Fatal(err)
+	}
+	audited := 0
+	for _, b := range bales {
+		a, err := data.AuditOf(b.Bale, byBale[b.ID])
+		if err != nil || len(a.Pulls) == 0 {
+			continue
+		}
+		res, err := assess.Assess(a, assess.Options{})
+		if err != nil {
+			continue
+		}
+		audited++
+		got, ok := dbPET[b.ID]
+		if !ok || got != res.Group(assess.GroupPET).Fraction {
+			t.Errorf("bale %s target PET: database %v (present %v), store %v", b.ID, got, ok, res.Group(assess.GroupPET).Fraction)
+		}
+	}
+	if audited == 0 || len(sites) == 0 {
+		t.Errorf("nothing to compare: %d sites, %d audited bales", len(sites), audited)
+	}
+	if len(dbPET) != audited {
+		t.Errorf("audited bales: database %d, store %d", len(dbPET), audited)
+	}
+
+	// Per site, the region summary of 'bale sites summary' for that one
+	// site: bales, audited bales, mean and SD of the target-PET share.
+	for _, sv := range sites {
+		sum, err := s.Summarize([]data.Hit{{IndexedSite: data.IndexedSite{ID: sv.ID}}}, time.Time{}, time.Time{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var (
+			nb, na   int64
+			mean, sd *float64
+			hz       int64
+		)
+		if err := conn.QueryRow(ctx, `SELECT bales, audited, target_pet_mean, target_pet_sd, hazard_bales FROM baleassay.site_quality WHERE site = $1`,
+			[16]byte(sv.ID)).Scan(&nb, &na, &mean, &sd, &hz); err != nil {
+			t.Fatalf("site %s: %v", sv.ID, err)
+		}
+		if int(nb) != sum.Bales || int(na) != sum.Audited || int(hz) != sum.HazardBales {
+			t.Errorf("site %s %q: database %d bales, %d audited, %d with hazards; bale %d, %d, %d",
+				sv.ID, sv.Site.Name, nb, na, hz, sum.Bales, sum.Audited, sum.HazardBales)
+		}
+		if sum.Audited > 0 {
+			// Summed in a different order (SQL avg against Welford):
+			// agreement to 1e-12 relative, well inside what is printed.
+			if mean == nil || !close(*mean, sum.TargetPET.Mean, 1e-12) {
+				t.Errorf("site %q target-PET mean: database %v, bale %v", sv.Site.Name, deref(mean), sum.TargetPET.Mean)
+			}
+		}
+		if sum.Audited > 1 && (sd == nil || !close(*sd, sum.TargetPET.SD, 1e-9)) {
+			t.Errorf("site %q target-PET SD: database %v, bale %v", sv.Site.Name, deref(sd), sum.TargetPET.SD)
+		}
+	}
+
+	// Nothing left pending after a publish.
+	var pending int
+	if err := conn.QueryRow(ctx, `SELECT count(*) FROM baleassay.audit_pending`).Scan(&pending); err != nil {
+		t.Fatal(err)
+	}
+	if pending != 0 {
+		t.Errorf("%d audits pending after publish", pending)
+	}
+}
+
+func equalStrings(a, b []string) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
+	}
+	return true
+}
+
+func close(a, b, rel float64) bool {
+	return math.Abs(a-b) <= rel*math.Max(math.Abs(a), math.Abs(b))+1e-15
+}
+
+func deref(p *float64) any {
+	if p == nil {
+		return nil
+	}
+	return *p
+}
