@@ -5,6 +5,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"strings"
 	"time"
 
 	"baleassay/data"
@@ -162,10 +163,25 @@ func Publish(ctx context.Context, conn *pgx.Conn, src Source, o Options) (rep Re
 	if err != nil {
 		return rep, err
 	}
+	if rep.New > 0 {
+		// Fresh statistics, so that the planner sees the new rows (e.g.
+		// picks the spatial index) before autovacuum gets round to it.
+		if _, err := conn.Exec(ctx, "ANALYZE "+analyzeTables(o.Schema)); err != nil {
+			return rep, err
+		}
+	}
 	_, err = conn.Exec(ctx, `INSERT INTO `+pgx.Identifier{o.Schema, "publish_log"}.Sanitize()+
 		` (store_device, from_seq, to_seq, read, new_events, audits) VALUES ($1, $2, $3, $4, $5, $6)`,
 		rep.Device[:], int64(rep.FromSeq), int64(rep.ToSeq), rep.Read, rep.New, rep.Audits)
 	return rep, err
+}
+
+func analyzeTables(schema string) string {
+	var names []string
+	for _, t := range []string{"events", "entities", "supersessions", "heads", "current", "audits"} {
+		names = append(names, pgx.Identifier{schema, t}.Sanitize())
+	}
+	return strings.Join(names, ", ")
 }
 
 func (p *publisher) tempTables(ctx context.Context) error {

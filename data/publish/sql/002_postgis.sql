@@ -10,4 +10,4 @@ CREATE OR REPLACE VIEW sites AS
 SELECT c.entity AS id, e.site_name AS name, e.site_kind AS kind, e.lat, e.lon, e.site_notes AS notes,
        c.heads > 1 AS conflicted, c.event, e.clock, e.device, e.geog
 FROM current c JOIN events e ON e.id = c.event
-WHERE c.kind = 1;
+WHERE c.kind = 1 AND e.kind = 1; -- e.kind lets the planner use the partial index
