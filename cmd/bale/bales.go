@@ -1,6 +1,7 @@
 package main
 
 import (
+	"baleassay/data/record"
 	"fmt"
 	"io"
 	"math"
@@ -8,8 +9,6 @@ import (
 	"strings"
 	"text/tabwriter"
 	"time"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -100,13 +99,13 @@ func balesAdd(args []string, stdout io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	siteID, _, err := findEntity(s, *site, data.KindSite)
+	siteID, _, err := findEntity(s, *site, record.KindSite)
 	if err != nil {
 		return err
 	}
-	rec := data.BaleRecord{Site: siteID, ReceivedMs: when.UnixMilli(), GrossKg: *kg, LengthM: l, WidthM: w, HeightM: h,
+	rec := record.BaleRecord{Site: siteID, ReceivedMs: when.UnixMilli(), GrossKg: *kg, LengthM: l, WidthM: w, HeightM: h,
 		Tag: *tag, Grader: *grader, Spec: *spec}
-	id, err := saveNew(s, data.Event{Kind: data.KindBale, Bale: &rec}, *yes)
+	id, err := saveNew(s, record.Event{Kind: record.KindBale, Bale: &rec}, *yes)
 	if err != nil {
 		return err
 	}
@@ -128,9 +127,9 @@ func balesList(args []string, stdout io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	var siteID data.EntityID
+	var siteID record.EntityID
 	if *site != "" {
-		if siteID, _, err = findEntity(s, *site, data.KindSite); err != nil {
+		if siteID, _, err = findEntity(s, *site, record.KindSite); err != nil {
 			return err
 		}
 	}
@@ -142,7 +141,7 @@ func balesList(args []string, stdout io.Writer) error {
 	if err != nil {
 		return err
 	}
-	names := map[data.EntityID]string{}
+	names := map[record.EntityID]string{}
 	if sites, err := s.Sites(); err == nil {
 		for _, v := range sites {
 			names[v.ID] = v.Site.Name

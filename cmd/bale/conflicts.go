@@ -1,11 +1,10 @@
 package main
 
 import (
+	"baleassay/data/record"
 	"fmt"
 	"io"
 	"strings"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -84,7 +83,7 @@ func conflictsResolve(args []string, stdout io.Writer) error {
 	if !st.Conflicted() {
 		return fmt.Errorf("%s %s has no conflict", st.Kind, id)
 	}
-	var keep data.EventID
+	var keep record.EventID
 	found := 0
 	want := strings.ToLower(pos[1])
 	for _, h := range st.Heads {

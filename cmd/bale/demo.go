@@ -1,12 +1,12 @@
 package main
 
 import (
+	"baleassay/data/demo"
+	"baleassay/data/store"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -40,8 +40,8 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 	}
-	if _, err := os.Stat(filepath.Join(dir, data.DBFile)); err == nil {
-		s, err := data.Open(dir)
+	if _, err := os.Stat(filepath.Join(dir, store.DBFile)); err == nil {
+		s, err := store.Open(dir)
 		if err != nil {
 			return err
 		}
@@ -58,16 +58,16 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 			return fmt.Errorf("a demo store already exists at %s; use it with --demo (e.g. 'bale sites list --demo'), or give --force to make it again", dir)
 		}
 		// An empty store or a demo store being replaced: start afresh.
-		if err := os.Remove(filepath.Join(dir, data.DBFile)); err != nil {
+		if err := os.Remove(filepath.Join(dir, store.DBFile)); err != nil {
 			return fmt.Errorf("cannot replace the demo store: %w", err)
 		}
 	}
-	s, err := data.Open(dir)
+	s, err := store.Open(dir)
 	if err != nil {
 		return err
 	}
 	defer s.Close()
-	sum, err := data.WriteDemo(s, data.DemoOptions{Weeks: *weeks, Seed: *seed})
+	sum, err := demo.WriteDemo(s, demo.DemoOptions{Weeks: *weeks, Seed: *seed})
 	if err != nil {
 		return fmt.Errorf("demo scenario not written: %w", err)
 	}

@@ -1,13 +1,12 @@
 package main
 
 import (
+	"baleassay/data/transfer"
 	"encoding/json"
 	"fmt"
 	"io"
 	"os"
 	"strings"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -47,12 +46,12 @@ func runImport(args []string, stdout, stderr io.Writer) error {
 	if len(pos) == 0 {
 		return usagef("give at least one bundle file or folder")
 	}
-	files, err := data.ExpandPaths(pos)
+	files, err := transfer.ExpandPaths(pos)
 	if err != nil {
 		return err
 	}
 	if len(files) == 0 {
-		return fmt.Errorf("no %s files in %s", data.BundleExt, strings.Join(pos, ", "))
+		return fmt.Errorf("no %s files in %s", transfer.BundleExt, strings.Join(pos, ", "))
 	}
 	s, err := openStore(*store)
 	if err != nil {
@@ -63,7 +62,7 @@ func runImport(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	im := &data.Importer{Store: s, Trust: trust, Progress: newProgress(stderr, len(files)).show}
+	im := &transfer.Importer{Store: s, Trust: trust, Progress: newProgress(stderr, len(files)).show}
 	rep := im.ImportFiles(files)
 	if *asJSON {
 		out := struct {
@@ -120,7 +119,7 @@ func newProgress(w io.Writer, files int) *progress {
 	return p
 }
 
-func (p *progress) show(e data.Progress) {
+func (p *progress) show(e transfer.Progress) {
 	if p.tty {
 		const width = 24
 		done := e.Index - 1

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"baleassay/data/transfer"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -8,8 +9,6 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -22,8 +21,8 @@ func init() {
 }
 
 // deviceKey loads or creates the signing key in a store folder.
-func deviceKey(dir string) (*data.DeviceKey, bool, error) {
-	k, created, err := data.LoadOrCreateDeviceKey(dir)
+func deviceKey(dir string) (*transfer.DeviceKey, bool, error) {
+	k, created, err := transfer.LoadOrCreateDeviceKey(dir)
 	if err != nil {
 		return nil, false, fmt.Errorf("device signing key: %w", err)
 	}
@@ -32,13 +31,13 @@ func deviceKey(dir string) (*data.DeviceKey, bool, error) {
 
 // trustFor returns the trust list of a store folder and a TrustFunc that
 // also accepts the folder's own key, when it has one.
-func trustFor(dir string) (*data.TrustList, data.TrustFunc, error) {
-	tl, err := data.LoadTrust(dir)
+func trustFor(dir string) (*transfer.TrustList, transfer.TrustFunc, error) {
+	tl, err := transfer.LoadTrust(dir)
 	if err != nil {
 		return nil, nil, err
 	}
-	var self data.Fingerprint
-	k, err := data.LoadDeviceKey(dir)
+	var self transfer.Fingerprint
+	k, err := transfer.LoadDeviceKey(dir)
 	switch {
 	case err == nil:
 		self = k.Fingerprint()
@@ -70,11 +69,11 @@ func runKey(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	if *public != "" {
-		if err := data.WriteFileAtomic(*public, k.PublicPEM(), 0o644); err != nil {
+		if err := transfer.WriteFileAtomic(*public, k.PublicPEM(), 0o644); err != nil {
 			return err
 		}
 	}
-	keyFile := filepath.Join(s.Dir(), data.KeyFileName)
+	keyFile := filepath.Join(s.Dir(), transfer.KeyFileName)
 	if *asJSON {
 		return json.NewEncoder(stdout).Encode(map[string]any{
 			"device": s.DeviceID().String(), "fingerprint": k.Fingerprint().String(), "key_file": keyFile, "created": created})

@@ -8,7 +8,8 @@ import (
 	"time"
 
 	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/record"
+	"baleassay/data/store"
 )
 
 func init() {
@@ -39,8 +40,8 @@ func runPulls(args []string, stdout, stderr io.Writer) error {
 
 // pullRecord converts a pull read from CSV to a record: categories with
 // mass above 0 kg, and counted categories.
-func pullRecord(bale data.EntityID, p assess.Pull, taken time.Time) data.PullRecord {
-	r := data.PullRecord{Bale: bale, Label: p.Label, TakenMs: taken.UnixMilli(), Kg: map[string]float64{}}
+func pullRecord(bale record.EntityID, p assess.Pull, taken time.Time) record.PullRecord {
+	r := record.PullRecord{Bale: bale, Label: p.Label, TakenMs: taken.UnixMilli(), Kg: map[string]float64{}}
 	for i, m := range p.Kg {
 		if m != 0 {
 			r.Kg[assess.CategoryAt(i).Key] = m
@@ -77,7 +78,7 @@ func pullsAdd(args []string, stdout io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	bale, st, err := findEntity(s, pos[0], data.KindBale)
+	bale, st, err := findEntity(s, pos[0], record.KindBale)
 	if err != nil {
 		return err
 	}
@@ -90,15 +91,15 @@ func pullsAdd(args []string, stdout io.Writer) error {
 		used[p.Pull.Label] = true
 	}
 	now := time.Now()
-	evs := make([]data.Event, len(pulls))
+	evs := make([]record.Event, len(pulls))
 	for i, p := range pulls {
 		if used[p.Label] {
 			return fmt.Errorf("%s: bale %s already has a pull %q; nothing was saved: give the new pulls other labels", pos[1], bale, p.Label)
 		}
 		rec := pullRecord(bale, p, now)
-		evs[i] = data.Event{Kind: data.KindPull, Pull: &rec}
+		evs[i] = record.Event{Kind: record.KindPull, Pull: &rec}
 	}
-	if _, err := s.Save(evs, data.SaveOptions{Confirm: *yes}); err != nil {
+	if _, err := s.Save(evs, store.SaveOptions{Confirm: *yes}); err != nil {
 		return fmt.Errorf("%s: %w", pos[1], recSaveError(err))
 	}
 	cur, _ := st.Current()
@@ -119,7 +120,7 @@ func pullsList(args []string, stdout io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	bale, _, err := findEntity(s, pos[0], data.KindBale)
+	bale, _, err := findEntity(s, pos[0], record.KindBale)
 	if err != nil {
 		return err
 	}

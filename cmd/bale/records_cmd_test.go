@@ -1,6 +1,8 @@
 package main
 
 import (
+	"baleassay/data/geo"
+	"baleassay/data/store"
 	"bytes"
 	"encoding/json"
 	"os"
@@ -8,8 +10,6 @@ import (
 	"strings"
 	"testing"
 	"time"
-
-	"baleassay/data"
 )
 
 func recRun(t *testing.T, args ...string) (int, string, string) {
@@ -30,7 +30,7 @@ func recMust(t *testing.T, args ...string) string {
 
 func storeHash(t *testing.T, dir string) [32]byte {
 	t.Helper()
-	s, err := data.Open(dir)
+	s, err := store.Open(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -77,7 +77,7 @@ func TestDemoStoreCommands(t *testing.T) {
 		}
 		prev = km
 		// The reported km is the haversine distance of the reported point.
-		if d := data.HaversineKm(45, 4.7, h["lat"].(float64), h["lon"].(float64)); d != km {
+		if d := geo.HaversineKm(45, 4.7, h["lat"].(float64), h["lon"].(float64)); d != km {
 			t.Fatalf("km %g, haversine %g", km, d)
 		}
 	}

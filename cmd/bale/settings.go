@@ -9,7 +9,8 @@ import (
 	"text/tabwriter"
 
 	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/record"
+	"baleassay/data/store"
 	"baleassay/yield"
 )
 
@@ -30,9 +31,9 @@ func runSettings(args []string, stdout, stderr io.Writer) error {
 func settingKind(word string) (string, error) {
 	switch word {
 	case "spec":
-		return data.SettingSpec, nil
+		return record.SettingSpec, nil
 	case "line", "line_profile":
-		return data.SettingLineProfile, nil
+		return record.SettingLineProfile, nil
 	}
 	return "", usagef("unknown setting kind %q: give spec or line", word)
 }
@@ -46,7 +47,7 @@ func checkSettingFile(kind, path string) (string, []byte, error) {
 		return "", nil, fmt.Errorf("cannot read %s: %v", path, err)
 	}
 	switch kind {
-	case data.SettingSpec:
+	case record.SettingSpec:
 		s, err := assess.ParseSpec(body)
 		if err != nil {
 			return "", nil, fmt.Errorf("%s: %w", path, err)
@@ -87,7 +88,7 @@ func settingsAdd(args []string, stdout io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	ev := data.Event{Kind: data.KindSetting, Setting: &data.SettingRecord{Kind: kind, Name: name, Body: body}}
+	ev := record.Event{Kind: record.KindSetting, Setting: &record.SettingRecord{Kind: kind, Name: name, Body: body}}
 	prev, found, err := findSetting(s, kind, name)
 	if err != nil {
 		return err
@@ -100,7 +101,7 @@ func settingsAdd(args []string, stdout io.Writer) error {
 		fmt.Fprintf(stdout, "saved %s %q as %s\n", pos[0], name, id)
 		return nil
 	}
-	if _, err := s.Supersede(prev.ID, ev, data.SaveOptions{}); err != nil {
+	if _, err := s.Supersede(prev.ID, ev, store.SaveOptions{}); err != nil {
 		return recSaveError(err)
 	}
 	fmt.Fprintf(stdout, "updated %s %q (%s); the earlier version stays in its history\n", pos[0], name, prev.ID)
@@ -109,13 +110,13 @@ func settingsAdd(args []string, stdout io.Writer) error {
 
 // settingView is one setting with its current document.
 type settingView struct {
-	ID         data.EntityID
-	Record     data.SettingRecord
+	ID         record.EntityID
+	Record     record.SettingRecord
 	Conflicted bool
 }
 
-func settings(s *data.Store) ([]settingView, error) {
-	states, err := s.Entities(data.KindSetting)
+func settings(s *store.Store) ([]settingView, error) {
+	states, err := s.Entities(record.KindSetting)
 	if err != nil {
 		return nil, err
 	}
@@ -137,7 +138,7 @@ func settings(s *data.Store) ([]settingView, error) {
 }
 
 // findSetting finds the live setting of a kind by name.
-func findSetting(s *data.Store, kind, name string) (settingView, bool, error) {
+func findSetting(s *store.Store, kind, name string) (settingView, bool, error) {
 	all, err := settings(s)
 	if err != nil {
 		return settingView{}, false, err

@@ -7,7 +7,8 @@ import (
 	"strings"
 
 	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/record"
+	"baleassay/data/store"
 )
 
 func init() {
@@ -42,7 +43,7 @@ type showJSON struct {
 	TargetPET  *float64    `json:"target_pet,omitempty"` // bales with pulls: ratio estimate, fraction
 }
 
-func eventOut(e data.Stamped) eventJSON {
+func eventOut(e record.Stamped) eventJSON {
 	out := eventJSON{Event: e.ID.String(), Device: e.Device.String(), Clock: e.Clock.String(), Supersedes: []string{},
 		Deleted: e.Deleted, Summary: summarize(e.Event)}
 	for _, s := range e.Supersedes {
@@ -52,7 +53,7 @@ func eventOut(e data.Stamped) eventJSON {
 }
 
 // summarize is a one-line text of an event's value.
-func summarize(e data.Event) string {
+func summarize(e record.Event) string {
 	switch {
 	case e.Deleted:
 		return "deleted"
@@ -97,8 +98,8 @@ func runShow(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	var id data.EntityID
-	if evID, err := data.ParseEventID(pos[0]); err == nil {
+	var id record.EntityID
+	if evID, err := record.ParseEventID(pos[0]); err == nil {
 		e, err := s.Event(evID)
 		if err != nil {
 			return err
@@ -130,7 +131,7 @@ func runShow(args []string, stdout, stderr io.Writer) error {
 			return err
 		}
 		out.Pulls = len(pulls)
-		if a, err := data.AuditOf(*cur.Bale, pulls); err == nil && len(a.Pulls) > 0 {
+		if a, err := store.AuditOf(*cur.Bale, pulls); err == nil && len(a.Pulls) > 0 {
 			if r, err := assess.Assess(a, assess.Options{}); err == nil {
 				res = &r
 				f := r.Group(assess.GroupPET).Fraction

@@ -8,7 +8,9 @@ import (
 	"time"
 
 	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/geo"
+	"baleassay/data/record"
+	"baleassay/data/store"
 )
 
 func init() {
@@ -67,7 +69,7 @@ func sitesAdd(args []string, stdout io.Writer) error {
 	if *name == "" || math.IsNaN(*lat) || math.IsNaN(*lon) {
 		return usagef("give --name, --lat and --lon")
 	}
-	k, err := data.ParseSiteKind(*kind)
+	k, err := record.ParseSiteKind(*kind)
 	if err != nil {
 		return usagef("%v", err)
 	}
@@ -76,7 +78,7 @@ func sitesAdd(args []string, stdout io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	ev := data.Event{Kind: data.KindSite, Site: &data.SiteRecord{Name: *name, Kind: k, Lat: *lat, Lon: *lon, Notes: *notes}}
+	ev := record.Event{Kind: record.KindSite, Site: &record.SiteRecord{Name: *name, Kind: k, Lat: *lat, Lon: *lon, Notes: *notes}}
 	id, err := saveNew(s, ev, *yes)
 	if err != nil {
 		return err
@@ -158,7 +160,7 @@ func sitesQuery(sub string, args []string, stdout io.Writer) error {
 }
 
 // querySites runs near, within or box on the store's site index.
-func querySites(sub string, pos []string, k int, dir string) ([]data.Hit, error) {
+func querySites(sub string, pos []string, k int, dir string) ([]geo.Hit, error) {
 	var names []string
 	switch sub {
 	case "near":
@@ -186,7 +188,7 @@ func querySites(sub string, pos []string, k int, dir string) ([]data.Hit, error)
 	}
 	defer s.Close()
 	ix := s.SiteIndex()
-	var hits []data.Hit
+	var hits []geo.Hit
 	switch sub {
 	case "near":
 		hits, err = ix.Nearest(x[0], x[1], k)
@@ -228,7 +230,7 @@ type summaryJSONRec struct {
 	HazardBales int             `json:"hazard_bales"`
 }
 
-func statOut(s data.Stat) statJSON {
+func statOut(s store.Stat) statJSON {
 	if s.N == 0 {
 		return statJSON{}
 	}
@@ -296,7 +298,7 @@ func sitesSummary(args []string, stdout io.Writer) error {
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "share of bale mass\tmean\tsd\tmin\tmax")
-	row := func(name string, st data.Stat) {
+	row := func(name string, st store.Stat) {
 		sd := "–"
 		if st.N > 1 {
 			sd = fmt.Sprintf("%.2f %%", 100*st.SD)
@@ -335,14 +337,14 @@ func sitesMove(args []string, stdout io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	id, st, err := findEntity(s, pos[0], data.KindSite)
+	id, st, err := findEntity(s, pos[0], record.KindSite)
 	if err != nil {
 		return err
 	}
 	cur, _ := st.Current()
 	rec := *cur.Site
 	rec.Lat, rec.Lon = x[0], x[1]
-	if _, err := s.Supersede(id, data.Event{Site: &rec}, data.SaveOptions{Confirm: *yes}); err != nil {
+	if _, err := s.Supersede(id, record.Event{Site: &rec}, store.SaveOptions{Confirm: *yes}); err != nil {
 		return recSaveError(err)
 	}
 	fmt.Fprintf(stdout, "moved site %s  %s to %.5f, %.5f\n", id, rec.Name, rec.Lat, rec.Lon)
@@ -357,7 +359,7 @@ func sitesRemove(args []string, stdout io.Writer) error {
 		return err
 	}
 	defer s.Close()
-	id, _, err := findEntity(s, pos[0], data.KindSite)
+	id, _, err := findEntity(s, pos[0], record.KindSite)
 	if err != nil {
 		return err
 	}
@@ -370,10 +372,10 @@ func sitesRemove(args []string, stdout io.Writer) error {
 
 // findEntity resolves an id argument to an entity of the wanted kind (any
 // kind when kind is 0) that is not deleted.
-func findEntity(s *data.Store, arg string, kind data.Kind) (data.EntityID, data.EntityState, error) {
+func findEntity(s *store.Store, arg string, kind record.Kind) (record.EntityID, record.EntityState, error) {
 	id, err := s.FindEntity(arg)
 	if err != nil {
-		return id, data.EntityState{}, err
+		return id, record.EntityState{}, err
 	}
 	st, err := s.Entity(id)
 	if err != nil {
@@ -389,10 +391,10 @@ func findEntity(s *data.Store, arg string, kind data.Kind) (data.EntityID, data.
 }
 
 // saveNew saves one event of a new entity and returns the entity's id.
-func saveNew(s *data.Store, ev data.Event, yes bool) (data.EntityID, error) {
-	ids, err := s.Save([]data.Event{ev}, data.SaveOptions{Confirm: yes})
+func saveNew(s *store.Store, ev record.Event, yes bool) (record.EntityID, error) {
+	ids, err := s.Save([]record.Event{ev}, store.SaveOptions{Confirm: yes})
 	if err != nil {
-		return data.EntityID{}, recSaveError(err)
+		return record.EntityID{}, recSaveError(err)
 	}
 	e, err := s.Event(ids[0])
 	return e.Entity, err

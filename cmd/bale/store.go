@@ -1,6 +1,8 @@
 package main
 
 import (
+	"baleassay/data/record"
+	"baleassay/data/store"
 	"encoding/json"
 	"errors"
 	"flag"
@@ -13,8 +15,6 @@ import (
 	"strconv"
 	"strings"
 	"time"
-
-	"baleassay/data"
 )
 
 // Where the stores live. A user's records and the demo scenario are kept
@@ -97,13 +97,13 @@ func storeDir(dir string) (string, error) {
 
 // openStore opens the store named by a --store value ("" for the default
 // folder), creating it when new.
-func openStore(dir string) (*data.Store, error) {
+func openStore(dir string) (*store.Store, error) {
 	d, err := storeDir(dir)
 	if err != nil {
 		return nil, err
 	}
-	s, err := data.Open(d)
-	if errors.Is(err, data.ErrStoreInUse) {
+	s, err := store.Open(d)
+	if errors.Is(err, store.ErrStoreInUse) {
 		return nil, err
 	}
 	if err != nil {
@@ -114,12 +114,12 @@ func openStore(dir string) (*data.Store, error) {
 
 // openExistingStore is openStore for commands that only read: a folder
 // without a store is an error rather than a new empty store.
-func openExistingStore(dir string) (*data.Store, error) {
+func openExistingStore(dir string) (*store.Store, error) {
 	d, err := storeDir(dir)
 	if err != nil {
 		return nil, err
 	}
-	if _, err := os.Stat(filepath.Join(d, data.DBFile)); errors.Is(err, os.ErrNotExist) {
+	if _, err := os.Stat(filepath.Join(d, store.DBFile)); errors.Is(err, os.ErrNotExist) {
 		if dir == demoMarker {
 			return nil, fmt.Errorf("no demo store at %s yet: run 'bale demo' first", d)
 		}
@@ -205,7 +205,7 @@ func recJSON(w io.Writer, v any) error {
 
 // recSaveError turns a refused save into a message that says what to do.
 func recSaveError(err error) error {
-	var we *data.WarningsError
+	var we *store.WarningsError
 	if errors.As(err, &we) {
 		var b strings.Builder
 		b.WriteString("not saved, please check:")
@@ -215,7 +215,7 @@ func recSaveError(err error) error {
 		b.WriteString("\nif the values are right, run the command again with --yes")
 		return errors.New(b.String())
 	}
-	var fe *data.FieldError
+	var fe *record.FieldError
 	if errors.As(err, &fe) {
 		return fmt.Errorf("not saved: %v", fe)
 	}
@@ -233,7 +233,7 @@ func recTime(ms int64) string {
 // want positional ones came (wrong is the usage message for another
 // count; with want 0 it follows "unexpected argument"), and opens the
 // existing store that dir names.
-func openForArgs(fs *flag.FlagSet, dir *string, args []string, want int, wrong string) ([]string, *data.Store, error) {
+func openForArgs(fs *flag.FlagSet, dir *string, args []string, want int, wrong string) ([]string, *store.Store, error) {
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return nil, nil, err
