@@ -34,6 +34,7 @@ var allowed = map[string][]string{
 	"data/demo":             {"assess", "data/record", "data/store"},
 	"data/internal/testkit": {"data/record"},
 	"data/publish":          {"assess", "yield", "data/record", "data/store"},
+	"data/publish/pgtest":   {},
 	"cmd/bale":              {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "data/publish"},
 	"ui/...":                {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "ui/...", gio},
 	"cmd/baleassay":         {"ui/...", gio},
@@ -43,6 +44,8 @@ var allowed = map[string][]string{
 var testOnly = map[string][]string{
 	"data/transfer": {"assess"},
 	"data/demo":     {"data/geo"},
+	"data/publish":  {"data/demo", "data/geo", "data/publish/pgtest"},
+	"cmd/bale":      {"data/publish/pgtest"},
 }
 
 func TestImportAllowList(t *testing.T) {

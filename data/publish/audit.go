@@ -10,7 +10,9 @@ import (
 	"sort"
 
 	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/record"
+	"baleassay/data/store"
+
 	"github.com/jackc/pgx/v5"
 )
 
@@ -32,8 +34,8 @@ const auditChunk = 1000
 //	SHA-256(auditTag ‖ bale event id ‖ pull event ids in byte order)
 //
 // over the shown events of the bale and of its shown pulls.
-func auditInputs(bale data.EventID, pulls []data.EventID) []byte {
-	ids := make([]data.EventID, len(pulls))
+func auditInputs(bale record.EventID, pulls []record.EventID) []byte {
+	ids := make([]record.EventID, len(pulls))
 	copy(ids, pulls)
 	sort.Slice(ids, func(i, j int) bool { return bytes.Compare(ids[i][:], ids[j][:]) < 0 })
 	h := sha256.New()
@@ -52,13 +54,13 @@ var auditColumns = []string{
 }
 
 // auditRow computes one bale's audit as 'bale show' and 'bale sites
-// summary' do (data.AuditOf, then assess.Assess with the default options:
+// summary' do (store.AuditOf, then assess.Assess with the default options:
 // Cochran's ratio estimator at 90 %), judged against AuditSpec with the
 // advice of 'bale assess'. A bale without pulls has no audit (ok false);
 // a bale whose pulls cannot be assessed (e.g. one label twice, from two
 // devices) gets a row that says why.
-func auditRow(bale data.EntityID, head data.Stamped, pulls []data.PullView) ([]any, bool) {
-	ids := make([]data.EventID, len(pulls))
+func auditRow(bale record.EntityID, head record.Stamped, pulls []store.PullView) ([]any, bool) {
+	ids := make([]record.EventID, len(pulls))
 	for i, p := range pulls {
 		ids[i] = p.Head.ID
 	}
@@ -74,7 +76,7 @@ func auditRow(bale data.EntityID, head data.Stamped, pulls []data.PullView) ([]a
 		row[19] = text(err.Error())
 		return row, true
 	}
-	a, err := data.AuditOf(*head.Bale, pulls)
+	a, err := store.AuditOf(*head.Bale, pulls)
 	if err != nil {
 		return fail(err)
 	}
@@ -125,7 +127,7 @@ WHERE e.pull_bale = ANY($1) AND c.kind = 3`
 
 // runAudits empties audit_pending, a chunk of bales per transaction: each
 // bale's shown event and shown pulls are read back from the database (so
-// events published by other labs count), decoded with data.DecodeEvent
+// events published by other labs count), decoded with record.DecodeEvent
 // and audited in Go.
 func (p *publisher) runAudits(ctx context.Context, rep *Report, progress func(Progress)) error {
 	for {
@@ -176,7 +178,7 @@ func (p *publisher) runAudits(ctx context.Context, rep *Report, progress func(Pr
 // auditChunkRows reads the shown records of a chunk of bales and computes
 // their audit rows; errs counts rows that record a failure.
 func auditChunkRows(ctx context.Context, tx pgx.Tx, bales [][16]byte) (out [][]any, errs int, err error) {
-	heads := map[data.EntityID]data.Stamped{}
+	heads := map[record.EntityID]record.Stamped{}
 	var (
 		ent [16]byte
 		id  []byte
@@ -189,15 +191,15 @@ func auditChunkRows(ctx context.Context, tx pgx.Tx, bales [][16]byte) (out [][]a
 			return err
 		}
 		if s.Bale == nil {
-			return fmt.Errorf("%w: shown event %x of bale %s has no bale record", ErrCorrupt, id, data.EntityID(ent))
+			return fmt.Errorf("%w: shown event %x of bale %s has no bale record", ErrCorrupt, id, record.EntityID(ent))
 		}
-		heads[data.EntityID(ent)] = s
+		heads[record.EntityID(ent)] = s
 		return nil
 	})
 	if err != nil {
 		return nil, 0, fmt.Errorf("read bales: %w", err)
 	}
-	pulls := map[data.EntityID][]data.PullView{}
+	pulls := map[record.EntityID][]store.PullView{}
 	rows, _ = tx.Query(ctx, auditPullsSQL, bales)
 	_, err = pgx.ForEachRow(rows, []any{&id, &raw}, func() error {
 		s, err := decodeShown(id, raw)
@@ -207,18 +209,18 @@ func auditChunkRows(ctx context.Context, tx pgx.Tx, bales [][16]byte) (out [][]a
 		if s.Pull == nil {
 			return fmt.Errorf("%w: shown event %x of pull %s has no pull record", ErrCorrupt, id, s.Entity)
 		}
-		pulls[s.Pull.Bale] = append(pulls[s.Pull.Bale], data.PullView{View: data.View{ID: s.Entity, Head: s}, Pull: *s.Pull})
+		pulls[s.Pull.Bale] = append(pulls[s.Pull.Bale], store.PullView{View: store.View{ID: s.Entity, Head: s}, Pull: *s.Pull})
 		return nil
 	})
 	if err != nil {
 		return nil, 0, fmt.Errorf("read pulls: %w", err)
 	}
 	for _, b := range bales {
-		h, ok := heads[data.EntityID(b)]
+		h, ok := heads[record.EntityID(b)]
 		if !ok {
 			continue // deleted, or not a bale: nothing to audit
 		}
-		row, ok := auditRow(data.EntityID(b), h, pulls[data.EntityID(b)])
+		row, ok := auditRow(record.EntityID(b), h, pulls[record.EntityID(b)])
 		if !ok {
 			continue
 		}
@@ -232,14 +234,14 @@ func auditChunkRows(ctx context.Context, tx pgx.Tx, bales [][16]byte) (out [][]a
 
 // decodeShown decodes an event read back from the database, checking it
 // against its id.
-func decodeShown(id, raw []byte) (data.Stamped, error) {
-	var eid data.EventID
+func decodeShown(id, raw []byte) (record.Stamped, error) {
+	var eid record.EventID
 	copy(eid[:], id)
 	e, err := decodeItem(item{id: eid, raw: raw})
 	if err != nil {
-		return data.Stamped{}, err
+		return record.Stamped{}, err
 	}
-	return data.Stamped{ID: eid, Event: e}, nil
+	return record.Stamped{ID: eid, Event: e}, nil
 }
 
 // queueAllBales marks every shown bale for a new audit.

@@ -1,13 +1,13 @@
 package publish
 
 import (
+	"baleassay/data/record"
 	"context"
 	"encoding/hex"
 	"errors"
 	"fmt"
 	"strings"
 
-	"baleassay/data"
 	"github.com/jackc/pgx/v5"
 )
 
@@ -35,7 +35,7 @@ var foldSQL = []string{
 	 SELECT f.entity, f.id, f.deleted FROM publish_fresh f
 	 WHERE NOT EXISTS (SELECT 1 FROM supersessions s WHERE s.entity = f.entity AND s.superseded = f.id)`,
 	// The shown value: the latest head in (clock, device, id) order that
-	// is not a tombstone, as data.EntityState.Current.
+	// is not a tombstone, as record.EntityState.Current.
 	`WITH touched AS (SELECT DISTINCT entity FROM publish_fresh),
 	 shown AS (
 	   SELECT DISTINCT ON (h.entity) h.entity, e.kind, h.event
@@ -94,10 +94,10 @@ func (p *publisher) publishBatch(ctx context.Context, items []item) (batchResult
 			ids[i] = items[i].id[:]
 		}
 		rows, _ := tx.Query(ctx, `SELECT id FROM events WHERE id = ANY($1)`, ids)
-		have := make(map[data.EventID]bool)
+		have := make(map[record.EventID]bool)
 		var id []byte
 		_, err := pgx.ForEachRow(rows, []any{&id}, func() error {
-			have[data.EventID(id)] = true
+			have[record.EventID(id)] = true
 			return nil
 		})
 		if err != nil {
@@ -155,7 +155,7 @@ func (p *publisher) fold(ctx context.Context, tx pgx.Tx, rows [][]any, res *batc
 	err = tx.QueryRow(ctx, mismatchSQL).Scan(&id, &ent, &kind, &have)
 	if err == nil {
 		return fmt.Errorf("%w: event %s is a %s event of entity %s, which the database has as a %s; nothing of this batch was written",
-			ErrKindMismatch, hex.EncodeToString(id), data.Kind(kind), ent, data.Kind(have))
+			ErrKindMismatch, hex.EncodeToString(id), record.Kind(kind), ent, record.Kind(have))
 	}
 	if !errors.Is(err, pgx.ErrNoRows) {
 		return err

@@ -7,22 +7,24 @@ import (
 	"strings"
 	"testing"
 
-	"baleassay/data"
 	"baleassay/data/publish/pgtest"
+	"baleassay/data/record"
+	"baleassay/data/store"
+
 	"github.com/jackc/pgx/v5"
 )
 
 // geoStore holds the demo plus sites spread over the globe, with clusters
 // at both poles and along the antimeridian and some sites at exactly the
 // same place (ties are ranked by id on both sides).
-func geoStore(t *testing.T) *data.Store {
+func geoStore(t *testing.T) *store.Store {
 	t.Helper()
 	s, _ := demoStore(t)
 	r := rand.New(rand.NewPCG(13, 6))
-	var evs []data.Event
+	var evs []record.Event
 	add := func(lat, lon float64) {
-		evs = append(evs, data.Event{Kind: data.KindSite, Site: &data.SiteRecord{
-			Name: fmt.Sprintf("Test site %d", len(evs)), Kind: data.SiteYard, Lat: lat, Lon: lon}})
+		evs = append(evs, record.Event{Kind: record.KindSite, Site: &record.SiteRecord{
+			Name: fmt.Sprintf("Test site %d", len(evs)), Kind: record.SiteYard, Lat: lat, Lon: lon}})
 	}
 	for range 1500 { // uniform on the sphere
 		add(math.Asin(2*r.Float64()-1)*180/math.Pi, 360*r.Float64()-180)
@@ -40,7 +42,7 @@ func geoStore(t *testing.T) *data.Store {
 		add(90, 0)
 		add(-12.5, 180)
 	}
-	if _, err := s.Save(evs, data.SaveOptions{Confirm: true}); err != nil {
+	if _, err := s.Save(evs, store.SaveOptions{Confirm: true}); err != nil {
 		t.Fatal(err)
 	}
 	return s
@@ -88,9 +90,9 @@ func TestNearestSitesMatchPostGIS(t *testing.T) {
 				return fmt.Errorf("more rows than the index gives")
 			}
 			w := want[i]
-			if data.EntityID(id) != w.ID || math.Abs(m/1000-w.Km) > 1e-8*w.Km+1e-6 {
+			if record.EntityID(id) != w.ID || math.Abs(m/1000-w.Km) > 1e-8*w.Km+1e-6 {
 				t.Errorf("near %v, rank %d: ST_Distance gives %s at %.9f km, the index %s at %.9f km",
-					p, i+1, data.EntityID(id), m/1000, w.ID, w.Km)
+					p, i+1, record.EntityID(id), m/1000, w.ID, w.Km)
 			}
 			i++
 			return nil
@@ -121,7 +123,7 @@ func TestWithinUsesSpatialIndex(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			want := map[data.EntityID]bool{}
+			want := map[record.EntityID]bool{}
 			for _, h := range hits {
 				want[h.ID] = true
 			}
@@ -134,8 +136,8 @@ func TestWithinUsesSpatialIndex(t *testing.T) {
 				t.Errorf("within %g km of %v: ST_DWithin %d sites, index %d", km, p, len(ids), len(want))
 			}
 			for _, id := range ids {
-				if !want[data.EntityID(id)] {
-					t.Errorf("within %g km of %v: ST_DWithin has %s, the index not", km, p, data.EntityID(id))
+				if !want[record.EntityID(id)] {
+					t.Errorf("within %g km of %v: ST_DWithin has %s, the index not", km, p, record.EntityID(id))
 				}
 			}
 		}

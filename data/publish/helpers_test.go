@@ -10,8 +10,12 @@ import (
 	"time"
 
 	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/demo"
+	"baleassay/data/geo"
 	"baleassay/data/publish/pgtest"
+	"baleassay/data/record"
+	"baleassay/data/store"
+
 	"github.com/jackc/pgx/v5"
 )
 
@@ -34,14 +38,14 @@ func testOptions() Options {
 	return o
 }
 
-func demoStore(t *testing.T) (*data.Store, data.DemoSummary) {
+func demoStore(t *testing.T) (*store.Store, demo.DemoSummary) {
 	t.Helper()
-	s, err := data.Open(t.TempDir())
+	s, err := store.Open(t.TempDir())
 	if err != nil {
 		t.Fatal(err)
 	}
 	t.Cleanup(func() { s.Close() })
-	sum, err := data.WriteDemo(s, data.DemoOptions{End: demoEnd})
+	sum, err := demo.WriteDemo(s, demo.DemoOptions{End: demoEnd})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -49,10 +53,10 @@ func demoStore(t *testing.T) (*data.Store, data.DemoSummary) {
 }
 
 // rawEvents lists a store's events in insertion order.
-func rawEvents(t *testing.T, s *data.Store) [][]byte {
+func rawEvents(t *testing.T, s *store.Store) [][]byte {
 	t.Helper()
 	var out [][]byte
-	err := s.ForEachRawSince(0, func(_ uint64, _ data.EventID, raw []byte) error {
+	err := s.ForEachRawSince(0, func(_ uint64, _ record.EventID, raw []byte) error {
 		out = append(out, bytes.Clone(raw))
 		return nil
 	})
@@ -116,10 +120,10 @@ func hashQueries(t *testing.T, conn *pgx.Conn, qs []string) [32]byte {
 // checkMatchesStore checks that the database holds exactly the events of
 // s and that its fold, views and audits give what the store and 'bale'
 // give for them.
-func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
+func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *store.Store) {
 	t.Helper()
 	ctx := ctxT(t)
-	// The event set: the same hash as data.Store.EventSetHash (id, 4-byte
+	// The event set: the same hash as store.Store.EventSetHash (id, 4-byte
 	// big-endian length, bytes, in id order).
 	want, err := s.EventSetHash()
 	if err != nil {
@@ -143,7 +147,7 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
 		current string
 		n       int
 	}
-	db := map[data.EntityID]*dbState{}
+	db := map[record.EntityID]*dbState{}
 	var (
 		ent [16]byte
 		ev  []byte
@@ -232,7 +236,7 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
 		lat, lon   float64
 		conflicted bool
 	}
-	dbSites := map[data.EntityID]siteRow{}
+	dbSites := map[record.EntityID]siteRow{}
 	var r siteRow
 	rows, _ = conn.Query(ctx, `SELECT id, name, lat, lon, conflicted FROM baleassay.sites`)
 	if _, err := pgx.ForEachRow(rows, []any{&ent, &r.name, &r.lat, &r.lon, &r.conflicted}, func() error {
@@ -252,7 +256,7 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
 	}
 
 	// Bale count, and pulls per bale, as 'bale bales list'.
-	bales, err := s.Bales(data.EntityID{})
+	bales, err := s.Bales(record.EntityID{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -267,7 +271,7 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
 	if nBales != len(bales) {
 		t.Errorf("bale count: database %d, store %d", nBales, len(bales))
 	}
-	dbPulls := map[data.EntityID]int64{}
+	dbPulls := map[record.EntityID]int64{}
 	var np int64
 	rows, _ = conn.Query(ctx, `SELECT id, pulls FROM baleassay.bales`)
 	if _, err := pgx.ForEachRow(rows, []any{&ent, &np}, func() error { dbPulls[ent] = np; return nil }); err != nil {
@@ -281,7 +285,7 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
 
 	// Audits: the target-PET share of every audited bale, as 'bale show'
 	// computes it, exactly (the same code on the same records).
-	dbPET := map[data.EntityID]float64{}
+	dbPET := map[record.EntityID]float64{}
 	var pet float64
 	rows, _ = conn.Query(ctx, `SELECT bale, target_pet FROM baleassay.bale_audits WHERE error IS NULL`)
 	if _, err := pgx.ForEachRow(rows, []any{&ent, &pet}, func() error { dbPET[ent] = pet; return nil }); err != nil {
@@ -289,7 +293,7 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
 	}
 	audited := 0
 	for _, b := range bales {
-		a, err := data.AuditOf(b.Bale, byBale[b.ID])
+		a, err := store.AuditOf(b.Bale, byBale[b.ID])
 		if err != nil || len(a.Pulls) == 0 {
 			continue
 		}
@@ -313,7 +317,7 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *data.Store) {
 	// Per site, the region summary of 'bale sites summary' for that one
 	// site: bales, audited bales, mean and SD of the target-PET share.
 	for _, sv := range sites {
-		sum, err := s.Summarize([]data.Hit{{IndexedSite: data.IndexedSite{ID: sv.ID}}}, time.Time{}, time.Time{})
+		sum, err := s.Summarize([]geo.Hit{{IndexedSite: geo.IndexedSite{ID: sv.ID}}}, time.Time{}, time.Time{})
 		if err != nil {
 			t.Fatal(err)
 		}

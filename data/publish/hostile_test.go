@@ -7,30 +7,32 @@ import (
 	"strings"
 	"testing"
 
-	"baleassay/data"
 	"baleassay/data/publish/pgtest"
+	"baleassay/data/record"
+	"baleassay/data/store"
+
 	"github.com/jackc/pgx/v5"
 )
 
 // sliceSource is a store stand-in: events in a given order, ids as given.
 type sliceSource struct {
-	dev  data.DeviceID
-	ids  []data.EventID
+	dev  record.DeviceID
+	ids  []record.EventID
 	raws [][]byte
 }
 
 func newSliceSource(dev byte, raws [][]byte) *sliceSource {
-	s := &sliceSource{dev: data.DeviceID{dev}}
+	s := &sliceSource{dev: record.DeviceID{dev}}
 	for _, r := range raws {
-		s.ids = append(s.ids, data.IDOf(r))
+		s.ids = append(s.ids, record.IDOf(r))
 		s.raws = append(s.raws, r)
 	}
 	return s
 }
 
-func (s *sliceSource) DeviceID() data.DeviceID { return s.dev }
+func (s *sliceSource) DeviceID() record.DeviceID { return s.dev }
 
-func (s *sliceSource) ForEachRawSince(after uint64, fn func(uint64, data.EventID, []byte) error) error {
+func (s *sliceSource) ForEachRawSince(after uint64, fn func(uint64, record.EventID, []byte) error) error {
 	for i := after; i < uint64(len(s.raws)); i++ {
 		if err := fn(i+1, s.ids[i], s.raws[i]); err != nil {
 			return err
@@ -107,9 +109,9 @@ func TestPublishKindMismatchRefused(t *testing.T) {
 		t.Fatal(err)
 	}
 	// A bale event that claims a site's entity id.
-	e := data.Event{Version: data.FormatVersion, Entity: sites[0].ID, Kind: data.KindBale, Device: data.DeviceID{9},
-		Clock: data.HLC{WallMs: demoEnd.UnixMilli()}, Bale: &data.BaleRecord{Site: sites[1].ID, ReceivedMs: demoEnd.UnixMilli(), GrossKg: 500}}
-	raw, err := data.EncodeEvent(e)
+	e := record.Event{Version: record.FormatVersion, Entity: sites[0].ID, Kind: record.KindBale, Device: record.DeviceID{9},
+		Clock: record.HLC{WallMs: demoEnd.UnixMilli()}, Bale: &record.BaleRecord{Site: sites[1].ID, ReceivedMs: demoEnd.UnixMilli(), GrossKg: 500}}
+	raw, err := record.EncodeEvent(e)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -181,7 +183,7 @@ func TestPublishBadOptions(t *testing.T) {
 func TestPublishWithoutPostGISAndNUL(t *testing.T) {
 	conn := pgtest.Conn(t)
 	s, _ := demoStore(t)
-	if _, err := s.Save([]data.Event{{Kind: data.KindSite, Site: &data.SiteRecord{Name: "Nul\x00Yard", Lat: 45.2, Lon: 4.9}}}, data.SaveOptions{Confirm: true}); err != nil {
+	if _, err := s.Save([]record.Event{{Kind: record.KindSite, Site: &record.SiteRecord{Name: "Nul\x00Yard", Lat: 45.2, Lon: 4.9}}}, store.SaveOptions{Confirm: true}); err != nil {
 		t.Fatal(err)
 	}
 	rep := mustPublish(t, conn, s, Options{PostGIS: PostGISOff})
@@ -197,7 +199,7 @@ func TestPublishWithoutPostGISAndNUL(t *testing.T) {
 	if err := conn.QueryRow(ctxT(t), `SELECT e.site_name, e.raw FROM baleassay.events e WHERE e.site_name LIKE 'Nul%'`).Scan(&name, &raw); err != nil {
 		t.Fatal(err)
 	}
-	e, err := data.DecodeEvent(raw)
+	e, err := record.DecodeEvent(raw)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,6 +1,7 @@
 package publish
 
 import (
+	"baleassay/data/record"
 	"bytes"
 	"context"
 	"errors"
@@ -8,7 +9,6 @@ import (
 	"strings"
 	"time"
 
-	"baleassay/data"
 	"github.com/jackc/pgx/v5"
 )
 
@@ -61,18 +61,18 @@ func (s Step) String() string {
 // Report says what a publish did.
 type Report struct {
 	Schema   SchemaInfo
-	Device   data.DeviceID // the publishing store
-	FromSeq  uint64        // events after this store sequence number were read
-	ToSeq    uint64        // the cursor now
-	Resumed  bool          // the cursor of an earlier publish was used
-	Restart  string        // why the cursor was not used, when it existed
-	Read     int           // events read from the store
-	Present  int           // of which the database already held
-	Sent     int           // of which sent
-	New      int           // of which added (Sent − New arrived meanwhile)
-	Batches  int           // transactions that carried events
-	Audits   int           // audits written
-	AuditErr int           // of which audits recording why no estimate was possible
+	Device   record.DeviceID // the publishing store
+	FromSeq  uint64          // events after this store sequence number were read
+	ToSeq    uint64          // the cursor now
+	Resumed  bool            // the cursor of an earlier publish was used
+	Restart  string          // why the cursor was not used, when it existed
+	Read     int             // events read from the store
+	Present  int             // of which the database already held
+	Sent     int             // of which sent
+	New      int             // of which added (Sent − New arrived meanwhile)
+	Batches  int             // transactions that carried events
+	Audits   int             // audits written
+	AuditErr int             // of which audits recording why no estimate was possible
 	Elapsed  time.Duration
 }
 
@@ -80,7 +80,7 @@ type publisher struct {
 	conn   *pgx.Conn
 	schema string
 	path   string
-	device data.DeviceID
+	device record.DeviceID
 }
 
 // enter prepares a transaction: the schema's search path and the

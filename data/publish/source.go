@@ -1,30 +1,29 @@
 package publish
 
 import (
+	"baleassay/data/record"
 	"bytes"
 	"encoding/json"
 	"errors"
 	"strings"
 	"time"
-
-	"baleassay/data"
 )
 
 // Source is the narrow view of a records store that publishing needs:
 // its device id (the cursor's key) and a walk over the stored events in
-// local insertion order. *data.Store has both.
+// local insertion order. *store.Store has both.
 type Source interface {
-	DeviceID() data.DeviceID
+	DeviceID() record.DeviceID
 	// ForEachRawSince calls fn for every event inserted after local
 	// sequence number afterSeq, in order; raw is valid only during the
 	// call. An error from fn stops the walk and is returned.
-	ForEachRawSince(afterSeq uint64, fn func(seq uint64, id data.EventID, raw []byte) error) error
+	ForEachRawSince(afterSeq uint64, fn func(seq uint64, id record.EventID, raw []byte) error) error
 }
 
 // item is one stored event read for a batch; raw is a copy.
 type item struct {
 	seq uint64
-	id  data.EventID
+	id  record.EventID
 	raw []byte
 }
 
@@ -35,7 +34,7 @@ var errBatchFull = errors.New("publish: batch full")
 func readBatch(src Source, afterSeq uint64, n int) ([]item, error) {
 	items := make([]item, 0, min(n, 4096))
 	var buf []byte
-	err := src.ForEachRawSince(afterSeq, func(seq uint64, id data.EventID, raw []byte) error {
+	err := src.ForEachRawSince(afterSeq, func(seq uint64, id record.EventID, raw []byte) error {
 		if len(items) == n {
 			return errBatchFull
 		}
@@ -64,13 +63,13 @@ var eventColumns = []string{
 }
 
 // decodeItem decodes a stored event strictly and checks it against its id.
-func decodeItem(it item) (data.Event, error) {
-	if data.IDOf(it.raw) != it.id {
-		return data.Event{}, &EventError{Seq: it.seq, ID: it.id.String(), Err: ErrCorrupt}
+func decodeItem(it item) (record.Event, error) {
+	if record.IDOf(it.raw) != it.id {
+		return record.Event{}, &EventError{Seq: it.seq, ID: it.id.String(), Err: ErrCorrupt}
 	}
-	e, err := data.DecodeEvent(it.raw)
+	e, err := record.DecodeEvent(it.raw)
 	if err != nil {
-		return data.Event{}, &EventError{Seq: it.seq, ID: it.id.String(), Err: err}
+		return record.Event{}, &EventError{Seq: it.seq, ID: it.id.String(), Err: err}
 	}
 	return e, nil
 }
@@ -78,7 +77,7 @@ func decodeItem(it item) (data.Event, error) {
 // rowOf gives the values of eventColumns for one event. Values that a
 // record leaves unset (a pull not weighed before sorting, a bale not
 // measured, a time of 0) are NULL.
-func rowOf(id data.EventID, raw []byte, e data.Event) ([]any, error) {
+func rowOf(id record.EventID, raw []byte, e record.Event) ([]any, error) {
 	sup := make([][]byte, len(e.Supersedes))
 	for i := range e.Supersedes {
 		sup[i] = e.Supersedes[i][:]

@@ -3,8 +3,10 @@ package publish
 import (
 	"testing"
 
-	"baleassay/data"
 	"baleassay/data/publish/pgtest"
+	"baleassay/data/record"
+	"baleassay/data/store"
+
 	"github.com/jackc/pgx/v5"
 )
 
@@ -13,12 +15,12 @@ import (
 // against a deletion), the second adds a pull, moves a pull to another
 // bale, deletes a pull and a bale, and adds a site. It returns both and a
 // third store holding their union, which is what the database must show.
-func twoLabs(t *testing.T) (a, b, union *data.Store) {
+func twoLabs(t *testing.T) (a, b, union *store.Store) {
 	t.Helper()
 	a, sum := demoStore(t)
 	raws := rawEvents(t, a)
-	open := func() *data.Store {
-		s, err := data.Open(t.TempDir())
+	open := func() *store.Store {
+		s, err := store.Open(t.TempDir())
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -29,12 +31,12 @@ func twoLabs(t *testing.T) (a, b, union *data.Store) {
 	if _, err := b.ApplyRaw(raws, nil); err != nil {
 		t.Fatal(err)
 	}
-	yes := data.SaveOptions{Confirm: true}
+	yes := store.SaveOptions{Confirm: true}
 	sites, err := a.Sites()
 	if err != nil {
 		t.Fatal(err)
 	}
-	bales, err := a.Bales(data.EntityID{})
+	bales, err := a.Bales(record.EntityID{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -42,14 +44,14 @@ func twoLabs(t *testing.T) (a, b, union *data.Store) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var site data.SiteView
+	var site store.SiteView
 	for _, s := range sites {
 		if s.ID != sum.ConflictSite {
 			site = s
 			break
 		}
 	}
-	must := func(_ data.EventID, err error) {
+	must := func(_ record.EventID, err error) {
 		t.Helper()
 		if err != nil {
 			t.Fatal(err)
@@ -59,13 +61,13 @@ func twoLabs(t *testing.T) (a, b, union *data.Store) {
 	sa, sb := site.Site, site.Site
 	sa.Notes = "lab A: weighbridge replaced"
 	sb.Lat += 0.01
-	must(a.Supersede(site.ID, data.Event{Site: &sa}, yes))
-	must(b.Supersede(site.ID, data.Event{Site: &sb}, yes))
+	must(a.Supersede(site.ID, record.Event{Site: &sa}, yes))
+	must(b.Supersede(site.ID, record.Event{Site: &sb}, yes))
 	// Lab A corrects a bale's mass; lab B deletes the same bale.
 	edited := bales[3]
 	be := edited.Bale
 	be.GrossKg += 12.5
-	must(a.Supersede(edited.ID, data.Event{Bale: &be}, yes))
+	must(a.Supersede(edited.ID, record.Event{Bale: &be}, yes))
 	must(b.Delete(edited.ID))
 	// Lab B deletes another bale outright.
 	must(b.Delete(bales[5].ID))
@@ -74,20 +76,20 @@ func twoLabs(t *testing.T) (a, b, union *data.Store) {
 	grow, from, to, shrink := bales[7], bales[8], bales[9], bales[10]
 	extra := byBale[grow.ID][0].Pull
 	extra.Label = "P9"
-	if _, err := b.Save([]data.Event{{Kind: data.KindPull, Pull: &extra}}, yes); err != nil {
+	if _, err := b.Save([]record.Event{{Kind: record.KindPull, Pull: &extra}}, yes); err != nil {
 		t.Fatal(err)
 	}
 	moved := byBale[from.ID][0]
 	mp := moved.Pull
 	mp.Bale, mp.Label = to.ID, "P8"
-	must(b.Supersede(moved.ID, data.Event{Pull: &mp}, yes))
+	must(b.Supersede(moved.ID, record.Event{Pull: &mp}, yes))
 	must(b.Delete(byBale[shrink.ID][1].ID))
 	// And a new site.
-	if _, err := b.Save([]data.Event{{Kind: data.KindSite, Site: &data.SiteRecord{Name: "Quillon Ferry Depot", Kind: data.SiteDepot, Lat: 45.31, Lon: 4.6}}}, yes); err != nil {
+	if _, err := b.Save([]record.Event{{Kind: record.KindSite, Site: &record.SiteRecord{Name: "Quillon Ferry Depot", Kind: record.SiteDepot, Lat: 45.31, Lon: 4.6}}}, yes); err != nil {
 		t.Fatal(err)
 	}
 	union = open()
-	for _, s := range []*data.Store{a, b} {
+	for _, s := range []*store.Store{a, b} {
 		if _, err := union.ApplyRaw(rawEvents(t, s), nil); err != nil {
 			t.Fatal(err)
 		}
@@ -108,7 +110,7 @@ func twoLabs(t *testing.T) (a, b, union *data.Store) {
 func TestPublishTwoLabs(t *testing.T) {
 	a, b, union := twoLabs(t)
 	var states [2][32]byte
-	for i, order := range [][]*data.Store{{a, b}, {b, a}} {
+	for i, order := range [][]*store.Store{{a, b}, {b, a}} {
 		conn := pgtest.Conn(t)
 		first := mustPublish(t, conn, order[0], testOptions())
 		second := mustPublish(t, conn, order[1], testOptions())
@@ -136,7 +138,7 @@ func TestPublishTwoLabs(t *testing.T) {
 	}
 }
 
-func countEvents(t *testing.T, s *data.Store) int {
+func countEvents(t *testing.T, s *store.Store) int {
 	t.Helper()
 	n, err := s.LastSeq()
 	if err != nil {
@@ -147,13 +149,13 @@ func countEvents(t *testing.T, s *data.Store) int {
 
 // checkConflictsView compares the conflicts view with 'bale conflicts':
 // the same entities with the same heads in the same order.
-func checkConflictsView(t *testing.T, conn *pgx.Conn, s *data.Store) {
+func checkConflictsView(t *testing.T, conn *pgx.Conn, s *store.Store) {
 	t.Helper()
 	conf, err := s.Conflicts()
 	if err != nil {
 		t.Fatal(err)
 	}
-	got := map[data.EntityID][][]byte{}
+	got := map[record.EntityID][][]byte{}
 	var (
 		ent [16]byte
 		evs [][]byte
