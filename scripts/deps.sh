@@ -5,6 +5,8 @@ set -euo pipefail
 
 # python3-cbor2: independent CBOR decoder for the sync-file interop test.
 packages=(python3 python3-cbor2)
+# PostgreSQL with PostGIS: the server the publish tests start (scripts/pgtest.sh).
+packages+=(postgresql postgresql-15-postgis-3)
 
 missing=()
 for p in "${packages[@]}"; do
@@ -22,5 +24,5 @@ else
   exit 1
 fi
 echo "baleassay: installing ${missing[*]}" >&2
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" update -q
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" install -y -q "${missing[@]}"
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 update -q
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 install -y -q "${missing[@]}"
