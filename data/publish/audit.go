@@ -50,8 +50,10 @@ func auditInputs(bale record.EventID, pulls []record.EventID) []byte {
 var auditColumns = []string{
 	"bale", "inputs", "pulls", "sampled_kg", "bale_kg", "confidence", "method",
 	"target_pet", "target_pet_low", "target_pet_high", "other_plastics", "non_plastics", "moisture_fines", "hazards",
-	"hazard_found", "spec", "verdict", "grade", "report", "error",
+	"hazard_found", "categories", "spec", "verdict", "grade", "limiting", "more_pulls", "error",
 }
+
+var auditErrCol = len(auditColumns) - 1
 
 // auditRow computes one bale's audit as 'bale show' and 'bale sites
 // summary' do (store.AuditOf, then assess.Assess with the default options:
@@ -73,7 +75,7 @@ func auditRow(bale record.EntityID, head record.Stamped, pulls []store.PullView)
 		return bytes.Compare(pulls[i].ID[:], pulls[j].ID[:]) < 0
 	})
 	fail := func(err error) ([]any, bool) {
-		row[19] = text(err.Error())
+		row[auditErrCol] = text(err.Error())
 		return row, true
 	}
 	a, err := store.AuditOf(*head.Bale, pulls)
@@ -92,8 +94,14 @@ func auditRow(bale record.EntityID, head record.Stamped, pulls []store.PullView)
 	if err != nil {
 		return fail(err)
 	}
-	rep := assess.NewReport(res, &sv, assess.Advise(res, &sv, assess.DefaultRelPrecision))
-	js, err := json.Marshal(rep)
+	adv := assess.Advise(res, &sv, assess.DefaultRelPrecision)
+	found := map[string]float64{}
+	for _, c := range res.Categories {
+		if c.Kg > 0 {
+			found[c.Key] = c.Fraction
+		}
+	}
+	cats, err := json.Marshal(found)
 	if err != nil {
 		return fail(err)
 	}
@@ -108,7 +116,10 @@ func auditRow(bale record.EntityID, head record.Stamped, pulls []store.PullView)
 	row[12] = res.Group(assess.GroupMoistureFines).Fraction
 	row[13] = res.Group(assess.GroupHazards).Fraction
 	row[14] = len(res.HazardPulls) > 0
-	row[15], row[16], row[17], row[18] = sv.Spec, sv.Verdict.String(), optText(sv.Grade), js
+	row[15], row[16], row[17], row[18], row[19] = cats, sv.Spec, sv.Verdict.String(), optText(sv.Grade), optText(adv.Item)
+	if adv.Known {
+		row[20] = adv.More
+	}
 	for _, v := range row[3:14] {
 		if f, ok := v.(float64); ok && (math.IsNaN(f) || math.IsInf(f, 0)) {
 			return fail(fmt.Errorf("assess gave a non-finite figure"))
@@ -224,7 +235,7 @@ func auditChunkRows(ctx context.Context, tx pgx.Tx, bales [][16]byte) (out [][]a
 		if !ok {
 			continue
 		}
-		if row[19] != nil {
+		if row[auditErrCol] != nil {
 			errs++
 		}
 		out = append(out, row)

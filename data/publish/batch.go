@@ -15,14 +15,32 @@ import (
 const tempTablesSQL = `
 CREATE TEMP TABLE IF NOT EXISTS publish_stage (LIKE events) ON COMMIT DELETE ROWS;
 CREATE TEMP TABLE IF NOT EXISTS publish_fresh (
-    id bytea, entity uuid, kind smallint, deleted boolean, supersedes bytea[]) ON COMMIT DELETE ROWS;
+    id bytea, entity uuid, kind smallint, deleted boolean, supersedes bytea[],
+    clock_ms bigint, clock_logical bigint, device bytea) ON COMMIT DELETE ROWS;
 CREATE TEMP TABLE IF NOT EXISTS publish_audits (LIKE audits) ON COMMIT DELETE ROWS;`
 
-// The fold of a batch, run after the new events are in publish_fresh.
-// Each statement touches only the entities of the batch.
+// insertFresh adds the staged events the database lacks and keeps them in
+// publish_fresh for the fold.
+var insertFresh = fmt.Sprintf(`WITH ins AS (
+	INSERT INTO events (%[1]s) SELECT %[1]s FROM publish_stage
+	ON CONFLICT (id) DO NOTHING
+	RETURNING id, entity, kind, deleted, supersedes, clock_ms, clock_logical, device)
+INSERT INTO publish_fresh SELECT * FROM ins`, strings.Join(eventColumns, ", "))
+
+// mismatchSQL finds a new event whose entity has another kind, in the
+// database (every stored entity has a head, and all its events share a
+// kind) or in the batch itself.
+const mismatchSQL = `(SELECT f.id, f.entity::text, f.kind, h.kind FROM publish_fresh f
+  JOIN heads h ON h.entity = f.entity WHERE h.kind <> f.kind LIMIT 1)
+UNION ALL
+(SELECT (array_agg(f.id))[1], f.entity::text, min(f.kind), max(f.kind) FROM publish_fresh f
+  GROUP BY f.entity HAVING count(DISTINCT f.kind) > 1 LIMIT 1)
+LIMIT 1`
+
+// The fold of a batch, run after the new events are in publish_fresh and
+// their kinds are checked. Each statement touches only the batch's
+// entities.
 var foldSQL = []string{
-	// The kind of each new entity; a mismatch is checked just after.
-	`INSERT INTO entities (entity, kind) SELECT DISTINCT entity, kind FROM publish_fresh ON CONFLICT (entity) DO NOTHING`,
 	`INSERT INTO supersessions (entity, superseded, superseding)
 	 SELECT f.entity, s.id, f.id FROM publish_fresh f CROSS JOIN LATERAL unnest(f.supersedes) AS s(id)
 	 ON CONFLICT DO NOTHING`,
@@ -31,25 +49,22 @@ var foldSQL = []string{
 	 WHERE h.entity = f.entity AND h.event = s.id`,
 	// A new event is a head unless an event of its entity, stored or new,
 	// supersedes it (it may arrive after its successor).
-	`INSERT INTO heads (entity, event, deleted)
-	 SELECT f.entity, f.id, f.deleted FROM publish_fresh f
+	`INSERT INTO heads (entity, event, deleted, kind, clock_ms, clock_logical, device)
+	 SELECT f.entity, f.id, f.deleted, f.kind, f.clock_ms, f.clock_logical, f.device FROM publish_fresh f
 	 WHERE NOT EXISTS (SELECT 1 FROM supersessions s WHERE s.entity = f.entity AND s.superseded = f.id)`,
-	// The shown value: the latest head in (clock, device, id) order that
-	// is not a tombstone, as record.EntityState.Current.
-	`WITH touched AS (SELECT DISTINCT entity FROM publish_fresh),
+	// The shown value, as record.EntityState.Current: the latest head in
+	// (clock, device, id) order that is not a tombstone; an entity whose
+	// heads are all tombstones is deleted and not shown.
+	`WITH ranked AS (
+	   SELECT DISTINCT ON (h.entity) h.entity, h.kind, h.event, h.deleted, count(*) OVER (PARTITION BY h.entity) AS n
+	   FROM heads h WHERE h.entity IN (SELECT entity FROM publish_fresh)
+	   ORDER BY h.entity, h.deleted, h.clock_ms DESC, h.clock_logical DESC, h.device DESC, h.event DESC),
 	 shown AS (
-	   SELECT DISTINCT ON (h.entity) h.entity, e.kind, h.event
-	   FROM heads h JOIN events e ON e.id = h.event
-	   WHERE h.entity IN (SELECT entity FROM touched) AND NOT h.deleted
-	   ORDER BY h.entity, e.clock_ms DESC, e.clock_logical DESC, e.device DESC, h.event DESC),
-	 n AS (SELECT entity, count(*)::integer AS heads FROM heads WHERE entity IN (SELECT entity FROM touched) GROUP BY entity)
-	 INSERT INTO current (entity, kind, event, heads)
-	 SELECT s.entity, s.kind, s.event, n.heads FROM shown s JOIN n USING (entity)
-	 ON CONFLICT (entity) DO UPDATE SET kind = excluded.kind, event = excluded.event, heads = excluded.heads
-	 WHERE (current.event, current.heads) IS DISTINCT FROM (excluded.event, excluded.heads)`,
-	// Entities whose every head is a tombstone are deleted: not shown.
-	`DELETE FROM current c USING (SELECT DISTINCT entity FROM publish_fresh) t
-	 WHERE c.entity = t.entity AND NOT EXISTS (SELECT 1 FROM heads h WHERE h.entity = c.entity AND NOT h.deleted)`,
+	   INSERT INTO current (entity, kind, event, heads)
+	   SELECT entity, kind, event, n FROM ranked WHERE NOT deleted
+	   ON CONFLICT (entity) DO UPDATE SET event = excluded.event, heads = excluded.heads
+	   WHERE (current.event, current.heads) IS DISTINCT FROM (excluded.event, excluded.heads))
+	 DELETE FROM current c USING ranked r WHERE c.entity = r.entity AND r.deleted`,
 	// Bales whose audit may have changed: new bale events, and every bale
 	// any event of a changed pull names (a pull may move or be deleted).
 	`INSERT INTO audit_pending (bale)
@@ -59,17 +74,6 @@ var foldSQL = []string{
 	 WHERE e.entity IN (SELECT entity FROM publish_fresh WHERE kind = 3) AND e.pull_bale IS NOT NULL
 	 ON CONFLICT DO NOTHING`,
 }
-
-const insertFreshSQL = `WITH ins AS (
-	INSERT INTO events (` + "%s" + `) SELECT ` + "%s" + ` FROM publish_stage
-	ON CONFLICT (id) DO NOTHING
-	RETURNING id, entity, kind, deleted, supersedes)
-INSERT INTO publish_fresh SELECT id, entity, kind, deleted, supersedes FROM ins`
-
-var insertFresh = fmt.Sprintf(insertFreshSQL, strings.Join(eventColumns, ", "), strings.Join(eventColumns, ", "))
-
-const mismatchSQL = `SELECT f.id, f.entity::text, f.kind, en.kind FROM publish_fresh f
-JOIN entities en ON en.entity = f.entity WHERE en.kind <> f.kind LIMIT 1`
 
 const cursorSQL = `INSERT INTO publish_cursor (store_device, last_seq, last_event, updated_at) VALUES ($1, $2, $3, now())
 ON CONFLICT (store_device) DO UPDATE SET last_seq = excluded.last_seq, last_event = excluded.last_event, updated_at = now()`
@@ -144,9 +148,6 @@ func (p *publisher) fold(ctx context.Context, tx pgx.Tx, rows [][]any, res *batc
 	if res.added == 0 {
 		return nil
 	}
-	if _, err := tx.Exec(ctx, foldSQL[0]); err != nil {
-		return fmt.Errorf("entities: %w", err)
-	}
 	var (
 		id         []byte
 		ent        string
@@ -160,9 +161,9 @@ func (p *publisher) fold(ctx context.Context, tx pgx.Tx, rows [][]any, res *batc
 	if !errors.Is(err, pgx.ErrNoRows) {
 		return err
 	}
-	for i, q := range foldSQL[1:] {
+	for i, q := range foldSQL {
 		if _, err := tx.Exec(ctx, q); err != nil {
-			return fmt.Errorf("fold step %d: %w", i+2, err)
+			return fmt.Errorf("fold step %d: %w", i+1, err)
 		}
 	}
 	return nil

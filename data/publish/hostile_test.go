@@ -119,6 +119,22 @@ func TestPublishKindMismatchRefused(t *testing.T) {
 	if !errors.Is(err, ErrKindMismatch) {
 		t.Fatalf("want ErrKindMismatch, got %v", err)
 	}
+	// Two new events of one new entity with different kinds, in one batch.
+	fresh := record.EntityID{0x01, 0x9a, 7}
+	e.Entity = fresh
+	rawBale, err := record.EncodeEvent(e)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e.Kind, e.Bale, e.Site = record.KindSite, nil, &record.SiteRecord{Name: "Twice Yard", Lat: 45, Lon: 4}
+	rawSite, err := record.EncodeEvent(e)
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = Publish(ctxT(t), conn, newSliceSource(3, [][]byte{rawSite, rawBale}), testOptions())
+	if !errors.Is(err, ErrKindMismatch) {
+		t.Fatalf("one batch, two kinds: want ErrKindMismatch, got %v", err)
+	}
 	if dbHash(t, conn) != before {
 		t.Fatal("a refused batch changed the database")
 	}

@@ -15,6 +15,10 @@ import (
 // DefaultSchema is the PostgreSQL schema (namespace) published into.
 const DefaultSchema = "baleassay"
 
+// analyzeAfter is the number of new events after which a publish
+// refreshes the planner's statistics itself.
+const analyzeAfter = 1000
+
 // DefaultBatch is the number of store events per transaction.
 const DefaultBatch = 10_000
 
@@ -159,16 +163,17 @@ func Publish(ctx context.Context, conn *pgx.Conn, src Source, o Options) (rep Re
 			return rep, err
 		}
 	}
-	err = p.runAudits(ctx, &rep, o.Progress)
-	if err != nil {
-		return rep, err
-	}
-	if rep.New > 0 {
-		// Fresh statistics, so that the planner sees the new rows (e.g.
-		// picks the spatial index) before autovacuum gets round to it.
+	if rep.New >= analyzeAfter {
+		// Fresh statistics, so that the planner sees the new rows (for
+		// the audits' reads just below, and the spatial index) before
+		// autovacuum gets round to it.
 		if _, err := conn.Exec(ctx, "ANALYZE "+analyzeTables(o.Schema)); err != nil {
 			return rep, err
 		}
+	}
+	err = p.runAudits(ctx, &rep, o.Progress)
+	if err != nil {
+		return rep, err
 	}
 	_, err = conn.Exec(ctx, `INSERT INTO `+pgx.Identifier{o.Schema, "publish_log"}.Sanitize()+
 		` (store_device, from_seq, to_seq, read, new_events, audits) VALUES ($1, $2, $3, $4, $5, $6)`,
@@ -178,7 +183,7 @@ func Publish(ctx context.Context, conn *pgx.Conn, src Source, o Options) (rep Re
 
 func analyzeTables(schema string) string {
 	var names []string
-	for _, t := range []string{"events", "entities", "supersessions", "heads", "current", "audits"} {
+	for _, t := range []string{"events", "supersessions", "heads", "current", "audits"} {
 		names = append(names, pgx.Identifier{schema, t}.Sanitize())
 	}
 	return strings.Join(names, ", ")

@@ -51,12 +51,6 @@ CREATE INDEX events_entity ON events (entity);
 CREATE INDEX events_pull_bale ON events (pull_bale) WHERE pull_bale IS NOT NULL;
 CREATE INDEX events_bale_site ON events (bale_site) WHERE bale_site IS NOT NULL;
 
--- The kind of every entity: an event whose kind differs is refused.
-CREATE TABLE entities (
-    entity uuid PRIMARY KEY,
-    kind   smallint NOT NULL
-);
-
 -- superseding lists superseded in its supersedes; only edges within one
 -- entity count.
 CREATE TABLE supersessions (
@@ -66,11 +60,17 @@ CREATE TABLE supersessions (
     PRIMARY KEY (entity, superseded, superseding)
 );
 
--- Heads: the events that no event of the same entity supersedes.
+-- Heads: the events that no event of the same entity supersedes, with
+-- what choosing the shown one needs (copied from events). Every entity
+-- with events has at least one head, and all its events share a kind.
 CREATE TABLE heads (
-    entity  uuid NOT NULL,
-    event   bytea NOT NULL,
-    deleted boolean NOT NULL,
+    entity        uuid NOT NULL,
+    event         bytea NOT NULL,
+    deleted       boolean NOT NULL,
+    kind          smallint NOT NULL,
+    clock_ms      bigint NOT NULL,
+    clock_logical bigint NOT NULL,
+    device        bytea NOT NULL,
     PRIMARY KEY (entity, event)
 );
 
@@ -104,10 +104,12 @@ CREATE TABLE audits (
     moisture_fines  double precision,
     hazards         double precision,
     hazard_found    boolean,
-    spec            text,
-    verdict         text,
+    categories      jsonb,                    -- {category key: mass share} of the categories found
+    spec            text,                     -- the spec judged against
+    verdict         text,                     -- pass, fail or undecided
     grade           text,
-    report          jsonb,                    -- the JSON of 'bale assess --json'
+    limiting        text,                     -- the item that governs the verdict
+    more_pulls      integer,                  -- pulls the advice asks for beyond those taken
     error           text,                     -- why no estimate could be made
     PRIMARY KEY (bale, inputs)
 );

@@ -1,0 +1,145 @@
+package publish
+
+import (
+	"context"
+	"os"
+	"strconv"
+	"syscall"
+	"testing"
+	"time"
+
+	"baleassay/data/publish/pgtest"
+	"github.com/jackc/pgx/v5"
+)
+
+// BenchmarkPublish publishes a generated national scenario
+// (BALE_PUBLISH_EVENTS events, 100,000 by default; 'make bench-publish'
+// runs 1,000,000) from a bbolt store into an empty database, against the
+// baseline of the same run: a plain COPY of the same (id, raw) bytes, read
+// from the same store in the same batches, one transaction per batch,
+// into a table without indexes (copy-raw) and with the primary key
+// (copy-raw-pk). publish-again is the next publish with nothing new;
+// publish-full walks the whole store again and finds every event present.
+// Run with -benchtime 1x.
+func BenchmarkPublish(b *testing.B) {
+	n := 100_000
+	if v := os.Getenv("BALE_PUBLISH_EVENTS"); v != "" {
+		var err error
+		if n, err = strconv.Atoi(v); err != nil || n < 1000 {
+			b.Fatalf("BALE_PUBLISH_EVENTS=%q: give a number of events of at least 1000", v)
+		}
+	}
+	pgtest.ServerDSN(b)
+	t0 := time.Now()
+	raws := bigScenario(b, n)
+	s := storeOf(b, raws)
+	var bytes int64
+	for _, r := range raws {
+		bytes += int64(len(r))
+	}
+	b.Logf("scenario: %d events, %.1f MB of CBOR, stored in %.1f s", len(raws), float64(bytes)/1e6, time.Since(t0).Seconds())
+	ctx := context.Background()
+	secs := map[string]float64{}
+	report := func(b *testing.B, name string, d time.Duration) {
+		secs[name] = d.Seconds()
+		b.ReportMetric(float64(len(raws))/d.Seconds(), "events/s")
+		b.ReportMetric(float64(bytes)/1e6/d.Seconds(), "MB/s")
+		b.ReportMetric(0, "ns/op")
+	}
+	copyRaw := func(withPK bool) func(b *testing.B) {
+		return func(b *testing.B) {
+			for range b.N {
+				conn := pgtest.Conn(b)
+				ddl := `CREATE TABLE raw_events (id bytea, raw bytea)`
+				if withPK {
+					ddl = `CREATE TABLE raw_events (id bytea PRIMARY KEY, raw bytea)`
+				}
+				if _, err := conn.Exec(ctx, ddl); err != nil {
+					b.Fatal(err)
+				}
+				start := time.Now()
+				var after uint64
+				for {
+					items, err := readBatch(s, after, DefaultBatch)
+					if err != nil {
+						b.Fatal(err)
+					}
+					if len(items) == 0 {
+						break
+					}
+					rows := make([][]any, len(items))
+					for i, it := range items {
+						rows[i] = []any{it.id[:], it.raw}
+					}
+					err = pgx.BeginFunc(ctx, conn, func(tx pgx.Tx) error {
+						_, err := tx.CopyFrom(ctx, pgx.Identifier{"raw_events"}, []string{"id", "raw"}, pgx.CopyFromRows(rows))
+						return err
+					})
+					if err != nil {
+						b.Fatal(err)
+					}
+					after = items[len(items)-1].seq
+				}
+				name := "copy-raw"
+				if withPK {
+					name = "copy-raw-pk"
+				}
+				report(b, name, time.Since(start))
+			}
+		}
+	}
+	b.Run("copy-raw", copyRaw(false))
+	b.Run("copy-raw-pk", copyRaw(true))
+	b.Run("publish", func(b *testing.B) {
+		for range b.N {
+			conn := pgtest.Conn(b)
+			rep, err := Publish(ctx, conn, s, Options{})
+			if err != nil {
+				b.Fatal(err)
+			}
+			if rep.New != len(raws) {
+				b.Fatalf("%d of %d events published", rep.New, len(raws))
+			}
+			report(b, "publish", rep.Elapsed)
+			b.Logf("publish: %d audits, %d batches; %s", rep.Audits, rep.Batches, sizes(b, conn, len(raws)))
+			again, err := Publish(ctx, conn, s, Options{})
+			if err != nil || again.Read != 0 {
+				b.Fatalf("publish again: %+v %v", again, err)
+			}
+			full, err := Publish(ctx, conn, s, Options{Full: true})
+			if err != nil || full.Present != len(raws) || full.New != 0 {
+				b.Fatalf("publish full: %+v %v", full, err)
+			}
+			secs["again"], secs["full"] = again.Elapsed.Seconds(), full.Elapsed.Seconds()
+		}
+	})
+	var ru syscall.Rusage
+	_ = syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
+	b.Logf("publish %.1f s = %.2f× copy-raw (%.1f s), %.2f× copy-raw-pk (%.1f s); publish again (nothing new) %.3f s; full walk, all present %.1f s; peak RSS of the Go process %.0f MB",
+		secs["publish"], secs["publish"]/secs["copy-raw"], secs["copy-raw"], secs["publish"]/secs["copy-raw-pk"], secs["copy-raw-pk"],
+		secs["again"], secs["full"], float64(ru.Maxrss)/1024)
+}
+
+// sizes reports the database's size per table and per event.
+func sizes(tb testing.TB, conn *pgx.Conn, events int) string {
+	tb.Helper()
+	var total int64
+	var detail string
+	rows, _ := conn.Query(context.Background(), `SELECT c.relname, pg_total_relation_size(c.oid)
+		FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace
+		WHERE n.nspname = 'baleassay' AND c.relkind = 'r' ORDER BY 2 DESC`)
+	var (
+		name string
+		size int64
+	)
+	if _, err := pgx.ForEachRow(rows, []any{&name, &size}, func() error {
+		total += size
+		if size > 1<<20 {
+			detail += " " + name + " " + strconv.FormatInt(size>>20, 10) + " MB,"
+		}
+		return nil
+	}); err != nil {
+		tb.Fatal(err)
+	}
+	return "database " + strconv.FormatInt(total>>20, 10) + " MB (" + strconv.FormatInt(total/int64(events), 10) + " B per event):" + detail
+}
