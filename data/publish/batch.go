@@ -83,19 +83,68 @@ type batchResult struct {
 	present, sent, added int
 }
 
+// batch is a run of store events with their rows for table events,
+// prepared while the previous batch is in the database.
+type batch struct {
+	items []item
+	rows  [][]any // rows[i] is items[i]'s
+	err   error
+}
+
+// prefetch reads and decodes batches of n events after afterSeq, one
+// ahead of the consumer; an empty batch ends the stream. It stops when
+// ctx is done.
+func prefetch(ctx context.Context, src Source, afterSeq uint64, n int) <-chan batch {
+	out := make(chan batch, 1)
+	go func() {
+		defer close(out)
+		for {
+			b := prepare(src, afterSeq, n)
+			select {
+			case out <- b:
+			case <-ctx.Done():
+				return
+			}
+			if b.err != nil || len(b.items) == 0 {
+				return
+			}
+			afterSeq = b.items[len(b.items)-1].seq
+		}
+	}()
+	return out
+}
+
+func prepare(src Source, afterSeq uint64, n int) batch {
+	items, err := readBatch(src, afterSeq, n)
+	if err != nil {
+		return batch{err: fmt.Errorf("read the store: %w", err)}
+	}
+	b := batch{items: items, rows: make([][]any, len(items))}
+	for i, it := range items {
+		e, err := decodeItem(it)
+		if err != nil {
+			return batch{err: err}
+		}
+		if b.rows[i], err = rowOf(it.id, it.raw, e); err != nil {
+			return batch{err: &EventError{Seq: it.seq, ID: it.id.String(), Err: err}}
+		}
+	}
+	return b
+}
+
 // publishBatch writes one batch in one transaction: it asks which events
 // the database already holds, copies the others, folds them and moves the
 // store's cursor. Either all of it commits or nothing does.
-func (p *publisher) publishBatch(ctx context.Context, items []item) (batchResult, error) {
+func (p *publisher) publishBatch(ctx context.Context, b batch) (batchResult, error) {
 	var res batchResult
 	err := pgx.BeginFunc(ctx, p.conn, func(tx pgx.Tx) error {
 		res = batchResult{}
 		if err := p.enter(ctx, tx); err != nil {
 			return err
 		}
-		ids := make([][]byte, len(items))
-		for i := range items {
-			ids[i] = items[i].id[:]
+		ids := make([][]byte, len(b.items))
+		for i := range b.items {
+			ids[i] = b.items[i].id[:]
 		}
 		rows, _ := tx.Query(ctx, `SELECT id FROM events WHERE id = ANY($1)`, ids)
 		have := make(map[record.EventID]bool)
@@ -108,20 +157,11 @@ func (p *publisher) publishBatch(ctx context.Context, items []item) (batchResult
 			return fmt.Errorf("ask which events the database holds: %w", err)
 		}
 		res.present = len(have)
-		out := make([][]any, 0, len(items)-len(have))
-		for _, it := range items {
-			if have[it.id] {
-				continue
+		out := make([][]any, 0, len(b.items)-len(have))
+		for i, it := range b.items {
+			if !have[it.id] {
+				out = append(out, b.rows[i])
 			}
-			e, err := decodeItem(it)
-			if err != nil {
-				return err
-			}
-			row, err := rowOf(it.id, it.raw, e)
-			if err != nil {
-				return &EventError{Seq: it.seq, ID: it.id.String(), Err: err}
-			}
-			out = append(out, row)
 		}
 		res.sent = len(out)
 		if len(out) > 0 {
@@ -129,7 +169,7 @@ func (p *publisher) publishBatch(ctx context.Context, items []item) (batchResult
 				return err
 			}
 		}
-		last := items[len(items)-1]
+		last := b.items[len(b.items)-1]
 		_, err = tx.Exec(ctx, cursorSQL, p.device[:], int64(last.seq), last.id[:])
 		return err
 	})

@@ -101,7 +101,9 @@ func BenchmarkPublish(b *testing.B) {
 				b.Fatalf("%d of %d events published", rep.New, len(raws))
 			}
 			report(b, "publish", rep.Elapsed)
-			b.Logf("publish: %d audits, %d batches; %s", rep.Audits, rep.Batches, sizes(b, conn, len(raws)))
+			b.Logf("publish: events %.1f s (%.0f events/s), statistics and audits %.1f s (%d audits, %.0f bales/s); %d batches; %s",
+				rep.EventTime.Seconds(), float64(rep.New)/rep.EventTime.Seconds(), rep.AuditTime.Seconds(), rep.Audits,
+				float64(rep.Audits)/rep.AuditTime.Seconds(), rep.Batches, sizes(b, conn, len(raws)))
 			again, err := Publish(ctx, conn, s, Options{})
 			if err != nil || again.Read != 0 {
 				b.Fatalf("publish again: %+v %v", again, err)

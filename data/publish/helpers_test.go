@@ -351,11 +351,11 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *store.Store) {
 		if sum.Audited > 0 {
 			// Summed in a different order (SQL avg against Welford):
 			// agreement to 1e-12 relative, well inside what is printed.
-			if mean == nil || !close(*mean, sum.TargetPET.Mean, 1e-12) {
+			if mean == nil || !closeTo(*mean, sum.TargetPET.Mean, 1e-12) {
 				t.Errorf("site %q target-PET mean: database %v, bale %v", sv.Site.Name, deref(mean), sum.TargetPET.Mean)
 			}
 		}
-		if sum.Audited > 1 && (sd == nil || !close(*sd, sum.TargetPET.SD, 1e-9)) {
+		if sum.Audited > 1 && (sd == nil || !closeTo(*sd, sum.TargetPET.SD, 1e-9)) {
 			t.Errorf("site %q target-PET SD: database %v, bale %v", sv.Site.Name, deref(sd), sum.TargetPET.SD)
 		}
 	}
@@ -382,7 +382,7 @@ func equalStrings(a, b []string) bool {
 	return true
 }
 
-func close(a, b, rel float64) bool {
+func closeTo(a, b, rel float64) bool {
 	return math.Abs(a-b) <= rel*math.Max(math.Abs(a), math.Abs(b))+1e-15
 }
 

@@ -78,6 +78,9 @@ type Report struct {
 	Audits   int             // audits written
 	AuditErr int             // of which audits recording why no estimate was possible
 	Elapsed  time.Duration
+	// EventTime is the time spent on the events (the batches), AuditTime
+	// on the statistics and the audits.
+	EventTime, AuditTime time.Duration
 }
 
 type publisher struct {
@@ -133,18 +136,21 @@ func Publish(ctx context.Context, conn *pgx.Conn, src Source, o Options) (rep Re
 		return rep, err
 	}
 	rep.FromSeq, rep.ToSeq = after, after
-	for {
-		items, err := readBatch(src, after, o.Batch)
-		if err != nil {
-			return rep, fmt.Errorf("read the store: %w", err)
+	tEvents := time.Now()
+	pctx, stop := context.WithCancel(ctx)
+	defer stop()
+	for b := range prefetch(pctx, src, after, o.Batch) {
+		if b.err != nil {
+			return rep, b.err // the batch with a bad event is refused whole
 		}
-		if len(items) == 0 {
+		if len(b.items) == 0 {
 			break
 		}
-		res, err := p.publishBatch(ctx, items)
+		res, err := p.publishBatch(ctx, b)
 		if err != nil {
 			return rep, err
 		}
+		items := b.items
 		after = items[len(items)-1].seq
 		rep.ToSeq = after
 		rep.Read += len(items)
@@ -158,6 +164,8 @@ func Publish(ctx context.Context, conn *pgx.Conn, src Source, o Options) (rep Re
 			o.Progress(Progress{Step: StepEvents, Seq: after, Read: rep.Read, New: rep.New})
 		}
 	}
+	rep.EventTime = time.Since(tEvents)
+	tAudits := time.Now()
 	if o.Reaudit {
 		if err := p.queueAllBales(ctx); err != nil {
 			return rep, err
@@ -172,6 +180,7 @@ func Publish(ctx context.Context, conn *pgx.Conn, src Source, o Options) (rep Re
 		}
 	}
 	err = p.runAudits(ctx, &rep, o.Progress)
+	rep.AuditTime = time.Since(tAudits)
 	if err != nil {
 		return rep, err
 	}
