@@ -27,25 +27,26 @@ var allowed = map[string][]string{
 	"assess":                {},
 	"yield":                 {"assess"},
 	"data":                  {},
-	"data/record":           {"assess"},
+	"data/record":           {"assess", "yield"},
 	"data/geo":              {"data/record"},
 	"data/store":            {"assess", "data/record", "data/geo"},
 	"data/transfer":         {"data/record", "data/store"},
 	"data/demo":             {"assess", "data/record", "data/store"},
 	"data/internal/testkit": {"data/record"},
+	"data/desk":             {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "data/publish"},
 	"data/publish":          {"assess", "yield", "data/record", "data/store"},
 	"data/publish/pgtest":   {},
-	"cmd/bale":              {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "data/publish"},
-	"ui/...":                {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "ui/...", gio},
-	"cmd/baleassay":         {"ui/...", gio},
+	"cmd/bale":              {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "data/publish"},
+	"ui/...":                {"data/desk", "assess", "yield", "data/record", "data/geo", "ui/...", gio},
+	"cmd/baleassay":         {"ui/...", "data/desk", gio},
 }
 
 // testOnly are extra imports some packages' tests need.
 var testOnly = map[string][]string{
+	"cmd/bale":      {"data/store", "data/publish/pgtest"},
 	"data/transfer": {"assess"},
 	"data/demo":     {"data/geo"},
 	"data/publish":  {"data/demo", "data/geo", "data/publish/pgtest"},
-	"cmd/bale":      {"data/publish/pgtest"},
 }
 
 func TestImportAllowList(t *testing.T) {

@@ -43,11 +43,12 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	if err := checkExportTarget(*to); err != nil {
 		return err
 	}
-	s, err := openExistingStore(*store)
+	d, err := openDesk(*store, false)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
+	defer d.Close()
+	s := d.Store()
 	key, _, err := deviceKey(s.Dir())
 	if err != nil {
 		return err

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"baleassay/data/desk"
 	"baleassay/data/transfer"
 	"fmt"
 	"io"
@@ -33,7 +34,7 @@ func runInspect(args []string, stdout, stderr io.Writer) error {
 	// created or opened for writing.
 	var trust transfer.TrustFunc
 	if dir, err := storeDir(*store); err == nil {
-		if _, tf, err := trustFor(dir); err == nil {
+		if _, tf, err := desk.TrustIn(dir); err == nil {
 			trust = tf
 		}
 	}

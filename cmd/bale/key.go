@@ -3,10 +3,8 @@ package main
 import (
 	"baleassay/data/transfer"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"io"
-	"io/fs"
 	"os"
 	"path/filepath"
 )
@@ -29,24 +27,6 @@ func deviceKey(dir string) (*transfer.DeviceKey, bool, error) {
 	return k, created, nil
 }
 
-// trustFor returns the trust list of a store folder and a TrustFunc that
-// also accepts the folder's own key, when it has one.
-func trustFor(dir string) (*transfer.TrustList, transfer.TrustFunc, error) {
-	tl, err := transfer.LoadTrust(dir)
-	if err != nil {
-		return nil, nil, err
-	}
-	var self transfer.Fingerprint
-	k, err := transfer.LoadDeviceKey(dir)
-	switch {
-	case err == nil:
-		self = k.Fingerprint()
-	case !errors.Is(err, fs.ErrNotExist):
-		return nil, nil, err
-	}
-	return tl, tl.Func(self), nil
-}
-
 func runKey(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("key")
 	store := storeFlag(fs)
@@ -59,11 +39,12 @@ func runKey(args []string, stdout, stderr io.Writer) error {
 	if len(pos) != 0 {
 		return usagef("no arguments expected, got %q", pos)
 	}
-	s, err := openStore(*store)
+	dk, err := openDesk(*store, true)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
+	defer dk.Close()
+	s := dk.Store()
 	k, created, err := deviceKey(s.Dir())
 	if err != nil {
 		return err

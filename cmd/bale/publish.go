@@ -6,7 +6,6 @@ import (
 	"io"
 	"os"
 	"os/signal"
-	"strings"
 
 	"baleassay/data/publish"
 )
@@ -64,24 +63,18 @@ func runPublish(args []string, stdout, stderr io.Writer) error {
 	if *batch < 1 {
 		return usagef("--batch %d: give 1 or more", *batch)
 	}
-	s, err := openExistingStore(*store)
+	d, err := openDesk(*store, false)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
+	defer d.Close()
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	conn, target, err := publish.Connect(ctx, pos[0])
-	if err != nil {
-		return plainPublishError(err)
-	}
-	defer conn.Close(context.Background())
-	rep, err := publish.Publish(ctx, conn, s, publish.Options{
+	target, rep, err := d.Publish(ctx, pos[0], publish.Options{
 		Schema: *schema, Batch: *batch, PostGIS: mode, Full: *full, Reaudit: *reaudit,
 		Progress: publishProgress(stderr),
 	})
 	if err != nil {
-		err = plainPublishError(err)
 		if rep.New > 0 || rep.Audits > 0 {
 			return fmt.Errorf("%w\n%d events and %d audits were committed before that; publishing again resumes there", err, rep.New, rep.Audits)
 		}
@@ -99,24 +92,6 @@ func runPublish(args []string, stdout, stderr io.Writer) error {
 	printPublishReport(stdout, target, rep)
 	return nil
 }
-
-// plainPublishError drops the package prefix that 'bale publish:'
-// already says; errors.Is still finds the sentinel.
-func plainPublishError(err error) error {
-	msg := err.Error()
-	if m, ok := strings.CutPrefix(msg, "publish: "); ok {
-		return prefixless{msg: m, err: err}
-	}
-	return err
-}
-
-type prefixless struct {
-	msg string
-	err error
-}
-
-func (e prefixless) Error() string { return e.msg }
-func (e prefixless) Unwrap() error { return e.err }
 
 func printPublishReport(w io.Writer, target publish.Target, rep publish.Report) {
 	fmt.Fprintf(w, "published store %s to %s, schema %s (steps %v)\n", rep.Device, target, rep.Schema.Name, rep.Schema.Versions)

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"baleassay/data/desk"
 	"baleassay/data/record"
 	"baleassay/data/store"
 	"baleassay/data/transfer"
@@ -161,8 +162,8 @@ func TestProgressBar(t *testing.T) {
 	var buf bytes.Buffer
 	p := &progress{w: &buf, tty: true, files: 2}
 	for i := 1; i <= 2; i++ {
-		p.show(transfer.Progress{File: "f.bale", Index: i, Of: 2, Step: "applying", Events: 10})
-		p.show(transfer.Progress{File: "f.bale", Index: i, Of: 2, Step: "done", Events: 10, EventsSoFar: 10 * i})
+		p.show(desk.Progress{File: "f.bale", Done: i - 1, Of: 2, Step: desk.StepApplying, Events: 10})
+		p.show(desk.Progress{File: "f.bale", Done: i, Of: 2, Step: desk.StepDone, Events: 10, EventsSoFar: 10 * i})
 	}
 	out := buf.String()
 	if !strings.HasPrefix(out, "\r[") || !strings.Contains(out, "] 2/2 files, 20 events") || !strings.HasSuffix(out, "\n") ||
@@ -172,7 +173,7 @@ func TestProgressBar(t *testing.T) {
 	// Not a terminal and a single small file: no progress lines at all.
 	buf.Reset()
 	p = newProgress(&buf, 1)
-	p.show(transfer.Progress{Index: 1, Of: 1, Step: "applying", Events: 5})
+	p.show(desk.Progress{Done: 0, Of: 1, Step: desk.StepApplying, Events: 5})
 	if buf.Len() != 0 || p.tty {
 		t.Fatalf("quiet case printed %q (tty %v)", buf.String(), p.tty)
 	}

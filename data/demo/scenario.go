@@ -21,7 +21,7 @@ import (
 
 // DemoOptions tune the scenario.
 type DemoOptions struct {
-	End   time.Time // last day of the scenario (default: today, UTC)
+	End   time.Time // last day of the scenario (default: today, UTC; never after the clock)
 	Weeks int       // default 6
 	Seed  uint64    // default 1
 }
@@ -83,7 +83,13 @@ func WriteDemo(s *store.Store, o DemoOptions) (DemoSummary, error) {
 	if o.Seed == 0 {
 		o.Seed = 1
 	}
+	// The scenario ends at 17:00 UTC of the given day, or of the day
+	// before when that is still ahead of the clock: no demo record is
+	// stamped in the future.
 	end := time.Date(o.End.Year(), o.End.Month(), o.End.Day(), 17, 0, 0, 0, time.UTC)
+	for end.After(time.Now()) {
+		end = end.AddDate(0, 0, -1)
+	}
 	start := end.AddDate(0, 0, -7*o.Weeks)
 	var seed [32]byte
 	binary.LittleEndian.PutUint64(seed[:], o.Seed)
@@ -95,6 +101,7 @@ func WriteDemo(s *store.Store, o DemoOptions) (DemoSummary, error) {
 	var raws [][]byte
 	add := func(e record.Event) (record.EventID, error) {
 		e.Version = record.FormatVersion
+		e.Demo = true
 		raw, err := record.EncodeEvent(e)
 		if err != nil {
 			return record.EventID{}, err
@@ -140,7 +147,7 @@ func WriteDemo(s *store.Store, o DemoOptions) (DemoSummary, error) {
 			if _, err := add(record.Event{Entity: bale, Kind: record.KindBale, Device: yard, Clock: ms(rx), Bale: &record.BaleRecord{
 				Site: siteIDs[si], ReceivedMs: rx.UnixMilli(), GrossKg: round2(gross),
 				LengthM: round2(l), WidthM: round2(w), HeightM: round2(h),
-				Tag: fmt.Sprintf("VO-%05d", tag), Grader: graders[r.IntN(len(graders))], Spec: "glycolysis feed"}}); err != nil {
+				Tag: fmt.Sprintf("VO-%05d", tag), Grader: graders[r.IntN(len(graders))], Spec: "glycol-feed"}}); err != nil {
 				return sum, err
 			}
 			sum.Bales++

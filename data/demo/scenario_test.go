@@ -129,3 +129,41 @@ func openTemp(t testing.TB) *store.Store {
 	t.Cleanup(func() { s.Close() })
 	return s
 }
+
+// TestDemoInThePastAndMarked: with the default end (today) no event is
+// stamped ahead of the clock, every event is marked as a demo record,
+// and every bale names a built-in spec.
+func TestDemoInThePastAndMarked(t *testing.T) {
+	s, err := store.Open(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	if _, err := WriteDemo(s, DemoOptions{Weeks: 1}); err != nil {
+		t.Fatal(err)
+	}
+	now := time.Now().UnixMilli()
+	n := 0
+	err = s.ForEachRawSince(0, func(_ uint64, _ record.EventID, raw []byte) error {
+		e, err := record.DecodeEvent(raw)
+		if err != nil {
+			return err
+		}
+		if e.Clock.WallMs > now {
+			t.Errorf("event stamped %s, after the clock", e.Clock)
+		}
+		if !e.Demo {
+			t.Errorf("event of %s not marked as demo", e.Kind)
+		}
+		if e.Bale != nil && e.Bale.Spec != "" {
+			if _, ok := assess.BuiltinSpec(e.Bale.Spec); !ok {
+				t.Errorf("bale names spec %q, which is not built in", e.Bale.Spec)
+			}
+		}
+		n++
+		return nil
+	})
+	if err != nil || n == 0 {
+		t.Fatalf("walked %d events: %v", n, err)
+	}
+}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"os"
 	"strconv"
+	"strings"
 	"syscall"
 	"testing"
 	"time"
@@ -104,6 +105,7 @@ func BenchmarkPublish(b *testing.B) {
 			b.Logf("publish: events %.1f s (%.0f events/s), statistics and audits %.1f s (%d audits, %.0f bales/s); %d batches; %s",
 				rep.EventTime.Seconds(), float64(rep.New)/rep.EventTime.Seconds(), rep.AuditTime.Seconds(), rep.Audits,
 				float64(rep.Audits)/rep.AuditTime.Seconds(), rep.Batches, sizes(b, conn, len(raws)))
+			b.Logf("queries on the views: %s", viewTimes(b, conn))
 			again, err := Publish(ctx, conn, s, Options{})
 			if err != nil || again.Read != 0 {
 				b.Fatalf("publish again: %+v %v", again, err)
@@ -144,4 +146,38 @@ func sizes(tb testing.TB, conn *pgx.Conn, events int) string {
 		tb.Fatal(err)
 	}
 	return "database " + strconv.FormatInt(total>>20, 10) + " MB (" + strconv.FormatInt(total/int64(events), 10) + " B per event):" + detail
+}
+
+// viewTimes times typical queries on the views, each run twice (the
+// second, warm, is reported).
+func viewTimes(tb testing.TB, conn *pgx.Conn) string {
+	tb.Helper()
+	qs := []struct{ name, sql string }{
+		{"bale count", `SELECT count(*) FROM baleassay.bales`},
+		{"site_quality, all sites", `SELECT count(*) FROM (SELECT * FROM baleassay.site_quality) q`},
+		{"site_quality, one site", `SELECT * FROM baleassay.site_quality WHERE site = (SELECT id FROM baleassay.sites ORDER BY id LIMIT 1)`},
+		{"bale_audits, all", `SELECT count(*), avg(target_pet) FROM baleassay.bale_audits`},
+		{"conflicts", `SELECT count(*) FROM baleassay.conflicts`},
+		{"10 nearest sites, ST_Distance", `SELECT id FROM baleassay.sites ORDER BY ST_Distance(geog, ST_MakePoint(4.7, 45.0)::geography, false) LIMIT 10`},
+		{"sites within 25 km, ST_DWithin", `SELECT count(*) FROM baleassay.sites WHERE ST_DWithin(geog, ST_MakePoint(4.7, 45.0)::geography, 25000, false)`},
+	}
+	var out []string
+	for _, q := range qs {
+		var d time.Duration
+		for range 2 {
+			start := time.Now()
+			rows, err := conn.Query(context.Background(), q.sql)
+			if err != nil {
+				tb.Fatalf("%s: %v", q.name, err)
+			}
+			for rows.Next() {
+			}
+			if err := rows.Err(); err != nil {
+				return q.name + ": " + err.Error()
+			}
+			d = time.Since(start)
+		}
+		out = append(out, q.name+" "+strconv.FormatFloat(float64(d.Microseconds())/1000, 'f', 1, 64)+" ms")
+	}
+	return strings.Join(out, ", ")
 }

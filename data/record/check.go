@@ -20,10 +20,11 @@ type Checked struct {
 	Kind       Kind
 	Clock      HLC
 	Supersedes []EventID
+	Demo       bool // an event of the demo scenario or of a demo store
 }
 
 func CheckedOf(id EventID, raw []byte, e Event) Checked {
-	return Checked{ID: id, Raw: raw, Entity: e.Entity, Kind: e.Kind, Clock: e.Clock, Supersedes: e.Supersedes}
+	return Checked{ID: id, Raw: raw, Entity: e.Entity, Kind: e.Kind, Clock: e.Clock, Supersedes: e.Supersedes, Demo: e.Demo}
 }
 
 // checkRunMin is the smallest run of events worth a worker of its own:

@@ -29,6 +29,7 @@ var (
 	ErrTombstone      = errors.New("data: a deletion must supersede an event and carry no payload")
 	ErrKindMismatch   = errors.New("data: event kind differs from the entity's kind")
 	ErrUnknownSetting = errors.New("data: unknown setting kind")
+	ErrSettingName    = errors.New("data: a setting's name differs from the name in its document")
 )
 
 // FieldError is a validation error located at one field of one record.

@@ -2,6 +2,7 @@ package record
 
 import (
 	"bytes"
+	"crypto/sha256"
 	"fmt"
 )
 
@@ -58,6 +59,10 @@ type Event struct {
 	Bale    *BaleRecord    `cbor:"8,keyasint,omitempty"`
 	Pull    *PullRecord    `cbor:"9,keyasint,omitempty"`
 	Setting *SettingRecord `cbor:"10,keyasint,omitempty"`
+
+	// Demo marks an event of the invented demo scenario, or one saved in
+	// a demo store: a real store refuses to import it unless told to.
+	Demo bool `cbor:"11,keyasint,omitempty"`
 }
 
 // SiteKind says what kind of place a site is.
@@ -165,6 +170,20 @@ const (
 	SettingSpec        = "spec"
 	SettingLineProfile = "line_profile"
 )
+
+// SettingEntityID is the entity id of the setting of a kind and name:
+// the same on every device, so that two devices saving a setting of one
+// name edit one entity (a conflict when concurrent), never make two. It
+// is a UUIDv8 (RFC 9562 §5.8) over the first 122 bits of
+// SHA-256("baleassay setting" ‖ kind ‖ 0 ‖ name).
+func SettingEntityID(kind, name string) EntityID {
+	h := sha256.Sum256([]byte("baleassay setting\x00" + kind + "\x00" + name))
+	var id EntityID
+	copy(id[:], h[:16])
+	id[6] = id[6]&0x0f | 0x80 // version 8
+	id[8] = id[8]&0x3f | 0x80 // variant 10
+	return id
+}
 
 // Stamped is an event with its id.
 type Stamped struct {

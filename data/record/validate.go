@@ -1,6 +1,7 @@
 package record
 
 import (
+	"bytes"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -10,6 +11,7 @@ import (
 	"unicode/utf8"
 
 	"baleassay/assess"
+	"baleassay/yield"
 )
 
 // Limits used by validation.
@@ -341,6 +343,29 @@ func validateSetting(s SettingRecord) error {
 	}
 	if !json.Valid(s.Body) {
 		return &FieldError{Field: "setting.body", Err: ErrBadSetting}
+	}
+	// The same readers the audit and the yield use, so that a setting
+	// that would not load is refused on save and on import alike.
+	var name string
+	switch s.Kind {
+	case SettingSpec:
+		sp, err := assess.ParseSpec(s.Body)
+		if err != nil {
+			return &FieldError{Field: "setting.body", Err: fmt.Errorf("%w: %w", ErrBadSetting, err)}
+		}
+		name = sp.Name
+	default:
+		l, err := yield.ReadLine(bytes.NewReader(s.Body), s.Name)
+		if err != nil {
+			return &FieldError{Field: "setting.body", Err: fmt.Errorf("%w: %w", ErrBadSetting, err)}
+		}
+		if _, err := yield.Compile(l); err != nil {
+			return &FieldError{Field: "setting.body", Err: fmt.Errorf("%w: %w", ErrBadSetting, err)}
+		}
+		name = l.Name
+	}
+	if name != s.Name {
+		return &FieldError{Field: "setting.name", Value: s.Name, Err: fmt.Errorf("%w: the document calls itself %q", ErrSettingName, name)}
 	}
 	return nil
 }

@@ -1,6 +1,8 @@
 package record_test
 
 import (
+	"bytes"
+	"encoding/json"
 	"errors"
 	"math"
 	"strings"
@@ -10,6 +12,7 @@ import (
 	"baleassay/assess"
 	"baleassay/data/internal/testkit"
 	"baleassay/data/record"
+	"baleassay/yield"
 )
 
 // Boundary rows for every validation rule: just inside, just outside,
@@ -177,7 +180,21 @@ func TestValidateTextAndSettingBoundaries(t *testing.T) {
 		return record.Event{Version: 1, Entity: testkit.Ent(5), Kind: record.KindSetting, Device: testkit.DevA, Clock: record.HLC{WallMs: 1},
 			Setting: &record.SettingRecord{Kind: kind, Name: "glycol feed", Body: body}}
 	}
-	big := func(n int) []byte { return []byte(`"` + strings.Repeat("a", n-2) + `"`) }
+	// A spec document of exactly n bytes, its description padded.
+	big := func(n int) []byte {
+		head, tail := `{"name":"glycol feed","description":"`, `"}`
+		return []byte(head + strings.Repeat("a", n-len(head)-len(tail)) + tail)
+	}
+	line := yield.BuiltinLine()
+	line.Name = "glycol feed"
+	lineJSON, err := json.Marshal(line)
+	if err != nil {
+		t.Fatal(err)
+	}
+	melt := bytes.Replace(lineJSON, []byte(`"kind":"sort"`), []byte(`"kind":"melt"`), 1)
+	if bytes.Equal(melt, lineJSON) {
+		t.Fatal("the built-in line has no sort stage to change")
+	}
 	cases := []struct {
 		name string
 		e    record.Event
@@ -190,8 +207,12 @@ func TestValidateTextAndSettingBoundaries(t *testing.T) {
 		{"notes 4001", notes(4001), record.ErrTooLong},
 		{"last site kind", kind(record.SiteSupplier), nil},
 		{"unknown site kind", kind(record.SiteSupplier + 1), record.ErrInvalid},
-		{"spec setting", setting(record.SettingSpec, []byte(`{"name":"x"}`)), nil},
-		{"line profile setting", setting(record.SettingLineProfile, []byte(`[]`)), nil},
+		{"spec setting", setting(record.SettingSpec, []byte(`{"name":"glycol feed","limits":[{"item":"pet","min":0.8}]}`)), nil},
+		{"spec with a bound above 1", setting(record.SettingSpec, []byte(`{"name":"glycol feed","limits":[{"item":"pet","min":80}]}`)), record.ErrBadSetting},
+		{"spec named otherwise inside", setting(record.SettingSpec, []byte(`{"name":"x"}`)), record.ErrSettingName},
+		{"line profile setting", setting(record.SettingLineProfile, lineJSON), nil},
+		{"line with an unknown stage kind", setting(record.SettingLineProfile, melt), record.ErrBadSetting},
+		{"line that is not a profile", setting(record.SettingLineProfile, []byte(`[]`)), record.ErrBadSetting},
 		{"unknown setting kind", setting("recipe", []byte(`{}`)), record.ErrUnknownSetting},
 		{"body at 64 KiB", setting(record.SettingSpec, big(64<<10)), nil},
 		{"body over 64 KiB", setting(record.SettingSpec, big(64<<10+1)), record.ErrTooLong},

@@ -15,6 +15,7 @@ var (
 	ErrClosed       = errors.New("data: store is closed")
 	ErrNotFound     = errors.New("data: not found")
 	ErrMetaKey      = errors.New("data: meta key outside the allowed prefix")
+	ErrDemoRecords  = errors.New("demo records refused")
 	ErrAmbiguousID  = errors.New("data: id prefix matches more than one entity")
 )
 
@@ -51,3 +52,20 @@ type dataError struct{ err error }
 
 func (e dataError) Error() string { return e.err.Error() }
 func (e dataError) Unwrap() error { return e.err }
+
+// DemoRecordsError refuses events of the invented demo scenario in a
+// store of real records. It wraps ErrDemoRecords.
+type DemoRecordsError struct{ N int }
+
+func (e *DemoRecordsError) Error() string {
+	return fmt.Sprintf("%d %s of the invented demo scenario: this store holds real records and takes demo records only when told to", e.N, plural(e.N, "record", "records"))
+}
+
+func (e *DemoRecordsError) Unwrap() error { return ErrDemoRecords }
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}

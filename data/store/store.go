@@ -11,6 +11,7 @@ import (
 	"os"
 	"path/filepath"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	bolt "go.etcd.io/bbolt"
@@ -77,6 +78,7 @@ type Store struct {
 	closed bool
 
 	sites *geo.SiteIndex
+	demo  atomic.Bool // made by the demo scenario: saves are marked as demo records
 }
 
 // WriteError reports that a write transaction failed on the disk side. The
@@ -137,6 +139,7 @@ func OpenWith(dir string, o Options) (*Store, error) {
 			}
 		}
 		last = record.HLCFromBytes(m.Get([]byte(metaClock)))
+		s.demo.Store(len(m.Get([]byte(metaDemo))) > 0)
 		if m.Get([]byte(metaSites)) == nil {
 			if err := rebuildSiteCache(tx); err != nil {
 				return err

@@ -28,16 +28,34 @@ type ApplyResult struct {
 // store reads it until the commit and keeps nothing of it afterwards.
 // Meta keys must start with MetaTransferPrefix.
 func (s *Store) ApplyRaw(raws [][]byte, meta map[string][]byte) (ApplyResult, error) {
-	return s.ApplyRawWithIDs(raws, nil, meta)
+	return s.ApplyRawWithIDs(raws, nil, meta, ApplyOptions{})
+}
+
+// ApplyOptions tune ApplyRawWithIDs.
+type ApplyOptions struct {
+	// AllowDemo lets a store of real records take events of the demo
+	// scenario; without it they are refused with a *DemoRecordsError.
+	AllowDemo bool
 }
 
 // applyRaw is ApplyRaw with the events' ids when the caller has them
 // (OpenBundle hashed every event to check its stated id); nil ids are
 // computed here.
-func (s *Store) ApplyRawWithIDs(raws [][]byte, ids []record.EventID, meta map[string][]byte) (ApplyResult, error) {
+func (s *Store) ApplyRawWithIDs(raws [][]byte, ids []record.EventID, meta map[string][]byte, opt ApplyOptions) (ApplyResult, error) {
 	items, warns, err := record.CheckEvents(raws, ids, s.now(), record.CheckWorkers(len(raws)))
 	if err != nil {
 		return ApplyResult{}, err
+	}
+	if !opt.AllowDemo && !s.demo.Load() {
+		n := 0
+		for i := range items {
+			if items[i].Demo {
+				n++
+			}
+		}
+		if n > 0 {
+			return ApplyResult{}, &DemoRecordsError{N: n}
+		}
 	}
 	for k := range meta {
 		if !strings.HasPrefix(k, MetaTransferPrefix) || len(k) > 200 {
@@ -75,6 +93,7 @@ func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(tx *bolt.Tx
 	for i, e := range evs {
 		e.Version = record.FormatVersion
 		e.Device = s.device
+		e.Demo = e.Demo || s.demo.Load()
 		e.Clock = s.clock.Now()
 		if e.Entity.IsZero() {
 			id, err := record.NewEntityID()

@@ -15,7 +15,11 @@ func (s *Store) WriteDemo(raws [][]byte, at time.Time, note string) (ApplyResult
 	if err != nil {
 		return ApplyResult{}, err
 	}
-	return s.commit(items, nil, true, func(tx *bolt.Tx) error {
+	res, err := s.commit(items, nil, true, func(tx *bolt.Tx) error {
 		return tx.Bucket(bMeta).Put([]byte(metaDemo), []byte(note))
 	})
+	if err == nil {
+		s.demo.Store(true)
+	}
+	return res, err
 }

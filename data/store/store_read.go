@@ -4,6 +4,7 @@ import (
 	"baleassay/data/record"
 	"bytes"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"strings"
 
@@ -212,3 +213,35 @@ func (s *Store) FindEntity(text string) (record.EntityID, error) {
 	}
 	return record.EntityID{}, fmt.Errorf("%w: %q (give more digits, or the last 8 digits of the id)", ErrAmbiguousID, text)
 }
+
+// MatchIDs lists the entities of a kind (any kind when kind is 0) whose id,
+// as 32 lower-case hex digits, starts or ends with frag (any length,
+// dashes removed by the caller), at most limit of them, in id order. It
+// reads only the entity index.
+func (s *Store) MatchIDs(frag string, kind record.Kind, limit int) ([]record.EntityID, error) {
+	frag = strings.ToLower(frag)
+	var out []record.EntityID
+	err := s.view(func(tx *bolt.Tx) error {
+		return tx.Bucket(bEntity).ForEach(func(k, v []byte) error {
+			if kind != 0 && record.Kind(v[0]) != kind {
+				return nil
+			}
+			h := hex.EncodeToString(k)
+			if strings.HasPrefix(h, frag) || strings.HasSuffix(h, frag) {
+				var id record.EntityID
+				copy(id[:], k)
+				out = append(out, id)
+				if limit > 0 && len(out) >= limit {
+					return errStopMatch
+				}
+			}
+			return nil
+		})
+	})
+	if errors.Is(err, errStopMatch) {
+		err = nil
+	}
+	return out, err
+}
+
+var errStopMatch = errors.New("enough matches")

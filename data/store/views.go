@@ -6,6 +6,7 @@ import (
 
 	"baleassay/assess"
 	"baleassay/data/record"
+
 	bolt "go.etcd.io/bbolt"
 )
 

@@ -4,6 +4,7 @@ import (
 	"baleassay/data/record"
 	"baleassay/data/store"
 	"bytes"
+	"context"
 	"encoding/hex"
 	"errors"
 	"fmt"
@@ -36,6 +37,12 @@ type Importer struct {
 	Progress func(Progress)
 	// MaxBytes caps the file size (MaxBundleBytes when 0).
 	MaxBytes int64
+	// AllowDemo lets a store of real records take the demo scenario's
+	// records (store.ErrDemoRecords otherwise).
+	AllowDemo bool
+	// Context, when set, stops ImportFiles between files once it is done;
+	// the files already imported stay.
+	Context context.Context
 }
 
 // Progress reports where an import is.
@@ -68,6 +75,9 @@ type FileReport struct {
 type ImportReport struct {
 	Files []FileReport
 	Gaps  []SeqGap // per device seen in this run, bundles below the highest that are missing
+	// Stopped is the context's error when the run stopped before the
+	// last file.
+	Stopped error
 }
 
 // Refused counts refused files.
@@ -111,6 +121,10 @@ func (im *Importer) ImportFiles(paths []string) ImportReport {
 	devs := map[record.DeviceID]bool{}
 	done := 0
 	for i, p := range paths {
+		if im.Context != nil && im.Context.Err() != nil {
+			rep.Stopped = im.Context.Err()
+			break
+		}
 		fr := im.importFile(p, i+1, len(paths), done)
 		done += fr.New + fr.Present
 		if fr.Err == nil {
@@ -216,7 +230,7 @@ func (im *Importer) importBytes(raw []byte, prog func(Progress)) FileReport {
 	}
 	fr.Flags, fr.Replay = append(flags, im.skewFlags(h)...), replay
 	prog(Progress{Step: "applying", Events: fr.Events})
-	res, err := im.Store.ApplyRawWithIDs(ob.Raws, ob.IDs, meta)
+	res, err := im.Store.ApplyRawWithIDs(ob.Raws, ob.IDs, meta, store.ApplyOptions{AllowDemo: im.AllowDemo})
 	if err != nil {
 		var ee *record.EventError
 		if errors.As(err, &ee) && ee.Index >= 0 && ee.Index < len(ob.Raws) {
