@@ -47,6 +47,7 @@ var testOnly = map[string][]string{
 	"data/transfer": {"assess"},
 	"data/demo":     {"data/geo"},
 	"data/publish":  {"data/demo", "data/geo", "data/publish/pgtest"},
+	"data/desk":     {"data/publish/pgtest"},
 }
 
 func TestImportAllowList(t *testing.T) {

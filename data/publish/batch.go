@@ -73,6 +73,14 @@ var foldSQL = []string{
 	 SELECT e.pull_bale FROM events e
 	 WHERE e.entity IN (SELECT entity FROM publish_fresh WHERE kind = 3) AND e.pull_bale IS NOT NULL
 	 ON CONFLICT DO NOTHING`,
+	// A stored spec changed (rare): every bale judged against a name it
+	// has had.
+	`INSERT INTO audit_pending (bale)
+	 SELECT c.entity FROM current c JOIN events e ON e.id = c.event
+	 WHERE c.kind = 2 AND coalesce(e.spec, 'glycol-feed') IN (
+	   SELECT s.setting_name FROM events s
+	   WHERE s.entity IN (SELECT entity FROM publish_fresh WHERE kind = 4) AND s.setting_kind = 'spec')
+	 ON CONFLICT DO NOTHING`,
 }
 
 const cursorSQL = `INSERT INTO publish_cursor (store_device, last_seq, last_event, updated_at) VALUES ($1, $2, $3, now())

@@ -28,9 +28,7 @@ func twoLabs(t *testing.T) (a, b, union *store.Store) {
 		return s
 	}
 	b = open()
-	if _, err := b.ApplyRaw(raws, nil); err != nil {
-		t.Fatal(err)
-	}
+	applyAll(t, b, raws)
 	yes := store.SaveOptions{Confirm: true}
 	sites, err := a.Sites()
 	if err != nil {
@@ -84,15 +82,23 @@ func twoLabs(t *testing.T) (a, b, union *store.Store) {
 	mp.Bale, mp.Label = to.ID, "P8"
 	must(b.Supersede(moved.ID, record.Event{Pull: &mp}, yes))
 	must(b.Delete(byBale[shrink.ID][1].ID))
+	// Both labs add a pull labelled P7 to the same bale: a label used
+	// twice, which the audit keeps apart.
+	twice := bales[11]
+	for _, s := range []*store.Store{a, b} {
+		p := byBale[twice.ID][0].Pull
+		p.Label = "P7"
+		if _, err := s.Save([]record.Event{{Kind: record.KindPull, Pull: &p}}, yes); err != nil {
+			t.Fatal(err)
+		}
+	}
 	// And a new site.
 	if _, err := b.Save([]record.Event{{Kind: record.KindSite, Site: &record.SiteRecord{Name: "Quillon Ferry Depot", Kind: record.SiteDepot, Lat: 45.31, Lon: 4.6}}}, yes); err != nil {
 		t.Fatal(err)
 	}
 	union = open()
 	for _, s := range []*store.Store{a, b} {
-		if _, err := union.ApplyRaw(rawEvents(t, s), nil); err != nil {
-			t.Fatal(err)
-		}
+		applyAll(t, union, rawEvents(t, s))
 	}
 	conf, err := union.Conflicts()
 	if err != nil {
@@ -122,6 +128,9 @@ func TestPublishTwoLabs(t *testing.T) {
 		}
 		checkMatchesStore(t, conn, union)
 		checkConflictsView(t, conn, union)
+		if n := count(t, conn, `SELECT count(*) FROM baleassay.bale_audits WHERE label_clash = '{P7}'`); n != 1 {
+			t.Fatalf("order %d: %d audits show the label P7 used twice, want 1", i, n)
+		}
 		states[i] = stateHash(t, conn)
 		// Again, from both: nothing changes.
 		full := mustPublish(t, conn, order[0], Options{Full: true})
@@ -177,5 +186,17 @@ func checkConflictsView(t *testing.T, conn *pgx.Conn, s *store.Store) {
 				t.Errorf("conflict %s head %d: database %x, store %s (order by clock, device, id)", st.ID, i, g[i], h.ID.Short())
 			}
 		}
+	}
+}
+
+// applyAll imports events as a bundle would, demo records allowed.
+func applyAll(t *testing.T, s *store.Store, raws [][]byte) {
+	t.Helper()
+	ids := make([]record.EventID, len(raws))
+	for i, r := range raws {
+		ids[i] = record.IDOf(r)
+	}
+	if _, err := s.ApplyRawWithIDs(raws, ids, nil, store.ApplyOptions{AllowDemo: true}); err != nil {
+		t.Fatal(err)
 	}
 }

@@ -105,8 +105,10 @@ CREATE TABLE audits (
     hazards         double precision,
     hazard_found    boolean,
     categories      jsonb,                    -- {category key: mass share} of the categories found
-    spec            text,                     -- the spec judged against
-    verdict         text,                     -- pass, fail or undecided
+    label_clash     text[],                   -- pull labels used twice (two devices): a conflict to resolve
+    spec            text,                     -- the spec the bale is judged against (its own, or glycol-feed)
+    verdict         text,                     -- pass, fail or undecided; NULL when that spec is not found
+
     grade           text,
     limiting        text,                     -- the item that governs the verdict
     more_pulls      integer,                  -- pulls the advice asks for beyond those taken
@@ -180,16 +182,24 @@ FROM heads h JOIN events e ON e.id = h.event
 GROUP BY h.entity
 HAVING count(*) > 1;
 
--- The digest of what a bale's audit depends on: its shown event and the
--- shown events of its pulls. Must match auditInputs in data/publish.
+-- The digest of what a bale's audit depends on: its shown event, the
+-- shown events of its pulls and of the stored specs of the name it is
+-- judged against. Must match auditInputs in data/publish/audit.go.
 CREATE VIEW audit_inputs AS
 SELECT b.entity AS bale,
        sha256(convert_to('baleassay audit 1', 'UTF8') || b.event
-              || coalesce(string_agg(p.event, ''::bytea ORDER BY p.event), ''::bytea)) AS inputs
-FROM current b
-LEFT JOIN (events pe JOIN current p ON p.event = pe.id AND p.kind = 3) ON pe.pull_bale = b.entity
-WHERE b.kind = 2
-GROUP BY b.entity, b.event;
+              || int4send((SELECT count(*)::integer FROM events pe JOIN current p ON p.event = pe.id
+                           WHERE pe.pull_bale = b.entity AND p.kind = 3))
+              || coalesce((SELECT string_agg(p.event, ''::bytea ORDER BY p.event)
+                           FROM events pe JOIN current p ON p.event = pe.id
+                           WHERE pe.pull_bale = b.entity AND p.kind = 3), ''::bytea)
+              || coalesce((SELECT string_agg(s.event || CASE WHEN s.heads > 1 THEN '\x01'::bytea ELSE '\x00'::bytea END,
+                                             ''::bytea ORDER BY s.event)
+                           FROM current s JOIN events se ON se.id = s.event
+                           WHERE s.kind = 4 AND se.setting_kind = 'spec'
+                             AND se.setting_name = coalesce(be.spec, 'glycol-feed')), ''::bytea)) AS inputs
+FROM current b JOIN events be ON be.id = b.event
+WHERE b.kind = 2;
 
 -- The audit of every bale as its records stand now. A bale whose records
 -- changed since the last publish has no row until the next one.
