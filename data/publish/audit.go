@@ -231,6 +231,10 @@ func (p *publisher) runAudits(ctx context.Context, rep *Report, progress func(Pr
 				if err != nil {
 					return fmt.Errorf("insert audits: %w", err)
 				}
+				if _, err := tx.Exec(ctx, `INSERT INTO audit_current (bale, inputs) SELECT bale, inputs FROM publish_audits
+					ON CONFLICT (bale) DO UPDATE SET inputs = excluded.inputs`); err != nil {
+					return fmt.Errorf("current audits: %w", err)
+				}
 				rep.Audits += int(tag.RowsAffected())
 				rep.AuditErr += errs
 			}

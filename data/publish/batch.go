@@ -67,20 +67,24 @@ var foldSQL = []string{
 	 DELETE FROM current c USING ranked r WHERE c.entity = r.entity AND r.deleted`,
 	// Bales whose audit may have changed: new bale events, and every bale
 	// any event of a changed pull names (a pull may move or be deleted).
-	`INSERT INTO audit_pending (bale)
-	 SELECT entity FROM publish_fresh WHERE kind = 2
-	 UNION
-	 SELECT e.pull_bale FROM events e
-	 WHERE e.entity IN (SELECT entity FROM publish_fresh WHERE kind = 3) AND e.pull_bale IS NOT NULL
-	 ON CONFLICT DO NOTHING`,
+	`WITH q AS (
+	   INSERT INTO audit_pending (bale)
+	   SELECT entity FROM publish_fresh WHERE kind = 2
+	   UNION
+	   SELECT e.pull_bale FROM events e
+	   WHERE e.entity IN (SELECT entity FROM publish_fresh WHERE kind = 3) AND e.pull_bale IS NOT NULL
+	   ON CONFLICT DO NOTHING RETURNING bale)
+	 DELETE FROM audit_current WHERE bale IN (SELECT bale FROM q)`,
 	// A stored spec changed (rare): every bale judged against a name it
 	// has had.
-	`INSERT INTO audit_pending (bale)
-	 SELECT c.entity FROM current c JOIN events e ON e.id = c.event
-	 WHERE c.kind = 2 AND coalesce(e.spec, 'glycol-feed') IN (
-	   SELECT s.setting_name FROM events s
-	   WHERE s.entity IN (SELECT entity FROM publish_fresh WHERE kind = 4) AND s.setting_kind = 'spec')
-	 ON CONFLICT DO NOTHING`,
+	`WITH q AS (
+	   INSERT INTO audit_pending (bale)
+	   SELECT c.entity FROM current c JOIN events e ON e.id = c.event
+	   WHERE c.kind = 2 AND coalesce(e.spec, 'glycol-feed') IN (
+	     SELECT s.setting_name FROM events s
+	     WHERE s.entity IN (SELECT entity FROM publish_fresh WHERE kind = 4) AND s.setting_kind = 'spec')
+	   ON CONFLICT DO NOTHING RETURNING bale)
+	 DELETE FROM audit_current WHERE bale IN (SELECT bale FROM q)`,
 }
 
 const cursorSQL = `INSERT INTO publish_cursor (store_device, last_seq, last_event, updated_at) VALUES ($1, $2, $3, now())

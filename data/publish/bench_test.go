@@ -3,6 +3,7 @@ package publish
 import (
 	"context"
 	"os"
+	"runtime"
 	"strconv"
 	"strings"
 	"syscall"
@@ -94,7 +95,10 @@ func BenchmarkPublish(b *testing.B) {
 	b.Run("publish", func(b *testing.B) {
 		for range b.N {
 			conn := pgtest.Conn(b)
+			runtime.GC()
+			stopPeak := peakHeap()
 			rep, err := Publish(ctx, conn, s, Options{})
+			peak := stopPeak()
 			if err != nil {
 				b.Fatal(err)
 			}
@@ -102,6 +106,7 @@ func BenchmarkPublish(b *testing.B) {
 				b.Fatalf("%d of %d events published", rep.New, len(raws))
 			}
 			report(b, "publish", rep.Elapsed)
+			b.ReportMetric(float64(peak)/1e6, "peak-heap-MB")
 			b.Logf("publish: events %.1f s (%.0f events/s), statistics and audits %.1f s (%d audits, %.0f bales/s); %d batches; %s",
 				rep.EventTime.Seconds(), float64(rep.New)/rep.EventTime.Seconds(), rep.AuditTime.Seconds(), rep.Audits,
 				float64(rep.Audits)/rep.AuditTime.Seconds(), rep.Batches, sizes(b, conn, len(raws)))
@@ -119,7 +124,7 @@ func BenchmarkPublish(b *testing.B) {
 	})
 	var ru syscall.Rusage
 	_ = syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
-	b.Logf("publish %.1f s = %.2f× copy-raw (%.1f s), %.2f× copy-raw-pk (%.1f s); publish again (nothing new) %.3f s; full walk, all present %.1f s; peak RSS of the Go process %.0f MB",
+	b.Logf("publish %.1f s = %.2f× copy-raw (%.1f s), %.2f× copy-raw-pk (%.1f s); publish again (nothing new) %.3f s; full walk, all present %.1f s; peak RSS of the Go process (scenario, store and publish) %.0f MB",
 		secs["publish"], secs["publish"]/secs["copy-raw"], secs["copy-raw"], secs["publish"]/secs["copy-raw-pk"], secs["copy-raw-pk"],
 		secs["again"], secs["full"], float64(ru.Maxrss)/1024)
 }
@@ -180,4 +185,28 @@ func viewTimes(tb testing.TB, conn *pgx.Conn) string {
 		out = append(out, q.name+" "+strconv.FormatFloat(float64(d.Microseconds())/1000, 'f', 1, 64)+" ms")
 	}
 	return strings.Join(out, ", ")
+}
+
+// peakHeap samples the Go heap in use every 10 ms until the returned
+// function is called, which gives the highest reading.
+func peakHeap() func() uint64 {
+	done := make(chan struct{})
+	res := make(chan uint64)
+	go func() {
+		var peak uint64
+		var ms runtime.MemStats
+		tick := time.NewTicker(10 * time.Millisecond)
+		defer tick.Stop()
+		for {
+			runtime.ReadMemStats(&ms)
+			peak = max(peak, ms.HeapInuse)
+			select {
+			case <-done:
+				res <- peak
+				return
+			case <-tick.C:
+			}
+		}
+	}()
+	return func() uint64 { close(done); return <-res }
 }

@@ -97,6 +97,7 @@ var foldQueries = []string{
 	`SELECT coalesce(sha256(string_agg(uuid_send(entity) || event || boolsend(deleted) || int2send(kind) || int8send(clock_ms) || int8send(clock_logical) || device, ''::bytea ORDER BY entity, event)), '') FROM baleassay.heads`,
 	`SELECT coalesce(sha256(string_agg(uuid_send(entity) || event || int4send(heads), ''::bytea ORDER BY entity)), '') FROM baleassay.current`,
 	`SELECT convert_to(count(*)::text, 'UTF8') FROM baleassay.audit_pending`,
+	`SELECT coalesce(sha256(string_agg(uuid_send(bale) || inputs, ''::bytea ORDER BY bale)), '') FROM baleassay.audit_current`,
 }
 
 func hashQueries(t *testing.T, conn *pgx.Conn, qs []string) [32]byte {
@@ -365,6 +366,13 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *store.Store) {
 		if len(w.pets) > 1 && (sd == nil || !closeTo(*sd, v, 1e-9)) {
 			t.Errorf("site %q target-PET SD: database %v, store %v", sv.Site.Name, deref(sd), v)
 		}
+	}
+
+	// The current audits are those of the records as they stand: the key
+	// kept in audit_current is the digest audit_inputs computes afresh.
+	if n := count(t, conn, `SELECT count(*) FROM baleassay.audit_current c FULL JOIN baleassay.audit_inputs i USING (bale)
+		WHERE c.inputs IS DISTINCT FROM i.inputs AND (c.bale IS NOT NULL OR EXISTS (SELECT 1 FROM baleassay.audits a WHERE a.bale = i.bale AND a.inputs = i.inputs))`); n != 0 {
+		t.Errorf("%d bales whose current audit is not that of their records", n)
 	}
 
 	// Nothing left pending after a publish.

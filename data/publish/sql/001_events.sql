@@ -121,6 +121,15 @@ CREATE TABLE audit_pending (
     bale uuid PRIMARY KEY
 );
 
+-- The audit of each bale as its records stand: removed in the same
+-- transaction that queues the bale in audit_pending, set again when its
+-- audit is computed. audit_inputs recomputes the key from the records,
+-- to check it.
+CREATE TABLE audit_current (
+    bale   uuid PRIMARY KEY,
+    inputs bytea NOT NULL
+);
+
 -- Per publishing store: the last local sequence number published, and the
 -- event at it (a copied or rebuilt store whose event differs is published
 -- in full instead).
@@ -184,7 +193,8 @@ HAVING count(*) > 1;
 
 -- The digest of what a bale's audit depends on: its shown event, the
 -- shown events of its pulls and of the stored specs of the name it is
--- judged against. Must match auditInputs in data/publish/audit.go.
+-- judged against. Must match auditInputs in data/publish/audit.go. It
+-- reads every bale's records: for checks, not for everyday queries.
 CREATE VIEW audit_inputs AS
 SELECT b.entity AS bale,
        sha256(convert_to('baleassay audit 1', 'UTF8') || b.event
@@ -202,10 +212,10 @@ FROM current b JOIN events be ON be.id = b.event
 WHERE b.kind = 2;
 
 -- The audit of every bale as its records stand now. A bale whose records
--- changed since the last publish has no row until the next one.
+-- changed while its audit was not yet computed has no row until then.
 CREATE VIEW bale_audits AS
 SELECT a.*
-FROM audit_inputs i JOIN audits a ON a.bale = i.bale AND a.inputs = i.inputs;
+FROM audit_current c JOIN audits a ON a.bale = c.bale AND a.inputs = c.inputs;
 
 -- Per site: bales received, bales with an audit estimate, and the mean,
 -- sample standard deviation, minimum and maximum of the target-PET share
