@@ -222,7 +222,7 @@ FROM audit_current c JOIN audits a ON a.bale = c.bale AND a.inputs = c.inputs;
 -- across audited bales (as 'bale sites summary' gives for one site).
 CREATE VIEW site_quality AS
 SELECT s.id AS site, s.name,
-       count(b.id) AS bales,
+       count(b.entity) AS bales,
        count(a.target_pet) AS audited,
        avg(a.target_pet) AS target_pet_mean,
        stddev_samp(a.target_pet) AS target_pet_sd,
@@ -230,6 +230,6 @@ SELECT s.id AS site, s.name,
        max(a.target_pet) AS target_pet_max,
        count(*) FILTER (WHERE a.hazard_found) AS hazard_bales
 FROM sites s
-LEFT JOIN bales b ON b.site = s.id
-LEFT JOIN bale_audits a ON a.bale = b.id AND a.error IS NULL
+LEFT JOIN (current b JOIN events be ON be.id = b.event AND b.kind = 2) ON be.bale_site = s.id
+LEFT JOIN bale_audits a ON a.bale = b.entity AND a.error IS NULL
 GROUP BY s.id, s.name;
