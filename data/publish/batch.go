@@ -75,17 +75,18 @@ var foldSQL = []string{
 	   WHERE e.entity IN (SELECT entity FROM publish_fresh WHERE kind = 3) AND e.pull_bale IS NOT NULL
 	   ON CONFLICT DO NOTHING RETURNING bale)
 	 DELETE FROM audit_current WHERE bale IN (SELECT bale FROM q)`,
-	// A stored spec changed (rare): every bale judged against a name it
-	// has had.
-	`WITH q AS (
+}
+
+// specChangedSQL runs only for a batch with setting events (rare): it
+// queues every bale judged against a name a changed spec has had.
+const specChangedSQL = `WITH q AS (
 	   INSERT INTO audit_pending (bale)
 	   SELECT c.entity FROM current c JOIN events e ON e.id = c.event
 	   WHERE c.kind = 2 AND coalesce(e.spec, 'glycol-feed') IN (
 	     SELECT s.setting_name FROM events s
 	     WHERE s.entity IN (SELECT entity FROM publish_fresh WHERE kind = 4) AND s.setting_kind = 'spec')
 	   ON CONFLICT DO NOTHING RETURNING bale)
-	 DELETE FROM audit_current WHERE bale IN (SELECT bale FROM q)`,
-}
+	 DELETE FROM audit_current WHERE bale IN (SELECT bale FROM q)`
 
 const cursorSQL = `INSERT INTO publish_cursor (store_device, last_seq, last_event, updated_at) VALUES ($1, $2, $3, now())
 ON CONFLICT (store_device) DO UPDATE SET last_seq = excluded.last_seq, last_event = excluded.last_event, updated_at = now()`
@@ -216,6 +217,14 @@ func (p *publisher) fold(ctx context.Context, tx pgx.Tx, rows [][]any, res *batc
 	for i, q := range foldSQL {
 		if _, err := tx.Exec(ctx, q); err != nil {
 			return fmt.Errorf("fold step %d: %w", i+1, err)
+		}
+	}
+	for _, r := range rows {
+		if r[3] == int16(record.KindSetting) {
+			if _, err := tx.Exec(ctx, specChangedSQL); err != nil {
+				return fmt.Errorf("fold, specs: %w", err)
+			}
+			break
 		}
 	}
 	return nil
