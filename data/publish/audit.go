@@ -177,8 +177,8 @@ func auditRow(bale record.EntityID, head record.Stamped, pulls []store.PullView,
 	row[13] = res.Group(assess.GroupHazards).Fraction
 	row[14] = len(res.HazardPulls) > 0 || res.HazardPieces > 0
 	row[15], row[20] = cats, optText(adv.Item)
-	if adv.Known {
-		row[21] = adv.More
+	if adv.Need.Known() {
+		row[21] = adv.Need.More
 	}
 	for _, v := range row[3:14] {
 		if f, ok := v.(float64); ok && (math.IsNaN(f) || math.IsInf(f, 0)) {
