@@ -211,6 +211,22 @@ func checkMatchesStore(t *testing.T, conn *pgx.Conn, s *store.Store) {
 	if currents != visible {
 		t.Errorf("current rows %d, visible entities %d", currents, visible)
 	}
+	// Measured batches: the view shows the shown values.
+	var nMeasured int
+	var flake float64
+	for _, st := range states {
+		if cur, ok := st.Current(); ok && st.Kind == record.KindMeasured {
+			nMeasured++
+			flake += cur.Measured.FlakeKg
+		}
+	}
+	var dbFlake *float64
+	if err := conn.QueryRow(ctx, `SELECT count(*), sum(flake_kg) FROM baleassay.measured`).Scan(&n, &dbFlake); err != nil {
+		t.Fatal(err)
+	}
+	if int(n) != nMeasured || (nMeasured > 0 && (dbFlake == nil || !closeTo(*dbFlake, flake, 1e-12))) {
+		t.Errorf("measured batches: database %d (%v kg of flake), store %d (%v kg)", n, deref(dbFlake), nMeasured, flake)
+	}
 
 	// heads carries copies of its events' columns: they must agree.
 	var bad int

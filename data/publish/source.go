@@ -61,6 +61,9 @@ var eventColumns = []string{
 	"bale_site", "received", "gross_kg", "length_m", "width_m", "height_m", "tag", "grader", "spec", "bale_notes",
 	"pull_bale", "label", "taken", "kg", "pieces", "stated_kg", "parts_kg",
 	"setting_kind", "setting_name", "setting_body",
+	"measured_line", "measured_bales", "ran", "flake_kg", "moisture_pct", "streams_kg",
+	"reactor_flake_kg", "glycol", "glycol_kg", "strip_eg", "product_kg",
+	"hydroxyl_value", "hydroxyl_method", "acid_value", "acid_method", "measured_notes",
 }
 
 // decodeItem checks a stored event against its id and decodes it. The
@@ -128,7 +131,46 @@ func rowOf(id record.EventID, raw []byte, e record.Event) ([]any, error) {
 			row[34] = s.Body
 		}
 	}
+	if m := e.Measured; m != nil {
+		if err := measuredColumns(row[35:], m); err != nil {
+			return nil, err
+		}
+	}
 	return row, nil
+}
+
+// measuredColumns fills the columns of a measured batch; figures not
+// measured are NULL.
+func measuredColumns(row []any, m *record.MeasuredRecord) error {
+	bales := make([][16]byte, len(m.Bales))
+	for i, b := range m.Bales {
+		bales[i] = b
+	}
+	row[0], row[1], row[2], row[3] = text(m.Line), bales, optTime(m.RanMs), m.FlakeKg
+	if m.MoisturePct != nil {
+		row[4] = *m.MoisturePct
+	}
+	if len(m.StreamsKg) > 0 {
+		js, err := json.Marshal(m.StreamsKg)
+		if err != nil {
+			return err
+		}
+		row[5] = js
+	}
+	if r := m.Reactor; r != nil {
+		row[6], row[7], row[8], row[9] = r.FlakeKg, text(r.Glycol), r.GlycolKg, r.StripEG
+		if r.ProductKg != 0 {
+			row[10] = r.ProductKg
+		}
+		if r.HydroxylValue != 0 {
+			row[11], row[12] = r.HydroxylValue, r.HydroxylMethod.String()
+		}
+		if r.AcidValue != nil {
+			row[13], row[14] = *r.AcidValue, r.AcidMethod.String()
+		}
+	}
+	row[15] = optText(m.Notes)
+	return nil
 }
 
 // text makes a string storable as PostgreSQL text, which cannot hold

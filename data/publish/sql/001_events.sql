@@ -10,7 +10,7 @@ CREATE TABLE events (
     id            bytea PRIMARY KEY CHECK (octet_length(id) = 32),
     raw           bytea NOT NULL,
     entity        uuid NOT NULL,
-    kind          smallint NOT NULL,          -- 1 site, 2 bale, 3 pull, 4 setting
+    kind          smallint NOT NULL,          -- 1 site, 2 bale, 3 pull, 4 setting, 5 measured batch
     device        bytea NOT NULL,             -- authoring device (16 bytes)
     clock_ms      bigint NOT NULL,            -- hybrid logical clock: Unix ms ...
     clock_logical bigint NOT NULL,            -- ... and counter
@@ -45,7 +45,24 @@ CREATE TABLE events (
     -- setting
     setting_kind  text,
     setting_name  text,
-    setting_body  jsonb
+    setting_body  jsonb,
+    -- measured batch: what the plant weighed and the lab measured
+    measured_line    text,
+    measured_bales   uuid[],
+    ran              timestamptz,
+    flake_kg         double precision,          -- as weighed off the line, moisture included
+    moisture_pct     double precision,          -- % of the wet flake
+    streams_kg       jsonb,                     -- {stream name: kg}
+    reactor_flake_kg double precision,
+    glycol           text,
+    glycol_kg        double precision,
+    strip_eg         double precision,          -- share of the liberated EG stripped
+    product_kg       double precision,          -- glycolysate weighed
+    hydroxyl_value   double precision,          -- mg KOH/g
+    hydroxyl_method  text,
+    acid_value       double precision,          -- mg KOH/g
+    acid_method      text,
+    measured_notes   text
 );
 CREATE INDEX events_entity ON events (entity);
 CREATE INDEX events_pull_bale ON events (pull_bale) WHERE pull_bale IS NOT NULL;
@@ -180,6 +197,14 @@ SELECT c.entity AS id, e.setting_kind AS kind, e.setting_name AS name, e.setting
        c.heads > 1 AS conflicted, c.event, e.clock, e.device
 FROM current c JOIN events e ON e.id = c.event
 WHERE c.kind = 4;
+
+CREATE VIEW measured AS
+SELECT c.entity AS id, e.measured_line AS line, e.measured_bales AS bales, e.ran, e.flake_kg, e.moisture_pct, e.streams_kg,
+       e.reactor_flake_kg, e.glycol, e.glycol_kg, e.strip_eg, e.product_kg,
+       e.hydroxyl_value, e.hydroxyl_method, e.acid_value, e.acid_method, e.measured_notes AS notes,
+       c.heads > 1 AS conflicted, c.event, e.clock, e.device
+FROM current c JOIN events e ON e.id = c.event
+WHERE c.kind = 5;
 
 -- Entities with more than one head, deleted ones included, with the heads
 -- in (clock, device, id) order.
