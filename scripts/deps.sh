@@ -5,6 +5,8 @@ set -euo pipefail
 
 # python3-cbor2: independent CBOR decoder for the sync-file interop test.
 packages=(python3 python3-cbor2)
+# PostgreSQL with PostGIS: the server the publish tests start (scripts/pgtest.sh).
+packages+=(postgresql postgresql-15-postgis-3)
 
 # Chromium: the headless browser the HTML report test renders with.
 packages+=(chromium)
