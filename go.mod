@@ -13,4 +13,10 @@ require (
 	pgregory.net/rapid v1.3.0
 )
 
-require github.com/x448/float16 v0.8.4 // indirect
+require (
+	github.com/jackc/pgpassfile v1.0.0 // indirect
+	github.com/jackc/pgservicefile v0.0.0-20240606120523-5a60cdf6a761 // indirect
+	github.com/jackc/pgx/v5 v5.12.0 // indirect
+	github.com/x448/float16 v0.8.4 // indirect
+	golang.org/x/text v0.41.0 // indirect
+)

@@ -8,6 +8,12 @@ packages=(python3 python3-cbor2)
 # python3-cryptography: independent Ed25519 check of bundle signatures and authorship proofs (interop test).
 packages+=(python3-cryptography)
 
+# PostgreSQL with PostGIS: the server the publish tests start (scripts/pgtest.sh).
+packages+=(postgresql postgresql-15-postgis-3)
+
+# Chromium: the headless browser the HTML report test renders with.
+packages+=(chromium)
+
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
@@ -24,5 +30,5 @@ else
   exit 1
 fi
 echo "baleassay: installing ${missing[*]}" >&2
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" update -q
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" install -y -q "${missing[@]}"
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 update -q
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 install -y -q "${missing[@]}"

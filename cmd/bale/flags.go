@@ -72,18 +72,19 @@ func sub(name string, run func(args []string, stdout io.Writer) error) subcomman
 }
 
 // strictValue wraps a flag's value: a flag given twice is refused (which
-// of two values was meant is a guess) unless its value says it is
-// Repeatable (--polyol, one per polyol), and a number must be a plain
+// of two values was meant is a guess) unless its help says "repeat for
+// each" (--polyol, --stream), and a number must be a plain
 // decimal (no hexadecimal floats such as 0x1p4, digit separators such as
 // 1_0, Inf or NaN), as in files.
 type strictValue struct {
 	flag.Value
-	name string
-	set  bool
+	name   string
+	set    bool
+	repeat bool // the flag's help says "repeat for each" (--polyol, --stream)
 }
 
 func (v *strictValue) Set(s string) error {
-	if r, ok := v.Value.(interface{ Repeatable() bool }); v.set && !(ok && r.Repeatable()) {
+	if v.set && !v.repeat {
 		return fmt.Errorf("given twice; give --%s once", v.name)
 	}
 	v.set = true
@@ -120,7 +121,7 @@ func (v *strictValue) Get() any {
 func strictFlags(fs *flag.FlagSet) {
 	fs.VisitAll(func(f *flag.Flag) {
 		if _, done := f.Value.(*strictValue); !done {
-			f.Value = &strictValue{Value: f.Value, name: f.Name}
+			f.Value = &strictValue{Value: f.Value, name: f.Name, repeat: strings.Contains(f.Usage, "repeat for each")}
 		}
 	})
 }

@@ -39,15 +39,36 @@
 //	          read with ReadPulls), LoadSpec
 //	yield     Plan (stored line or file, flake spec), YieldBale, YieldPulls: one
 //	          evaluation plus the Monte Carlo, the overall flake-spec pass, what
-//	          sinks with the PET, and the cautions that apply
+//	          sinks with the PET, and the cautions that apply; with
+//	          YieldOptions.Sensitivity what drives the spread
+//	loads     ParseLoadBale, AuditLoad: a delivery of bales, some audited (stored
+//	          bales or pulls files with their masses), by two-stage sampling:
+//	          composition, verdict in bales, the advice between more bales and
+//	          more pulls, and with a plan its flake and polyol
+//	hazards   HazardNotice: what to show when saved pulls hold a hazard
 //	summaries SummarizeRegion, SummarizeSite, SummarizeSites: shares across
 //	          bales, bales with hazards, with labels used twice, not assessed
+//	value     LoadPrices (a price sheet file, or the illustrative built-in
+//	          one), ValuePulls, ValueBale, ValueSite (every Monte Carlo draw
+//	          priced per tonne of bale, P10/P50/P90 on both routes),
+//	          ValueBales, ValueColumns and ValueCells (the value columns of
+//	          a bale export)
+//	measured  AddMeasured (a batch's flake, moisture, streams and reactor
+//	          figures, checked against the bales and the line), Measured,
+//	          RemoveMeasured
+//	calibrate Calibrate (every measured batch predicted with its line,
+//	          agreement per line and per site, proposed line ranges),
+//	          SaveCalibratedLine (a new version of the line)
 //	settings  Settings, Setting, SaveSetting (checked by the same reader the
 //	          audit or the yield uses; the name inside must match)
 //	transfer  Trust, TrustAdd (fingerprint, PEM or bundle), TrustRemove,
 //	          Import (demo records refused unless ImportOptions.AllowDemo)
 //	demo      MakeDemo (refuses a folder of real records; replaces a demo
 //	          store only with Force)
+//	lab       ImportPaths (folders of bundles: a summary per device, gaps,
+//	          every refusal); ReportBale, ReportSites (what data/report
+//	          renders as HTML); ExportCSV (bales, pulls, sites), ExportGeoJSON;
+//	          WriteFile (synced, never over an existing file unless forced)
 //	files     ReadPulls: the pulls CSV from any reader (stdin too), BOM accepted,
 //	          UTF-16, semicolons and decimal commas refused with the fix, "did
 //	          you mean" for keys, kg or lb, optional weighed and taken columns
@@ -61,7 +82,9 @@
 // Results are plain structs of typed values; states are enums with
 // String() (AuditState, Refusal, Concern, Step, SettingKind, QueryKind,
 // Unit, Caution, FingerprintSource; assess.Verdict, assess.Bound,
-// assess.Method from the audit). Nothing needs a string compared.
+// assess.Method from the audit; yield.Route, yield.ObsKind,
+// yield.CoverageVerdict and record.Method from value and calibration).
+// Nothing needs a string compared.
 //
 // Errors wrap a sentinel of this package (ErrNotFound, ErrAmbiguous,
 // ErrWrongKind, ErrDeleted, ErrRefused, ErrNeedsConfirm, ErrNoPulls,

@@ -10,8 +10,8 @@ import (
 	"baleassay/data/transfer"
 )
 
-// ExportOptions choose what Export writes.
-type ExportOptions struct {
+// BundleOptions choose what ExportBundles writes.
+type BundleOptions struct {
 	// SinceLast names a destination ("lab"): only what it has not had
 	// from this store yet. Empty: every record.
 	SinceLast string
@@ -23,13 +23,13 @@ type ExportOptions struct {
 	Force bool
 }
 
-// Export writes this store's records as signed bundle files to to: a
+// ExportBundles writes this store's records as signed bundle files to to: a
 // folder (names bale-<device>-<number>.bale, never replacing a file) or
 // a file name (refused if it exists, unless Force). Every record carries
 // its author's proof. It returns what was written and the signing key's
 // fingerprint. A missing target folder is refused before anything is
 // written, with what to do.
-func (d *Desk) Export(to string, o ExportOptions) (transfer.ExportResult, transfer.Fingerprint, error) {
+func (d *Desk) ExportBundles(to string, o BundleOptions) (transfer.ExportResult, transfer.Fingerprint, error) {
 	if err := CheckExportTarget(to); err != nil {
 		return transfer.ExportResult{}, transfer.Fingerprint{}, err
 	}

@@ -80,7 +80,7 @@ func TestDemoStoreExports(t *testing.T) {
 	}
 	defer d.Close()
 	stick := t.TempDir()
-	res, fp, err := d.Export(stick+string(os.PathSeparator), ExportOptions{})
+	res, fp, err := d.ExportBundles(stick+string(os.PathSeparator), BundleOptions{})
 	if err != nil || len(res.Files) == 0 || res.Relayed != res.Events {
 		t.Fatalf("demo export: %+v, %v", res, err)
 	}

@@ -80,6 +80,8 @@ func TestCDDLMatchesCode(t *testing.T) {
 		{"bale", cddlKeys(cddlRule(t, src, "bale")), structKeys(record.BaleRecord{})},
 		{"pull", cddlKeys(cddlRule(t, src, "pull")), structKeys(record.PullRecord{})},
 		{"setting", cddlKeys(cddlRule(t, src, "setting")), structKeys(record.SettingRecord{})},
+		{"measured", cddlKeys(cddlRule(t, src, "measured")), structKeys(record.MeasuredRecord{})},
+		{"reactor", cddlKeys(cddlRule(t, src, "reactor")), structKeys(record.ReactorRecord{})},
 		{"bundle-header", cddlKeys(cddlRule(t, src, "bundle-header")), structKeys(headerWire{})},
 		{"authorship", cddlKeys(cddlRule(t, src, "authorship")), []int{1, 2, 3, 4}},
 	} {
@@ -98,6 +100,8 @@ func TestCDDLMatchesCode(t *testing.T) {
 		{"clock-ms", strconv.FormatInt(record.MinTimeMs, 10) + ".." + strconv.FormatInt(record.MaxTimeMs-1, 10)},
 		{"date-ms", strconv.FormatInt(record.MinDateMs, 10) + ".." + strconv.FormatInt(record.MaxTimeMs-1, 10)},
 		{"pull", "0.." + strconv.Itoa(record.MaxPieces)},
+		{"measured", "[1*" + strconv.Itoa(record.MaxBatchBales) + " entity-id]"},
+		{"measured", "0.0.." + strconv.FormatFloat(record.MaxFlakeMoisturePct, 'f', 1, 64)},
 		{"bundle-body", "at most " + strconv.Itoa(MaxBundleProofs)},
 	} {
 		if !strings.Contains(cddlRule(t, src, c.rule), c.want) {
