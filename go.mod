@@ -13,6 +13,14 @@ require (
 )
 
 require (
+	gioui.org v0.10.3 // indirect
+	gioui.org/shader v1.0.9 // indirect
+	github.com/go-text/typesetting v0.3.5 // indirect
+	github.com/godbus/dbus/v5 v5.2.2 // indirect
 	github.com/x448/float16 v0.8.4 // indirect
+	golang.org/x/exp/shiny v0.0.0-20250408133849-7e4ce0ab07d0 // indirect
+	golang.org/x/image v0.26.0 // indirect
+	golang.org/x/net v0.48.0 // indirect
 	golang.org/x/sys v0.45.0 // indirect
+	golang.org/x/text v0.32.0 // indirect
 )
