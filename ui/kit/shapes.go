@@ -57,4 +57,3 @@ func diamond(gtx layout.Context, c color.NRGBA, s int) {
 	r := int(fs * 0.12)
 	paint.FillShape(gtx.Ops, c, clip.Ellipse(image.Rect(s/2-r, s/2-r, s/2+r, s/2+r)).Op(gtx.Ops))
 }
-
