@@ -1,0 +1,241 @@
+// Package ui is the field app: five screens over the use-case layer
+// data/desk, drawn with Gio. Each screen is one struct holding its widget
+// state; its Layout returns Actions, which App applies after the frame.
+// Store work runs on one owner goroutine and comes back through the inbox
+// (see async.go). ui computes nothing of its own: every figure comes from
+// desk.
+package ui
+
+import (
+
+	"gioui.org/app"
+	"gioui.org/io/event"
+	"gioui.org/io/key"
+	"gioui.org/io/semantic"
+	"gioui.org/layout"
+	"gioui.org/op"
+	"gioui.org/op/clip"
+	"gioui.org/widget"
+
+	"baleassay/ui/kit"
+	"baleassay/ui/theme"
+)
+
+// Config is what the app is opened on.
+type Config struct {
+	Mode  theme.Mode
+	Scale float32
+	Unit  MassUnit
+	Demo  bool // the store is the demo store: show the banner
+	// StoreDir is the store's folder, shown in the footer.
+	StoreDir string
+}
+
+// App is the window's content: the screens, the shell around them and the
+// background machinery.
+type App struct {
+	cfg    Config
+	th     *theme.Theme
+	screen Screen
+	help   bool
+
+	tabs      [numScreens]widget.Clickable
+	helpBtn   widget.Clickable
+	modeBtn   widget.Clickable
+	scaleBtn  widget.Clickable
+	unitBtn   widget.Clickable
+	closeHelp widget.Clickable
+	helpList  widget.List
+
+	in    inbox
+	owner *owner
+
+	// Frames counts laid-out frames (tests and the start-up probe read it).
+	Frames     int
+	firstFrame func()
+}
+
+// OnFirstFrame registers fn to run once, after the first frame is handed
+// to the GPU (the start-up measurement).
+func (a *App) OnFirstFrame(fn func()) { a.firstFrame = fn }
+
+// New builds the app. Call Close when done.
+func New(cfg Config) *App {
+	if cfg.Scale <= 0 {
+		cfg.Scale = 1
+	}
+	a := &App{cfg: cfg, owner: newOwner()}
+	a.th = theme.New(cfg.Mode, cfg.Scale, nil)
+	a.helpList.Axis = layout.Vertical
+	return a
+}
+
+// Close stops the background work after the queued jobs.
+func (a *App) Close() { a.owner.close() }
+
+// Screen is the screen shown.
+func (a *App) Screen() Screen { return a.screen }
+
+// HelpOpen reports whether the list of keys is shown.
+func (a *App) HelpOpen() bool { return a.help }
+
+// Theme is the theme in use.
+func (a *App) Theme() *theme.Theme { return a.th }
+
+// Settle waits for queued store jobs and applies their answers: for tests
+// and the smoke probe, never on the frame loop.
+func (a *App) Settle() {
+	a.owner.idle()
+	a.in.drain()
+}
+
+// Run drives a window until it closes.
+func (a *App) Run(w *app.Window) error {
+	a.in.mu.Lock()
+	a.in.wake = w.Invalidate
+	a.in.mu.Unlock()
+	var ops op.Ops
+	for {
+		switch e := w.Event().(type) {
+		case app.DestroyEvent:
+			return e.Err
+		case app.FrameEvent:
+			a.in.drain()
+			gtx := app.NewContext(&ops, e)
+			acts := a.Layout(gtx)
+			e.Frame(gtx.Ops)
+			if a.firstFrame != nil {
+				a.firstFrame()
+				a.firstFrame = nil
+			}
+			a.Apply(acts)
+			if len(acts) > 0 {
+				w.Invalidate()
+			}
+		}
+	}
+}
+
+// Layout draws one frame and returns what the user asked for.
+func (a *App) Layout(gtx layout.Context) []Action {
+	a.Frames++
+	th := a.th
+	var acts []Action
+	defer clip.Rect{Max: gtx.Constraints.Max}.Push(gtx.Ops).Pop()
+	semantic.DescriptionOp("baleassay").Add(gtx.Ops)
+	kit.Fill(gtx, th.Pal.Bg, gtx.Constraints.Max, 0)
+	acts = append(acts, a.globalKeys(gtx)...)
+
+	layout.Flex{Axis: layout.Vertical}.Layout(gtx,
+		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
+			if !a.cfg.Demo {
+				return layout.Dimensions{}
+			}
+			return kit.Banner{Th: th, Title: "DEMO DATA",
+				Text: "Invented yards, bales and pulls for trying the app. Start with --store DIR (or without --demo) for real records."}.Layout(gtx, nil)
+		}),
+		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
+			d, ac := a.layoutBar(gtx)
+			acts = append(acts, ac...)
+			return d
+		}),
+		layout.Flexed(1, func(gtx layout.Context) layout.Dimensions {
+			return layout.UniformInset(12).Layout(gtx, func(gtx layout.Context) layout.Dimensions {
+				return a.layoutScreen(gtx)
+			})
+		}),
+		layout.Rigid(a.layoutFooter),
+	)
+	if a.help {
+		acts = append(acts, a.layoutHelp(gtx)...)
+	}
+	return acts
+}
+
+func (a *App) layoutScreen(gtx layout.Context) layout.Dimensions {
+	return kit.Text{Th: a.th, Text: a.screen.Title(), Color: a.th.Pal.Text, Size: theme.SizeTitle, Bold: true}.Layout(gtx)
+}
+
+// globalKeys reads the keys that work everywhere.
+func (a *App) globalKeys(gtx layout.Context) []Action {
+	var acts []Action
+	event.Op(gtx.Ops, a)
+	for {
+		ev, ok := gtx.Event(globalFilters(a)...)
+		if !ok {
+			break
+		}
+		e, ok := ev.(key.Event)
+		if !ok || e.State != key.Press {
+			continue
+		}
+		switch {
+		case e.Name == keyHelp:
+			acts = append(acts, ToggleHelp{})
+		case e.Name == key.NameEscape:
+			acts = append(acts, CloseHelp{})
+		case e.Name == keyContrast:
+			acts = append(acts, SetMode{Mode: otherMode(a.th.Mode)})
+		case e.Name == keyBigger || e.Name == "+":
+			acts = append(acts, SetScale{Scale: nextScale(a.th.Scale, +1)})
+		case e.Name == keySmaller:
+			acts = append(acts, SetScale{Scale: nextScale(a.th.Scale, -1)})
+		default:
+			for _, s := range Screens() {
+				if e.Name == screenKey(s) {
+					acts = append(acts, GoTo{Screen: s})
+				}
+			}
+		}
+	}
+	return acts
+}
+
+// Apply carries out actions. It runs on the window goroutine.
+func (a *App) Apply(acts []Action) {
+	for _, act := range acts {
+		switch act := act.(type) {
+		case GoTo:
+			a.screen = act.Screen
+			a.help = false
+		case ToggleHelp:
+			a.help = !a.help
+		case CloseHelp:
+			a.help = false
+		case SetMode:
+			a.th = a.th.With(act.Mode, a.th.Scale)
+			a.cfg.Mode = act.Mode
+		case SetScale:
+			a.th = a.th.With(a.th.Mode, act.Scale)
+			a.cfg.Scale = act.Scale
+		case SetMassUnit:
+			a.cfg.Unit = act.Unit
+		}
+	}
+}
+
+func otherMode(m theme.Mode) theme.Mode {
+	if m == theme.HighContrast {
+		return theme.Normal
+	}
+	return theme.HighContrast
+}
+
+// nextScale steps through theme.Scales, stopping at the ends.
+func nextScale(cur float32, dir int) float32 {
+	i := 0
+	for j, s := range theme.Scales {
+		if s <= cur+1e-3 {
+			i = j
+		}
+	}
+	i += dir
+	if i < 0 {
+		i = 0
+	}
+	if i >= len(theme.Scales) {
+		i = len(theme.Scales) - 1
+	}
+	return theme.Scales[i]
+}
+

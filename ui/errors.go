@@ -1,0 +1,5 @@
+package ui
+
+import "errors"
+
+var errEmpty = errors.New("ui: empty field")
