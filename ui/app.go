@@ -7,7 +7,6 @@
 package ui
 
 import (
-
 	"gioui.org/app"
 	"gioui.org/io/event"
 	"gioui.org/io/key"
@@ -238,4 +237,3 @@ func nextScale(cur float32, dir int) float32 {
 	}
 	return theme.Scales[i]
 }
-

@@ -78,7 +78,9 @@ func main() {
 	}
 	a := ui.New(cfg)
 	if os.Getenv("BALEASSAY_FRAME_LOG") != "" {
-		a.OnFirstFrame(func() { fmt.Fprintf(os.Stderr, "baleassay: first frame %d ms after start\n", time.Since(start).Milliseconds()) })
+		a.OnFirstFrame(func() {
+			fmt.Fprintf(os.Stderr, "baleassay: first frame %d ms after start\n", time.Since(start).Milliseconds())
+		})
 	}
 	go func() {
 		w := new(app.Window)
