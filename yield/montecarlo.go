@@ -1,6 +1,7 @@
 package yield
 
 import (
+	"context"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -170,36 +171,8 @@ var isPETComp = func() []bool {
 // with the ratio estimator of each resample. The finite-population
 // correction is not applied to the resampling.
 func Simulate(pulls []assess.Pull, baleKg float64, plan Plan, opt MCOptions) (MCResult, error) {
-	if _, err := Evaluate(pulls, baleKg, plan); err != nil {
-		return MCResult{}, err
-	}
-	draws := opt.Draws
-	if draws == 0 {
-		draws = DefaultDraws
-	}
-	if draws < 1 || draws > MaxDraws {
-		return MCResult{}, fieldErr("monte carlo", "draws", ErrOutOfRange, "%d draws: give 1 to %d", draws, MaxDraws)
-	}
-	s := newSimulator(pulls, baleKg, plan, opt)
-	flake := make([]float64, draws)
-	product := make([]float64, draws)
-	ohv := make([]float64, 0, draws)
-	for d := range draws {
-		f, p, h := s.draw()
-		flake[d], product[d] = f, p
-		if !math.IsNaN(h) {
-			ohv = append(ohv, h)
-		}
-	}
-	res := MCResult{Draws: draws, Seed: opt.Seed,
-		FlakeKg: summarize(flake), GlycolysateKg: summarize(product), HydroxylValue: summarize(ohv)}
-	for it, l := range s.limits {
-		res.SpecPass[it] = math.NaN()
-		if l != nil {
-			res.SpecPass[it] = float64(s.pass[it]) / float64(draws)
-		}
-	}
-	return res, nil
+	_, res, err := Run(context.Background(), pulls, baleKg, plan, opt, nil)
+	return res, err
 }
 
 // summarize sorts x in place and returns its P10, P50, P90 and mean.

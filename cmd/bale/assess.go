@@ -5,17 +5,19 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"strings"
 	"text/tabwriter"
 
 	"baleassay/assess"
+	"baleassay/data/desk"
 )
 
 func init() {
 	register(command{
 		name:    "assess",
-		usage:   "PULLS.csv [--bale-kg N] [--spec NAME|FILE] [--confidence C] [--method ratio|mean] [--precision E] [--json]",
-		summary: "estimate a bale's composition from its pulls and judge it against a spec",
+		usage:   "PULLS.csv|BALE [--bale-kg N] [--spec NAME|FILE] [--confidence C] [--method ratio|mean] [--precision E] [--json] [--store DIR|--demo]",
+		summary: "estimate a bale's composition from its pulls (a file, or a stored bale with its spec) and judge it against a spec",
 		run:     runAssess,
 	})
 	register(command{
@@ -34,12 +36,13 @@ func runAssess(args []string, stdout, stderr io.Writer) error {
 	method := fs.String("method", "ratio", "estimator: ratio (Cochran) or mean (ASTM D5231 mean of fractions)")
 	prec := fs.Float64("precision", assess.DefaultRelPrecision, "relative precision for the sample-size advice, e.g. 0.10")
 	asJSON := fs.Bool("json", false, "print the report as JSON")
+	dir := storeFlag(fs)
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
 	}
 	if len(pos) != 1 {
-		return usagef("give exactly one pulls CSV file")
+		return usagef("give exactly one pulls CSV file, or a stored bale")
 	}
 	m, err := assess.ParseMethod(*method)
 	if err != nil {
@@ -53,6 +56,31 @@ func runAssess(args []string, stdout, stderr io.Writer) error {
 	}
 	if math.IsNaN(*baleKg) || math.IsInf(*baleKg, 0) || *baleKg < 0 {
 		return usagef("--bale-kg %g: give the bale's gross mass in kg (0 or more)", *baleKg)
+	}
+	if _, err := os.Stat(pos[0]); err != nil && !strings.ContainsAny(pos[0], "/\\.") {
+		// Not a file: a stored bale, its pulls and its spec from the store.
+		d, err := openDesk(*dir, false)
+		if err != nil {
+			return err
+		}
+		defer d.Close()
+		opt := desk.AuditOptions{Confidence: *conf, Method: m, Precision: *prec}
+		if flagSet(fs, "spec") {
+			opt.Spec = *specName
+		}
+		a, err := d.AuditBale(pos[0], opt)
+		if err != nil {
+			return err
+		}
+		if *asJSON {
+			return writeJSON(stdout, a.Report)
+		}
+		fmt.Fprintf(stdout, "Bale %s %s, %s kg, from the store\n", a.Bale, a.Record.Tag, desk.Num(a.Record.GrossKg, 1))
+		if len(a.LabelClash) > 0 {
+			fmt.Fprintf(stdout, "CONFLICT: pull labels %s were used twice (two devices); both pulls are counted, see bale conflicts\n", strings.Join(a.LabelClash, ", "))
+		}
+		printReport(stdout, a.Report, a.Result)
+		return nil
 	}
 	var spec *assess.Spec
 	if *specName != "none" {

@@ -1,11 +1,9 @@
 package main
 
 import (
+	"baleassay/data/desk"
 	"fmt"
 	"io"
-	"strings"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -21,7 +19,10 @@ func init() {
 type conflictJSON struct {
 	ID    string      `json:"id"`
 	Kind  string      `json:"kind"`
-	Heads []eventJSON `json:"heads"`
+	Heads []eventJSON `json:"heads,omitempty"`
+	// A label used by more than one pull of a bale (kind "label").
+	Label string   `json:"label,omitempty"`
+	Pulls []string `json:"pulls,omitempty"`
 }
 
 func runConflicts(args []string, stdout, stderr io.Writer) error {
@@ -31,21 +32,30 @@ func runConflicts(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("conflicts")
 	dir := storeFlag(fs)
 	asJSON := fs.Bool("json", false, "print JSON")
-	_, s, err := openForArgs(fs, dir, args, 0, " (did you mean 'conflicts resolve ID EVENT'?)")
+	_, d, err := openForArgs(fs, dir, args, 0, " (did you mean 'conflicts resolve ID EVENT'?)")
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	cs, err := s.Conflicts()
+	defer d.Close()
+	cs, err := d.Conflicts()
 	if err != nil {
 		return err
 	}
-	out := make([]conflictJSON, len(cs))
-	for i, c := range cs {
-		out[i] = conflictJSON{ID: c.ID.String(), Kind: c.Kind.String()}
-		for _, h := range c.Heads {
-			out[i].Heads = append(out[i].Heads, eventOut(h))
+	out := []conflictJSON{}
+	for _, c := range cs {
+		if c.Label != "" {
+			j := conflictJSON{ID: c.Bale.String(), Kind: "label", Label: c.Label}
+			for _, p := range c.Pulls {
+				j.Pulls = append(j.Pulls, p.String())
+			}
+			out = append(out, j)
+			continue
 		}
+		j := conflictJSON{ID: c.State.ID.String(), Kind: c.State.Kind.String()}
+		for _, h := range c.State.Heads {
+			j.Heads = append(j.Heads, eventOut(h))
+		}
+		out = append(out, j)
 	}
 	if *asJSON {
 		return recJSON(stdout, out)
@@ -55,50 +65,37 @@ func runConflicts(args []string, stdout, stderr io.Writer) error {
 		return nil
 	}
 	for _, c := range cs {
-		fmt.Fprintf(stdout, "%s %s has %d concurrent values:\n", c.Kind, c.ID, len(c.Heads))
-		for _, h := range c.Heads {
-			fmt.Fprintf(stdout, "  event %s  device %s  %s\n    %s\n", h.ID, h.Device.String()[:8], h.Clock, summarize(h.Event))
+		if c.Label != "" {
+			fmt.Fprintf(stdout, "bale %s has %s labelled %q (added on two devices):\n", c.Bale, desk.Plural(len(c.Pulls), "pull", "pulls"), c.Label)
+			for _, p := range c.Pulls {
+				fmt.Fprintf(stdout, "  pull %s\n", p)
+			}
+			fmt.Fprintln(stdout, "  both are counted in the audit; relabel one (bale pulls edit PULL FILE) or remove it (bale pulls remove PULL)")
+			continue
 		}
-		fmt.Fprintf(stdout, "  keep one: bale conflicts resolve %s EVENT\n", c.ID)
+		st := c.State
+		fmt.Fprintf(stdout, "%s %s has %d concurrent values:\n", st.Kind, st.ID, len(st.Heads))
+		for _, h := range st.Heads {
+			fmt.Fprintf(stdout, "  event %s  device %s  %s\n    %s\n", h.ID, h.Device.String()[:8], h.Clock, desk.Describe(h.Event))
+		}
+		fmt.Fprintf(stdout, "  keep one: bale conflicts resolve %s EVENT\n", st.ID)
 	}
-	fmt.Fprintf(stdout, "%d conflicts\n", len(out))
+	fmt.Fprintln(stdout, desk.Plural(len(out), "conflict", "conflicts"))
 	return nil
 }
 
 func conflictsResolve(args []string, stdout io.Writer) error {
 	fs := newFlags("conflicts resolve")
 	dir := storeFlag(fs)
-	pos, s, err := openForArgs(fs, dir, args, 2, "give the entity id and the id of the event whose value to keep")
+	pos, d, err := openForArgs(fs, dir, args, 2, "give the record's id and the id of the event whose value to keep")
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	id, err := s.FindEntity(pos[0])
+	defer d.Close()
+	st, keep, err := d.ResolveConflict(pos[0], pos[1])
 	if err != nil {
-		return err
+		return withHint(err)
 	}
-	st, err := s.Entity(id)
-	if err != nil {
-		return err
-	}
-	if !st.Conflicted() {
-		return fmt.Errorf("%s %s has no conflict", st.Kind, id)
-	}
-	var keep data.EventID
-	found := 0
-	want := strings.ToLower(pos[1])
-	for _, h := range st.Heads {
-		if len(want) >= 6 && strings.HasPrefix(h.ID.String(), want) {
-			keep = h.ID
-			found++
-		}
-	}
-	if found != 1 {
-		return fmt.Errorf("event %q is not one of the %d current values of %s (see 'bale conflicts'); give at least 6 hex digits", pos[1], len(st.Heads), id)
-	}
-	if _, err := s.Resolve(id, keep); err != nil {
-		return recSaveError(err)
-	}
-	fmt.Fprintf(stdout, "resolved %s %s: kept the value of event %s\n", st.Kind, id, keep.Short())
+	fmt.Fprintf(stdout, "resolved %s %s: kept the value of event %s\n", st.Kind, st.ID, keep.Short())
 	return nil
 }

@@ -1,12 +1,10 @@
 package main
 
 import (
+	"baleassay/data/desk"
+	"errors"
 	"fmt"
 	"io"
-	"os"
-	"path/filepath"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -34,42 +32,14 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 	if *weeks < 1 || *weeks > 52 {
 		return usagef("--weeks %d: give 1 to 52", *weeks)
 	}
-	dir := *dirFlag
-	if dir == "" {
-		if dir, err = demoStoreDir(); err != nil {
-			return err
-		}
-	}
-	if _, err := os.Stat(filepath.Join(dir, data.DBFile)); err == nil {
-		s, err := data.Open(dir)
-		if err != nil {
-			return err
-		}
-		demo, err1 := s.IsDemo()
-		n, err2 := s.LastSeq()
-		s.Close()
-		if err1 != nil || err2 != nil {
-			return fmt.Errorf("cannot read the store at %s", dir)
-		}
-		switch {
-		case !demo && n > 0:
-			return fmt.Errorf("%s holds real records (%d events), not a demo store: the demo is never mixed into real data; choose another --store", dir, n)
-		case demo && !*force:
-			return fmt.Errorf("a demo store already exists at %s; use it with --demo (e.g. 'bale sites list --demo'), or give --force to make it again", dir)
-		}
-		// An empty store or a demo store being replaced: start afresh.
-		if err := os.Remove(filepath.Join(dir, data.DBFile)); err != nil {
-			return fmt.Errorf("cannot replace the demo store: %w", err)
-		}
-	}
-	s, err := data.Open(dir)
-	if err != nil {
+	dir, sum, err := desk.MakeDemo(desk.DemoOptions{Dir: *dirFlag, Weeks: *weeks, Seed: *seed, Force: *force})
+	switch {
+	case errors.Is(err, desk.ErrDemoExists):
+		return fmt.Errorf("a demo store already exists at %s; use it with --demo (e.g. 'bale sites list --demo'), or give --force to make it again", dir)
+	case errors.Is(err, desk.ErrRealStore):
+		return fmt.Errorf("%s holds real records, not a demo store: the demo is never mixed into real data; choose another --store", dir)
+	case err != nil:
 		return err
-	}
-	defer s.Close()
-	sum, err := data.WriteDemo(s, data.DemoOptions{Weeks: *weeks, Seed: *seed})
-	if err != nil {
-		return fmt.Errorf("demo scenario not written: %w", err)
 	}
 	fmt.Fprintf(stdout, "demo store %s\n", dir)
 	fmt.Fprintf(stdout, "  an invented region (the Vale of Orrin): %d sites, %d bales, %d pulls, %d events, %s to %s\n",

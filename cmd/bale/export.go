@@ -1,14 +1,13 @@
 package main
 
 import (
+	"baleassay/data/transfer"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -26,7 +25,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	to := fs.String("to", "", "bundle `PATH`: a file, or an existing folder for bale-<device>-<seq>.bale names")
 	since := fs.String("since-last", "", "only what destination `DEST` (e.g. lab) has not had from this store yet")
 	all := fs.Bool("all", false, "every event in the store (the default)")
-	partMB := fs.Int("part-mb", data.DefaultPartBytes>>20, "split into signed parts of at most `N` MiB")
+	partMB := fs.Int("part-mb", transfer.DefaultPartBytes>>20, "split into signed parts of at most `N` MiB")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -38,22 +37,23 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 		return usagef("give --to PATH")
 	case *all && *since != "":
 		return usagef("--all and --since-last exclude each other")
-	case *partMB < 1 || *partMB > data.MaxBundleBytes>>20:
-		return usagef("--part-mb must be 1 to %d", data.MaxBundleBytes>>20)
+	case *partMB < 1 || *partMB > transfer.MaxBundleBytes>>20:
+		return usagef("--part-mb must be 1 to %d", transfer.MaxBundleBytes>>20)
 	}
 	if err := checkExportTarget(*to); err != nil {
 		return err
 	}
-	s, err := openExistingStore(*store)
+	d, err := openDesk(*store, false)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
+	defer d.Close()
+	s := d.Store()
 	key, _, err := deviceKey(s.Dir())
 	if err != nil {
 		return err
 	}
-	res, err := data.Export(s, key, *to, data.ExportOptions{SinceLast: *since, PartBytes: *partMB << 20})
+	res, err := transfer.Export(s, key, *to, transfer.ExportOptions{SinceLast: *since, PartBytes: *partMB << 20})
 	if err != nil {
 		return err
 	}

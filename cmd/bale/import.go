@@ -1,19 +1,20 @@
 package main
 
 import (
+	"baleassay/data/desk"
+	"baleassay/data/transfer"
+	"context"
 	"encoding/json"
 	"fmt"
 	"io"
 	"os"
 	"strings"
-
-	"baleassay/data"
 )
 
 func init() {
 	register(command{
 		name:    "import",
-		usage:   "FILE|FOLDER... [--store DIR] [--json]",
+		usage:   "FILE|FOLDER... [--store DIR] [--allow-demo] [--json]",
 		summary: "merge signed bundle files into this store (each file all or nothing; files are never changed)",
 		run:     runImport,
 	})
@@ -39,6 +40,7 @@ type fileJSON struct {
 func runImport(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("import")
 	store := storeFlag(fs)
+	allowDemo := fs.Bool("allow-demo", false, "take records of the invented demo scenario into a store of real records")
 	asJSON := fs.Bool("json", false, "print JSON: {files: [{path, device, bundle, part, parts, signer, events, new, present, conflicts, replay, flags, error}], gaps: [text]}")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
@@ -47,24 +49,22 @@ func runImport(args []string, stdout, stderr io.Writer) error {
 	if len(pos) == 0 {
 		return usagef("give at least one bundle file or folder")
 	}
-	files, err := data.ExpandPaths(pos)
+	files, err := transfer.ExpandPaths(pos)
 	if err != nil {
 		return err
 	}
 	if len(files) == 0 {
-		return fmt.Errorf("no %s files in %s", data.BundleExt, strings.Join(pos, ", "))
+		return fmt.Errorf("no %s files in %s", transfer.BundleExt, strings.Join(pos, ", "))
 	}
-	s, err := openStore(*store)
+	d, err := openDesk(*store, true)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	_, trust, err := trustFor(s.Dir())
+	defer d.Close()
+	rep, err := d.Import(context.Background(), files, desk.ImportOptions{AllowDemo: *allowDemo}, newProgress(stderr, len(files)).show)
 	if err != nil {
 		return err
 	}
-	im := &data.Importer{Store: s, Trust: trust, Progress: newProgress(stderr, len(files)).show}
-	rep := im.ImportFiles(files)
 	if *asJSON {
 		out := struct {
 			Files []fileJSON `json:"files"`
@@ -120,23 +120,18 @@ func newProgress(w io.Writer, files int) *progress {
 	return p
 }
 
-func (p *progress) show(e data.Progress) {
+func (p *progress) show(e desk.Progress) {
+	end := e.Step == desk.StepDone || e.Step == desk.StepRefused
 	if p.tty {
 		const width = 24
-		done := e.Index - 1
-		if e.Step == "done" || e.Step == "refused" {
-			done = e.Index
-		}
-		n := width * done / max(1, e.Of)
-		fmt.Fprintf(p.w, "\r[%s%s] %d/%d files, %d events %-9s", strings.Repeat("#", n), strings.Repeat(" ", width-n), done, e.Of, e.EventsSoFar, e.Step)
-		if done == e.Of && (e.Step == "done" || e.Step == "refused") {
+		n := width * e.Done / max(1, e.Of)
+		fmt.Fprintf(p.w, "\r[%s%s] %d/%d files, %d events %-9s", strings.Repeat("#", n), strings.Repeat(" ", width-n), e.Done, e.Of, e.EventsSoFar, e.Step)
+		if e.Done == e.Of && end {
 			fmt.Fprintln(p.w)
 		}
 		return
 	}
-	// Plain lines only where an import takes a while: several files, or
-	// a large one.
-	if e.Step == "applying" && (p.files > 1 || e.Events >= 10_000) {
-		fmt.Fprintf(p.w, "import: file %d of %d: %s: checking and applying %d events\n", e.Index, e.Of, e.File, e.Events)
+	if e.Step == desk.StepApplying && (p.files > 1 || e.Events >= 10_000) {
+		fmt.Fprintf(p.w, "import: file %d of %d: %s: checking and applying %d events\n", e.Done+1, e.Of, e.File, e.Events)
 	}
 }

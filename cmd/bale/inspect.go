@@ -1,10 +1,10 @@
 package main
 
 import (
+	"baleassay/data/desk"
+	"baleassay/data/transfer"
 	"fmt"
 	"io"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -26,19 +26,19 @@ func runInspect(args []string, stdout, stderr io.Writer) error {
 	if len(pos) != 1 {
 		return usagef("give one bundle file")
 	}
-	raw, err := data.ReadBundleFile(pos[0], 0)
+	raw, err := transfer.ReadBundleFile(pos[0], 0)
 	if err != nil {
 		return err
 	}
 	// The trust list is read if the store folder has one; nothing is
 	// created or opened for writing.
-	var trust data.TrustFunc
+	var trust transfer.TrustFunc
 	if dir, err := storeDir(*store); err == nil {
-		if _, tf, err := trustFor(dir); err == nil {
+		if _, tf, err := desk.TrustIn(dir); err == nil {
 			trust = tf
 		}
 	}
-	in := data.InspectBundle(raw, trust)
+	in := transfer.InspectBundle(raw, trust)
 	if err := in.WriteText(stdout); err != nil {
 		return err
 	}

@@ -1,15 +1,12 @@
 package main
 
 import (
+	"baleassay/data/transfer"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"io"
-	"io/fs"
 	"os"
 	"path/filepath"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -22,30 +19,12 @@ func init() {
 }
 
 // deviceKey loads or creates the signing key in a store folder.
-func deviceKey(dir string) (*data.DeviceKey, bool, error) {
-	k, created, err := data.LoadOrCreateDeviceKey(dir)
+func deviceKey(dir string) (*transfer.DeviceKey, bool, error) {
+	k, created, err := transfer.LoadOrCreateDeviceKey(dir)
 	if err != nil {
 		return nil, false, fmt.Errorf("device signing key: %w", err)
 	}
 	return k, created, nil
-}
-
-// trustFor returns the trust list of a store folder and a TrustFunc that
-// also accepts the folder's own key, when it has one.
-func trustFor(dir string) (*data.TrustList, data.TrustFunc, error) {
-	tl, err := data.LoadTrust(dir)
-	if err != nil {
-		return nil, nil, err
-	}
-	var self data.Fingerprint
-	k, err := data.LoadDeviceKey(dir)
-	switch {
-	case err == nil:
-		self = k.Fingerprint()
-	case !errors.Is(err, fs.ErrNotExist):
-		return nil, nil, err
-	}
-	return tl, tl.Func(self), nil
 }
 
 func runKey(args []string, stdout, stderr io.Writer) error {
@@ -60,21 +39,22 @@ func runKey(args []string, stdout, stderr io.Writer) error {
 	if len(pos) != 0 {
 		return usagef("no arguments expected, got %q", pos)
 	}
-	s, err := openStore(*store)
+	dk, err := openDesk(*store, true)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
+	defer dk.Close()
+	s := dk.Store()
 	k, created, err := deviceKey(s.Dir())
 	if err != nil {
 		return err
 	}
 	if *public != "" {
-		if err := data.WriteFileAtomic(*public, k.PublicPEM(), 0o644); err != nil {
+		if err := transfer.WriteFileAtomic(*public, k.PublicPEM(), 0o644); err != nil {
 			return err
 		}
 	}
-	keyFile := filepath.Join(s.Dir(), data.KeyFileName)
+	keyFile := filepath.Join(s.Dir(), transfer.KeyFileName)
 	if *asJSON {
 		return json.NewEncoder(stdout).Encode(map[string]any{
 			"device": s.DeviceID().String(), "fingerprint": k.Fingerprint().String(), "key_file": keyFile, "created": created})

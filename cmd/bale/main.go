@@ -5,11 +5,13 @@
 package main
 
 import (
+	"baleassay/data/desk"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"sort"
+	"strings"
 )
 
 // command is one sub-command of bale. Each file of this package registers
@@ -47,6 +49,15 @@ func main() {
 // success, 1 for bad input or a failed operation, 2 for wrong usage.
 func run(args []string, stdout, stderr io.Writer) int {
 	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
+		if len(args) == 2 && args[0] == "help" {
+			c, ok := commands[args[1]]
+			if !ok {
+				fmt.Fprintf(stderr, "bale: unknown command %q; run 'bale help' for the list\n", args[1])
+				return 2
+			}
+			printCommandHelp(stdout, c)
+			return 0
+		}
 		printHelp(stdout)
 		if len(args) == 0 {
 			return 2
@@ -58,6 +69,15 @@ func run(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "bale: unknown command %q; run 'bale help' for the list\n", args[0])
 		return 2
 	}
+	for _, a := range args[1:] {
+		if a == "--" {
+			break
+		}
+		if a == "-h" || a == "--help" || a == "-help" {
+			printCommandHelp(stdout, c)
+			return 0
+		}
+	}
 	err := c.run(args[1:], stdout, stderr)
 	if err == nil {
 		return 0
@@ -65,6 +85,11 @@ func run(args []string, stdout, stderr io.Writer) int {
 	var ue usageError
 	if errors.As(err, &ue) {
 		fmt.Fprintf(stderr, "bale %s: %s\nusage: bale %s %s\n", c.name, ue.msg, c.name, c.usage)
+		return 2
+	}
+	if errors.Is(err, desk.ErrUsage) {
+		msg := strings.TrimPrefix(err.Error(), desk.ErrUsage.Error()+": ")
+		fmt.Fprintf(stderr, "bale %s: %s\nusage: bale %s %s\n", c.name, msg, c.name, c.usage)
 		return 2
 	}
 	fmt.Fprintf(stderr, "bale %s: %v\n", c.name, err)
@@ -85,4 +110,11 @@ func printHelp(w io.Writer) {
 	}
 	fmt.Fprintln(w, "\nSafety: bales are under wire tension; hazardous containers and batteries may be inside;")
 	fmt.Fprintln(w, "caustic wash, hot glycols and isocyanates hurt. See README 'Safety'; local codes and licensed practice rule.")
+}
+
+// printCommandHelp prints one command's summary and usage.
+func printCommandHelp(w io.Writer, c command) {
+	fmt.Fprintf(w, "bale %s: %s\n\nusage: bale %s %s\n", c.name, c.summary, c.name, c.usage)
+	fmt.Fprintln(w, "\nIds may be given as the full id, or any unique prefix or suffix of at least 4 hex digits; bales also by tag, sites by name.")
+	fmt.Fprintln(w, "See README for every flag and the JSON output.")
 }

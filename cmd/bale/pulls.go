@@ -3,19 +3,19 @@ package main
 import (
 	"fmt"
 	"io"
+	"os"
 	"sort"
 	"text/tabwriter"
-	"time"
 
-	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/desk"
+	"baleassay/data/record"
 )
 
 func init() {
 	register(command{
 		name:    "pulls",
-		usage:   "add BALE PULLS.csv [--yes] | list BALE [--json]  [--store DIR|--demo]",
-		summary: "record a bale's pulls from the pulls CSV, or list them",
+		usage:   "add BALE PULLS.csv|- [--unit kg|lb] [--yes] | edit PULL FILE|- [--unit kg|lb] | remove PULL | list BALE [--json]  [--store DIR|--demo]",
+		summary: "record a bale's pulls from the pulls CSV (or the input), correct or remove one, or list them",
 		run:     runPulls,
 	})
 }
@@ -31,82 +31,116 @@ type pullJSON struct {
 	Kg         map[string]float64 `json:"kg"`
 	Pieces     map[string]int64   `json:"pieces,omitempty"`
 	Conflicted bool               `json:"conflicted"`
+	WeighedKg  *float64           `json:"weighed_kg,omitempty"`  // weighed before sorting
+	UnsortedKg *float64           `json:"unsorted_kg,omitempty"` // weighed − sorted parts
 }
 
 func runPulls(args []string, stdout, stderr io.Writer) error {
-	return dispatch(args, stdout, sub("add", pullsAdd), sub("list", pullsList))
+	return dispatch(args, stdout, sub("add", pullsAdd), sub("list", pullsList), sub("edit", pullsEdit), sub("remove", pullsRemove))
 }
 
-// pullRecord converts a pull read from CSV to a record: categories with
-// mass above 0 kg, and counted categories.
-func pullRecord(bale data.EntityID, p assess.Pull, taken time.Time) data.PullRecord {
-	r := data.PullRecord{Bale: bale, Label: p.Label, TakenMs: taken.UnixMilli(), Kg: map[string]float64{}}
-	for i, m := range p.Kg {
-		if m != 0 {
-			r.Kg[assess.CategoryAt(i).Key] = m
+// stdin is where "-" reads from; tests replace it.
+var stdin io.Reader = os.Stdin
+
+// readPullsArg reads the pulls CSV from a file or, for "-", from stdin.
+func readPullsArg(arg, unitS string) ([]record.PullRecord, error) {
+	var unit desk.Unit
+	if unitS != "" {
+		u, err := desk.ParseUnit(unitS)
+		if err != nil {
+			return nil, usagef("--unit %q: give kg or lb", unitS)
 		}
+		unit = u
 	}
-	for i, n := range p.Pieces {
-		if n != assess.NotCounted {
-			if r.Pieces == nil {
-				r.Pieces = map[string]int64{}
-			}
-			r.Pieces[assess.CategoryAt(i).Key] = int64(n)
-		}
+	if arg == "-" {
+		return desk.ReadPulls(stdin, "stdin", unit)
 	}
-	return r
+	f, err := os.Open(arg)
+	if err != nil {
+		return nil, fmt.Errorf("cannot read %s: %v", arg, err)
+	}
+	defer f.Close()
+	return desk.ReadPulls(f, arg, unit)
 }
 
 func pullsAdd(args []string, stdout io.Writer) error {
 	fs := newFlags("pulls add")
 	dir := storeFlag(fs)
+	unit := fs.String("unit", "", "unit of the masses in the file: kg (default) or lb")
 	yes := fs.Bool("yes", false, "save even when a value looks implausible")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
 	}
 	if len(pos) != 2 {
-		return usagef("give the bale id and the pulls CSV file")
+		return usagef("give the bale and the pulls CSV file (- reads it from the input)")
 	}
-	pulls, err := assess.ReadPullsFile(pos[1])
+	pulls, err := readPullsArg(pos[1], *unit)
 	if err != nil {
 		return err
 	}
-	s, err := openExistingStore(*dir)
+	d, err := openDesk(*dir, false)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	bale, st, err := findEntity(s, pos[0], data.KindBale)
+	defer d.Close()
+	bale, _, err := d.AddPulls(pos[0], pulls, desk.SaveOptions{Confirm: *yes})
 	if err != nil {
-		return err
+		return fmt.Errorf("%s: %w", pos[1], withHint(err))
 	}
-	have, err := s.Pulls(bale)
-	if err != nil {
-		return err
-	}
-	used := map[string]bool{}
-	for _, p := range have {
-		used[p.Pull.Label] = true
-	}
-	now := time.Now()
-	evs := make([]data.Event, len(pulls))
-	for i, p := range pulls {
-		if used[p.Label] {
-			return fmt.Errorf("%s: bale %s already has a pull %q; nothing was saved: give the new pulls other labels", pos[1], bale, p.Label)
-		}
-		rec := pullRecord(bale, p, now)
-		evs[i] = data.Event{Kind: data.KindPull, Pull: &rec}
-	}
-	if _, err := s.Save(evs, data.SaveOptions{Confirm: *yes}); err != nil {
-		return fmt.Errorf("%s: %w", pos[1], recSaveError(err))
-	}
-	cur, _ := st.Current()
 	var kg float64
 	for _, p := range pulls {
-		kg += p.TotalKg()
+		kg += p.PartsKg()
 	}
-	fmt.Fprintf(stdout, "saved %d pulls (%.2f kg) for bale %s %s\n", len(pulls), kg, bale, cur.Bale.Tag)
+	fmt.Fprintf(stdout, "saved %s (%s kg) for bale %s\n", desk.Plural(len(pulls), "pull", "pulls"), desk.Num(kg, 3), bale)
+	return nil
+}
+
+func pullsEdit(args []string, stdout io.Writer) error {
+	fs := newFlags("pulls edit")
+	dir := storeFlag(fs)
+	unit := fs.String("unit", "", "unit of the masses in the file: kg (default) or lb")
+	yes := fs.Bool("yes", false, "save even when a value looks implausible")
+	pos, err := parseArgs(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) != 2 {
+		return usagef("give the pull and a pulls CSV file with its one corrected line (- reads it from the input)")
+	}
+	pulls, err := readPullsArg(pos[1], *unit)
+	if err != nil {
+		return err
+	}
+	if len(pulls) != 1 {
+		return fmt.Errorf("%s holds %s: give exactly the one corrected pull", pos[1], desk.Plural(len(pulls), "pull", "pulls"))
+	}
+	d, err := openDesk(*dir, false)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	id, err := d.EditPull(pos[0], pulls[0], desk.SaveOptions{Confirm: *yes})
+	if err != nil {
+		return withHint(err)
+	}
+	fmt.Fprintf(stdout, "saved pull %s  %s, %s kg; the earlier value stays in its history\n", id, pulls[0].Label, desk.Num(pulls[0].PartsKg(), 3))
+	return nil
+}
+
+func pullsRemove(args []string, stdout io.Writer) error {
+	fs := newFlags("pulls remove")
+	dir := storeFlag(fs)
+	pos, d, err := openForArgs(fs, dir, args, 1, "give the pull (id, prefix or suffix)")
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	id, err := d.RemovePull(pos[0])
+	if err != nil {
+		return withHint(err)
+	}
+	fmt.Fprintf(stdout, "removed pull %s (its history is kept; 'bale show %s' lists it)\n", id, id)
 	return nil
 }
 
@@ -114,16 +148,12 @@ func pullsList(args []string, stdout io.Writer) error {
 	fs := newFlags("pulls list")
 	dir := storeFlag(fs)
 	asJSON := fs.Bool("json", false, "print JSON")
-	pos, s, err := openForArgs(fs, dir, args, 1, "give the bale id")
+	pos, d, err := openForArgs(fs, dir, args, 1, "give the bale (id, prefix, suffix or tag)")
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	bale, _, err := findEntity(s, pos[0], data.KindBale)
-	if err != nil {
-		return err
-	}
-	pulls, err := s.Pulls(bale)
+	defer d.Close()
+	bale, pulls, err := d.Pulls(pos[0])
 	if err != nil {
 		return err
 	}
@@ -131,12 +161,16 @@ func pullsList(args []string, stdout io.Writer) error {
 	for i, p := range pulls {
 		out[i] = pullJSON{ID: p.ID.String(), Bale: bale.String(), Label: p.Pull.Label, Taken: recTime(p.Pull.TakenMs),
 			TotalKg: p.Pull.PartsKg(), Kg: p.Pull.Kg, Pieces: p.Pull.Pieces, Conflicted: p.Conflicted}
+		if p.Pull.StatedKg > 0 {
+			w, rest := p.Pull.StatedKg, p.RemainderKg()
+			out[i].WeighedKg, out[i].UnsortedKg = &w, &rest
+		}
 	}
 	if *asJSON {
 		return recJSON(stdout, out)
 	}
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "id\tlabel\tkg\tlargest parts")
+	fmt.Fprintln(tw, "id\tlabel\tkg\tunsorted kg\tlargest parts")
 	for _, p := range out {
 		keys := make([]string, 0, len(p.Kg))
 		for k := range p.Kg {
@@ -150,11 +184,15 @@ func pullsList(args []string, stdout io.Writer) error {
 			if i > 0 {
 				top += ", "
 			}
-			top += fmt.Sprintf("%s %.2f", k, p.Kg[k])
+			top += k + " " + desk.Num(p.Kg[k], 3)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%.2f\t%s\n", p.ID, p.Label, p.TotalKg, top)
+		rest := "–"
+		if p.UnsortedKg != nil {
+			rest = desk.Num(*p.UnsortedKg, 3)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", p.ID, p.Label, desk.Num(p.TotalKg, 3), rest, top)
 	}
 	tw.Flush()
-	fmt.Fprintf(stdout, "%d pulls\n", len(out))
+	fmt.Fprintln(stdout, desk.Plural(len(out), "pull", "pulls"))
 	return nil
 }

@@ -1,6 +1,9 @@
 package main
 
 import (
+	"baleassay/data/desk"
+	"baleassay/data/geo"
+	"baleassay/data/store"
 	"bytes"
 	"encoding/json"
 	"os"
@@ -8,8 +11,6 @@ import (
 	"strings"
 	"testing"
 	"time"
-
-	"baleassay/data"
 )
 
 func recRun(t *testing.T, args ...string) (int, string, string) {
@@ -30,7 +31,7 @@ func recMust(t *testing.T, args ...string) string {
 
 func storeHash(t *testing.T, dir string) [32]byte {
 	t.Helper()
-	s, err := data.Open(dir)
+	s, err := store.Open(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -77,7 +78,7 @@ func TestDemoStoreCommands(t *testing.T) {
 		}
 		prev = km
 		// The reported km is the haversine distance of the reported point.
-		if d := data.HaversineKm(45, 4.7, h["lat"].(float64), h["lon"].(float64)); d != km {
+		if d := geo.HaversineKm(45, 4.7, h["lat"].(float64), h["lon"].(float64)); d != km {
 			t.Fatalf("km %g, haversine %g", km, d)
 		}
 	}
@@ -202,7 +203,12 @@ func TestRecordCommandsOnNewStore(t *testing.T) {
 		t.Fatalf("show bale: %+v", sh)
 	}
 	recMust(t, append([]string{"sites", "move", siteID, "-33.95", "18.47"}, st...)...)
-	recMust(t, append([]string{"sites", "remove", siteID}, st...)...)
+	// A site that still has bales is removed only when confirmed, and the
+	// refusal says how many.
+	if code, _, errs := recRun(t, append([]string{"sites", "remove", siteID}, st...)...); code != 1 || !strings.Contains(errs, "still has 1 bale,") || !strings.Contains(errs, "--yes") {
+		t.Fatalf("remove a site with a bale: exit %d %s", code, errs)
+	}
+	recMust(t, append([]string{"sites", "remove", siteID, "--yes"}, st...)...)
 	var sites []siteJSON
 	json.Unmarshal([]byte(recMust(t, append([]string{"sites", "list", "--json"}, st...)...)), &sites)
 	if len(sites) != 0 {
@@ -221,14 +227,14 @@ func TestRecordCommandsOnNewStore(t *testing.T) {
 func TestStoreLocation(t *testing.T) {
 	t.Setenv("BALEASSAY_STORE", "")
 	t.Setenv("XDG_DATA_HOME", "/srv/xdg")
-	d, _ := defaultStoreDir()
-	demo, _ := demoStoreDir()
+	d, _ := desk.DefaultDir()
+	demo, _ := desk.DemoDir()
 	// XDG Base Directory Specification: $XDG_DATA_HOME/<app>.
 	if d != "/srv/xdg/baleassay/store" || demo != "/srv/xdg/baleassay/demo" {
 		t.Fatalf("store %s, demo %s", d, demo)
 	}
 	t.Setenv("BALEASSAY_STORE", "/tmp/x")
-	if d, _ := defaultStoreDir(); d != "/tmp/x" {
+	if d, _ := desk.DefaultDir(); d != "/tmp/x" {
 		t.Fatalf("BALEASSAY_STORE ignored: %s", d)
 	}
 	if d, _ := storeDir(""); d != "/tmp/x" {

@@ -3,11 +3,10 @@ package main
 import (
 	"fmt"
 	"io"
-	"sort"
 	"strings"
 
-	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/desk"
+	"baleassay/data/record"
 )
 
 func init() {
@@ -40,81 +39,39 @@ type showJSON struct {
 	History    []eventJSON `json:"history"`
 	Pulls      int         `json:"pulls,omitempty"`
 	TargetPET  *float64    `json:"target_pet,omitempty"` // bales with pulls: ratio estimate, fraction
+	// A bale's audit: state (no_pulls, assessed, failed), its spec and
+	// verdict, hazards, labels used twice, or why there is no audit.
+	Audit          string   `json:"audit,omitempty"`
+	Spec           string   `json:"spec,omitempty"`
+	Verdict        string   `json:"verdict,omitempty"`
+	Hazard         bool     `json:"hazard,omitempty"`
+	LabelConflicts []string `json:"label_conflicts,omitempty"`
+	NoAudit        string   `json:"no_audit,omitempty"`
 }
 
-func eventOut(e data.Stamped) eventJSON {
+func eventOut(e record.Stamped) eventJSON {
 	out := eventJSON{Event: e.ID.String(), Device: e.Device.String(), Clock: e.Clock.String(), Supersedes: []string{},
-		Deleted: e.Deleted, Summary: summarize(e.Event)}
+		Deleted: e.Deleted, Summary: desk.Describe(e.Event)}
 	for _, s := range e.Supersedes {
 		out.Supersedes = append(out.Supersedes, s.String())
 	}
 	return out
 }
 
-// summarize is a one-line text of an event's value.
-func summarize(e data.Event) string {
-	switch {
-	case e.Deleted:
-		return "deleted"
-	case e.Site != nil:
-		s := e.Site
-		t := fmt.Sprintf("%s (%s) at %.5f, %.5f", s.Name, s.Kind, s.Lat, s.Lon)
-		if s.Notes != "" {
-			t += "; " + s.Notes
-		}
-		return t
-	case e.Bale != nil:
-		b := e.Bale
-		t := fmt.Sprintf("bale %s from site %s, %.1f kg, received %s", b.Tag, b.Site, b.GrossKg, recTime(b.ReceivedMs))
-		if d := b.DensityKgM3(); d > 0 {
-			t += fmt.Sprintf(", %.2f×%.2f×%.2f m, %.0f kg/m³", b.LengthM, b.WidthM, b.HeightM, d)
-		}
-		return t
-	case e.Pull != nil:
-		p := e.Pull
-		keys := make([]string, 0, len(p.Kg))
-		for k := range p.Kg {
-			keys = append(keys, k)
-		}
-		sort.Strings(keys)
-		parts := make([]string, len(keys))
-		for i, k := range keys {
-			parts[i] = fmt.Sprintf("%s %.2f", k, p.Kg[k])
-		}
-		return fmt.Sprintf("pull %s of bale %s, %.2f kg: %s", p.Label, p.Bale, p.PartsKg(), strings.Join(parts, ", "))
-	case e.Setting != nil:
-		return fmt.Sprintf("%s %q (%d bytes of JSON)", e.Setting.Kind, e.Setting.Name, len(e.Setting.Body))
-	}
-	return "(empty)"
-}
-
 func runShow(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("show")
 	dir := storeFlag(fs)
 	asJSON := fs.Bool("json", false, "print JSON")
-	pos, s, err := openForArgs(fs, dir, args, 1, "give one id (an entity's UUID or its first hex digits, or an event id)")
+	pos, d, err := openForArgs(fs, dir, args, 1, "give one id (a record's id, a unique prefix or suffix of it, a bale tag, a site name, or an event id)")
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	var id data.EntityID
-	if evID, err := data.ParseEventID(pos[0]); err == nil {
-		e, err := s.Event(evID)
-		if err != nil {
-			return err
-		}
-		id = e.Entity
-	} else if id, err = s.FindEntity(pos[0]); err != nil {
-		return err
-	}
-	st, err := s.Entity(id)
+	defer d.Close()
+	det, err := d.Show(pos[0])
 	if err != nil {
 		return err
 	}
-	hist, err := s.History(id)
-	if err != nil {
-		return err
-	}
+	st, hist, id := det.State, det.History, det.State.ID
 	out := showJSON{ID: id.String(), Kind: st.Kind.String(), Deleted: st.Deleted(), Conflicted: st.Conflicted(), Events: st.Events,
 		Heads: []eventJSON{}, History: []eventJSON{}}
 	for _, h := range st.Heads {
@@ -123,19 +80,21 @@ func runShow(args []string, stdout, stderr io.Writer) error {
 	for _, h := range hist {
 		out.History = append(out.History, eventOut(h))
 	}
-	var res *assess.Result
-	if cur, ok := st.Current(); ok && cur.Bale != nil {
-		pulls, err := s.Pulls(id)
-		if err != nil {
-			return err
-		}
-		out.Pulls = len(pulls)
-		if a, err := data.AuditOf(*cur.Bale, pulls); err == nil && len(a.Pulls) > 0 {
-			if r, err := assess.Assess(a, assess.Options{}); err == nil {
-				res = &r
-				f := r.Group(assess.GroupPET).Fraction
-				out.TargetPET = &f
+	a := det.Audit
+	if a != nil {
+		out.Pulls = a.Pulls
+		out.Audit = a.State.String()
+		out.LabelConflicts = a.LabelClash
+		if a.State == desk.AuditDone {
+			f := a.TargetPET.Fraction
+			out.TargetPET = &f
+			out.Hazard = a.Hazard
+			if a.HasVerdict {
+				out.Spec, out.Verdict = a.Spec, a.Verdict.String()
 			}
+		}
+		if a.Err != nil {
+			out.NoAudit = a.Err.Error()
 		}
 	}
 	if *asJSON {
@@ -144,28 +103,18 @@ func runShow(args []string, stdout, stderr io.Writer) error {
 	state := "current"
 	switch {
 	case out.Deleted:
-		state = "deleted (kept in the history)"
+		state = "removed (kept in the history)"
 	case out.Conflicted:
 		state = fmt.Sprintf("CONFLICT: %d concurrent values; resolve with 'bale conflicts resolve %s EVENT'", len(out.Heads), id)
 	}
-	fmt.Fprintf(stdout, "%s %s: %s, %d events\n", out.Kind, out.ID, state, out.Events)
+	fmt.Fprintf(stdout, "%s %s: %s, %s\n", out.Kind, out.ID, state, desk.Plural(out.Events, "event", "events"))
 	for _, h := range st.Heads {
 		if !h.Deleted || out.Deleted {
-			fmt.Fprintf(stdout, "  value  %s\n         event %s by device %s at %s\n", summarize(h.Event), h.ID.Short(), h.Device.String()[:8], h.Clock)
+			fmt.Fprintf(stdout, "  value  %s\n         event %s by device %s at %s\n", desk.Describe(h.Event), h.ID.Short(), h.Device.String()[:8], h.Clock)
 		}
 	}
-	if res != nil {
-		g := res.Group(assess.GroupPET)
-		fmt.Fprintf(stdout, "  audit  %d pulls, %.1f kg sampled, target PET %.2f %%", res.Pulls, res.SampledKg, 100*g.Fraction)
-		if g.HasInterval {
-			fmt.Fprintf(stdout, " (%.0f %% interval %.2f–%.2f %%)", 100*res.Confidence, 100*g.Low, 100*g.High)
-		}
-		fmt.Fprintln(stdout)
-		if len(res.HazardPulls) > 0 {
-			fmt.Fprintf(stdout, "  HAZARD found in pulls %s: keep it apart and handle it per local rules\n", strings.Join(res.HazardPulls, ", "))
-		}
-	} else if out.Kind == "bale" && out.Pulls == 0 && !out.Deleted {
-		fmt.Fprintf(stdout, "  no pulls yet: 'bale pulls add %s PULLS.csv'\n", id)
+	if a != nil && !out.Deleted {
+		printAuditLine(stdout, id.String(), *a)
 	}
 	fmt.Fprintln(stdout, "history (oldest first):")
 	for _, h := range hist {
@@ -177,7 +126,37 @@ func runShow(args []string, stdout, stderr io.Writer) error {
 			}
 			sup = " supersedes " + strings.Join(ss, ",")
 		}
-		fmt.Fprintf(stdout, "  %s  %s  dev %s%s\n      %s\n", h.Clock, h.ID.Short(), h.Device.String()[:8], sup, summarize(h.Event))
+		fmt.Fprintf(stdout, "  %s  %s  dev %s%s\n      %s\n", h.Clock, h.ID.Short(), h.Device.String()[:8], sup, desk.Describe(h.Event))
 	}
 	return nil
+}
+
+// printAuditLine says a bale's audit in a line or two, or why it has none.
+func printAuditLine(w io.Writer, id string, a desk.AuditSummary) {
+	switch a.State {
+	case desk.AuditNoPulls:
+		fmt.Fprintf(w, "  audit  none: no pulls yet ('bale pulls add %s PULLS.csv')\n", id)
+		return
+	case desk.AuditFailed:
+		fmt.Fprintf(w, "  audit  none: the %s could not be assessed: %v\n", desk.Plural(a.Pulls, "pull", "pulls"), a.Err)
+		return
+	}
+	g := a.TargetPET
+	fmt.Fprintf(w, "  audit  %s, target PET %.2f %%", desk.Plural(a.Pulls, "pull", "pulls"), 100*g.Fraction)
+	if g.HasInterval {
+		fmt.Fprintf(w, " (interval %.2f–%.2f %%)", 100*g.Low, 100*g.High)
+	}
+	switch {
+	case a.HasVerdict:
+		fmt.Fprintf(w, "; spec %s: %s", a.Spec, strings.ToUpper(a.Verdict.String()))
+	case a.SpecMissing:
+		fmt.Fprint(w, "; no verdict: the bale's spec is neither stored nor built in")
+	}
+	fmt.Fprintln(w)
+	if a.Hazard {
+		fmt.Fprintln(w, "  HAZARD found: keep the bale apart and handle it per local rules (bale assess BALE names the pulls)")
+	}
+	if len(a.LabelClash) > 0 {
+		fmt.Fprintf(w, "  CONFLICT: pull labels %s were used by two pulls each (two devices); both are counted; see bale conflicts\n", strings.Join(a.LabelClash, ", "))
+	}
 }

@@ -4,17 +4,20 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strings"
 	"text/tabwriter"
 	"time"
 
 	"baleassay/assess"
-	"baleassay/data"
+	"baleassay/data/desk"
+	"baleassay/data/geo"
+	"baleassay/data/record"
 )
 
 func init() {
 	register(command{
 		name:    "sites",
-		usage:   "add --name N --lat LAT --lon LON [--kind K] [--notes S] [--yes] | list | near LAT LON [-k N] | within LAT LON KM | box S W N E | summary (within LAT LON KM | box S W N E) [--from DATE] [--to DATE] | move ID LAT LON | remove ID  [--json] [--store DIR|--demo]",
+		usage:   "add --name N --lat LAT --lon LON [--kind K] [--notes S] [--yes] | list | near LAT LON [-k N] | within LAT LON KM | box S W N E | summary (within LAT LON KM | box S W N E | SITE) [--from DAY] [--to DAY] | edit SITE [--name N] [--notes S] [--kind K] | move SITE LAT LON | remove SITE [--yes]  [--json] [--store DIR|--demo]",
 		summary: "keep pickup sites and query them offline by distance, box or region",
 		run:     runSites,
 	})
@@ -45,7 +48,7 @@ func runSites(args []string, stdout, stderr io.Writer) error {
 	return dispatch(args, stdout,
 		sub("add", sitesAdd), sub("list", sitesList),
 		subcommand{[]string{"near", "within", "box"}, sitesQuery},
-		sub("summary", sitesSummary), sub("move", sitesMove), sub("remove", sitesRemove))
+		sub("summary", sitesSummary), sub("move", sitesMove), sub("edit", sitesEdit), sub("remove", sitesRemove))
 }
 
 func sitesAdd(args []string, stdout io.Writer) error {
@@ -67,19 +70,18 @@ func sitesAdd(args []string, stdout io.Writer) error {
 	if *name == "" || math.IsNaN(*lat) || math.IsNaN(*lon) {
 		return usagef("give --name, --lat and --lon")
 	}
-	k, err := data.ParseSiteKind(*kind)
+	k, err := record.ParseSiteKind(*kind)
 	if err != nil {
 		return usagef("%v", err)
 	}
-	s, err := openStore(*dir)
+	d, err := openDesk(*dir, true)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	ev := data.Event{Kind: data.KindSite, Site: &data.SiteRecord{Name: *name, Kind: k, Lat: *lat, Lon: *lon, Notes: *notes}}
-	id, err := saveNew(s, ev, *yes)
+	defer d.Close()
+	id, err := d.AddSite(record.SiteRecord{Name: *name, Kind: k, Lat: *lat, Lon: *lon, Notes: *notes}, desk.SaveOptions{Confirm: *yes})
 	if err != nil {
-		return err
+		return withHint(err)
 	}
 	fmt.Fprintf(stdout, "saved site %s  %s\n", id, *name)
 	return nil
@@ -89,12 +91,12 @@ func sitesList(args []string, stdout io.Writer) error {
 	fs := newFlags("sites list")
 	dir := storeFlag(fs)
 	asJSON := fs.Bool("json", false, "print JSON")
-	_, s, err := openForArgs(fs, dir, args, 0, "")
+	_, d, err := openForArgs(fs, dir, args, 0, "")
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	sites, err := s.Sites()
+	defer d.Close()
+	sites, err := d.Sites()
 	if err != nil {
 		return err
 	}
@@ -158,7 +160,7 @@ func sitesQuery(sub string, args []string, stdout io.Writer) error {
 }
 
 // querySites runs near, within or box on the store's site index.
-func querySites(sub string, pos []string, k int, dir string) ([]data.Hit, error) {
+func querySites(sub string, pos []string, k int, dir string) ([]geo.Hit, error) {
 	var names []string
 	switch sub {
 	case "near":
@@ -180,25 +182,26 @@ func querySites(sub string, pos []string, k int, dir string) ([]data.Hit, error)
 	if sub == "near" && k < 1 {
 		return nil, usagef("-k %d: give at least 1", k)
 	}
-	s, err := openExistingStore(dir)
+	d, err := openDesk(dir, false)
 	if err != nil {
 		return nil, err
 	}
-	defer s.Close()
-	ix := s.SiteIndex()
-	var hits []data.Hit
+	defer d.Close()
+	q, err := siteQuery(sub, x, k)
+	if err != nil {
+		return nil, err
+	}
+	return d.FindSites(q)
+}
+
+func siteQuery(sub string, x []float64, k int) (desk.Query, error) {
 	switch sub {
 	case "near":
-		hits, err = ix.Nearest(x[0], x[1], k)
+		return desk.Query{Kind: desk.QueryNear, Lat: x[0], Lon: x[1], K: k}, nil
 	case "within":
-		hits, err = ix.Within(x[0], x[1], x[2])
-	default:
-		hits, err = ix.InBox(x[0], x[1], x[2], x[3])
+		return desk.Query{Kind: desk.QueryWithin, Lat: x[0], Lon: x[1], Km: x[2]}, nil
 	}
-	if err != nil {
-		return nil, usagef("%v", err)
-	}
-	return hits, nil
+	return desk.Query{Kind: desk.QueryBox, South: x[0], West: x[1], North: x[2], East: x[3]}, nil
 }
 
 // statJSON is the spread of one share across bales (fractions 0..1); sd
@@ -226,9 +229,12 @@ type summaryJSONRec struct {
 	TargetPET   statJSON        `json:"target_pet"`
 	Groups      []groupStatJSON `json:"groups"`
 	HazardBales int             `json:"hazard_bales"`
+	Hazards     []flaggedJSON   `json:"hazards"`
+	LabelClash  []flaggedJSON   `json:"label_conflicts"`
+	Unassessed  []flaggedJSON   `json:"unassessed"`
 }
 
-func statOut(s data.Stat) statJSON {
+func statOut(s desk.Stat) statJSON {
 	if s.N == 0 {
 		return statJSON{}
 	}
@@ -240,49 +246,74 @@ func statOut(s data.Stat) statJSON {
 	return out
 }
 
+// flaggedJSON names a bale that needs a look.
+type flaggedJSON struct {
+	Bale     string `json:"bale"`
+	Tag      string `json:"tag,omitempty"`
+	Site     string `json:"site"`
+	SiteName string `json:"site_name"`
+}
+
+func flaggedOut(fs []desk.Flagged) []flaggedJSON {
+	out := []flaggedJSON{}
+	for _, f := range fs {
+		out = append(out, flaggedJSON{f.Bale.String(), f.Tag, f.Site.String(), f.SiteName})
+	}
+	return out
+}
+
 func sitesSummary(args []string, stdout io.Writer) error {
 	fs := newFlags("sites summary")
 	dir := storeFlag(fs)
 	fromS := fs.String("from", "", "first day of bales received (2026-03-02)")
-	toS := fs.String("to", "", "day after the last day of bales received")
+	toS := fs.String("to", "", "last day of bales received, inclusive")
 	asJSON := fs.Bool("json", false, "print JSON")
 	pos, err := parseWithNumbers(fs, args)
 	if err != nil {
 		return err
 	}
-	if len(pos) == 0 || (pos[0] != "within" && pos[0] != "box") {
-		return usagef("give the region: within LAT LON KM, or box S W N E")
+	r, err := desk.ParseDateRange(*fromS, *toS)
+	if err != nil {
+		return usagef("%v", strings.TrimPrefix(err.Error(), desk.ErrUsage.Error()+": "))
 	}
-	from, err := recDate("--from", *fromS)
+	if len(pos) == 0 {
+		return usagef("give the region (within LAT LON KM, or box S W N E) or one SITE")
+	}
+	d, err := openDesk(*dir, false)
 	if err != nil {
 		return err
 	}
-	to, err := recDate("--to", *toS)
-	if err != nil {
-		return err
+	defer d.Close()
+	var sum desk.Summary
+	switch pos[0] {
+	case "within", "box":
+		names := map[string][]string{"within": {"LAT", "LON", "KM"}, "box": {"S", "W", "N", "E"}}[pos[0]]
+		if len(pos)-1 != len(names) {
+			return usagef("%s needs %d numbers: %v", pos[0], len(names), names)
+		}
+		x, err := recFloats(names, pos[1:])
+		if err != nil {
+			return err
+		}
+		q, _ := siteQuery(pos[0], x, 0)
+		if sum, err = d.SummarizeRegion(q, r); err != nil {
+			return err
+		}
+	default:
+		if len(pos) != 1 {
+			return usagef("give one site, or a region")
+		}
+		if _, sum, err = d.SummarizeSite(pos[0], r); err != nil {
+			return err
+		}
 	}
-	if !from.IsZero() && !to.IsZero() && !to.After(from) {
-		return usagef("--to %s is not after --from %s", *toS, *fromS)
+	out := summaryJSONRec{Sites: sum.Sites, Bales: sum.Bales, Audited: sum.Audited, TargetPET: statOut(sum.TargetPET),
+		HazardBales: len(sum.Hazards), Hazards: flaggedOut(sum.Hazards), LabelClash: flaggedOut(sum.LabelClash), Unassessed: flaggedOut(sum.Unassessed)}
+	if !r.From.IsZero() {
+		out.From = r.From.Format(time.RFC3339)
 	}
-	hits, err := querySites(pos[0], pos[1:], 0, *dir)
-	if err != nil {
-		return err
-	}
-	s, err := openExistingStore(*dir)
-	if err != nil {
-		return err
-	}
-	defer s.Close()
-	sum, err := s.Summarize(hits, from, to)
-	if err != nil {
-		return err
-	}
-	out := summaryJSONRec{Sites: sum.Sites, Bales: sum.Bales, Audited: sum.Audited, TargetPET: statOut(sum.TargetPET), HazardBales: sum.HazardBales}
-	if !from.IsZero() {
-		out.From = from.Format(time.RFC3339)
-	}
-	if !to.IsZero() {
-		out.To = to.Format(time.RFC3339)
+	if !r.Until.IsZero() {
+		out.To = r.Until.Format(time.RFC3339)
 	}
 	for _, g := range sum.Groups {
 		out.Groups = append(out.Groups, groupStatJSON{g.Group.Key(), statOut(g.Stat)})
@@ -290,29 +321,38 @@ func sitesSummary(args []string, stdout io.Writer) error {
 	if *asJSON {
 		return recJSON(stdout, out)
 	}
-	fmt.Fprintf(stdout, "%d sites, %d bales received, %d with pulls assessed\n", sum.Sites, sum.Bales, sum.Audited)
-	if sum.Audited == 0 {
-		return nil
-	}
-	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "share of bale mass\tmean\tsd\tmin\tmax")
-	row := func(name string, st data.Stat) {
-		sd := "–"
-		if st.N > 1 {
-			sd = fmt.Sprintf("%.2f %%", 100*st.SD)
+	fmt.Fprintf(stdout, "%s, %s received, %d with pulls assessed\n", desk.Plural(sum.Sites, "site", "sites"), desk.Plural(sum.Bales, "bale", "bales"), sum.Audited)
+	if sum.Audited > 0 {
+		tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
+		fmt.Fprintln(tw, "share of bale mass\tmean\tsd\tmin\tmax")
+		row := func(name string, st desk.Stat) {
+			sd := "–"
+			if st.N > 1 {
+				sd = fmt.Sprintf("%.2f %%", 100*st.SD)
+			}
+			fmt.Fprintf(tw, "%s\t%.2f %%\t%s\t%.2f %%\t%.2f %%\n", name, 100*st.Mean, sd, 100*st.Min, 100*st.Max)
 		}
-		fmt.Fprintf(tw, "%s\t%.2f %%\t%s\t%.2f %%\t%.2f %%\n", name, 100*st.Mean, sd, 100*st.Min, 100*st.Max)
+		row(assess.GroupPET.String(), sum.TargetPET)
+		for _, g := range sum.Groups {
+			row(g.Group.String(), g.Stat)
+		}
+		tw.Flush()
+		fmt.Fprintln(stdout, "per bale: Cochran ratio estimate Σ kg / Σ pull kg over its pulls; then mean and sample SD across bales")
 	}
-	row(assess.GroupPET.String(), sum.TargetPET)
-	for _, g := range sum.Groups {
-		row(g.Group.String(), g.Stat)
-	}
-	tw.Flush()
-	fmt.Fprintln(stdout, "per bale: Cochran ratio estimate Σ kg / Σ pull kg over its pulls; then mean and sample SD across bales")
-	if sum.HazardBales > 0 {
-		fmt.Fprintf(stdout, "HAZARDS found in %d bales: flag these sites; handle batteries and chemical containers per local rules\n", sum.HazardBales)
-	}
+	printFlagged(stdout, "HAZARDS found in", sum.Hazards, "keep such bales apart; handle batteries and chemical containers per local rules")
+	printFlagged(stdout, "CONFLICT: pull labels used twice (two devices) in", sum.LabelClash, "both pulls are counted; see bale conflicts")
+	printFlagged(stdout, "could not assess", sum.Unassessed, "see bale show BALE for the reason")
 	return nil
+}
+
+func printFlagged(w io.Writer, head string, fs []desk.Flagged, tail string) {
+	if len(fs) == 0 {
+		return
+	}
+	fmt.Fprintf(w, "%s %s: %s\n", head, desk.Plural(len(fs), "bale", "bales"), tail)
+	for _, f := range fs {
+		fmt.Fprintf(w, "  %s  %s  site %s\n", f.Bale, f.Tag, f.SiteName)
+	}
 }
 
 func sitesMove(args []string, stdout io.Writer) error {
@@ -330,70 +370,67 @@ func sitesMove(args []string, stdout io.Writer) error {
 	if err != nil {
 		return err
 	}
-	s, err := openExistingStore(*dir)
+	d, err := openDesk(*dir, false)
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	id, st, err := findEntity(s, pos[0], data.KindSite)
+	defer d.Close()
+	id, rec, err := d.EditSite(pos[0], desk.SiteEdit{Lat: &x[0], Lon: &x[1]}, desk.SaveOptions{Confirm: *yes})
+	if err != nil {
+		return withHint(err)
+	}
+	fmt.Fprintf(stdout, "moved site %s  %s to %s, %s\n", id, rec.Name, desk.Num(rec.Lat, 5), desk.Num(rec.Lon, 5))
+	return nil
+}
+
+func sitesEdit(args []string, stdout io.Writer) error {
+	fs := newFlags("sites edit")
+	dir := storeFlag(fs)
+	yes := fs.Bool("yes", false, "save even when a value looks implausible")
+	var e desk.SiteEdit
+	fs.Func("name", "new name", func(v string) error { e.Name = &v; return nil })
+	fs.Func("notes", "new contact notes", func(v string) error { e.Notes = &v; return nil })
+	fs.Func("kind", "yard, mrf, depot, supplier or other", func(v string) error {
+		k, err := record.ParseSiteKind(v)
+		e.Kind = &k
+		return err
+	})
+	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
 	}
-	cur, _ := st.Current()
-	rec := *cur.Site
-	rec.Lat, rec.Lon = x[0], x[1]
-	if _, err := s.Supersede(id, data.Event{Site: &rec}, data.SaveOptions{Confirm: *yes}); err != nil {
-		return recSaveError(err)
+	if len(pos) != 1 {
+		return usagef("give the site (id, prefix, suffix or name)")
 	}
-	fmt.Fprintf(stdout, "moved site %s  %s to %.5f, %.5f\n", id, rec.Name, rec.Lat, rec.Lon)
+	if e.Name == nil && e.Notes == nil && e.Kind == nil {
+		return usagef("give what to change: --name, --notes or --kind (sites move changes the position)")
+	}
+	d, err := openDesk(*dir, false)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	id, rec, err := d.EditSite(pos[0], e, desk.SaveOptions{Confirm: *yes})
+	if err != nil {
+		return withHint(err)
+	}
+	fmt.Fprintf(stdout, "saved site %s  %s (%s); the earlier value stays in its history\n", id, rec.Name, rec.Kind)
 	return nil
 }
 
 func sitesRemove(args []string, stdout io.Writer) error {
 	fs := newFlags("sites remove")
 	dir := storeFlag(fs)
-	pos, s, err := openForArgs(fs, dir, args, 1, "give the site id")
+	yes := fs.Bool("yes", false, "remove even when the site still has bales")
+	pos, d, err := openForArgs(fs, dir, args, 1, "give the site id")
 	if err != nil {
 		return err
 	}
-	defer s.Close()
-	id, _, err := findEntity(s, pos[0], data.KindSite)
+	defer d.Close()
+	id, err := d.RemoveSite(pos[0], desk.SaveOptions{Confirm: *yes})
 	if err != nil {
-		return err
-	}
-	if _, err := s.Delete(id); err != nil {
-		return recSaveError(err)
+		return withHint(err)
 	}
 	fmt.Fprintf(stdout, "removed site %s (its history is kept; 'bale show %s' lists it)\n", id, id)
 	return nil
-}
-
-// findEntity resolves an id argument to an entity of the wanted kind (any
-// kind when kind is 0) that is not deleted.
-func findEntity(s *data.Store, arg string, kind data.Kind) (data.EntityID, data.EntityState, error) {
-	id, err := s.FindEntity(arg)
-	if err != nil {
-		return id, data.EntityState{}, err
-	}
-	st, err := s.Entity(id)
-	if err != nil {
-		return id, st, err
-	}
-	if kind != 0 && st.Kind != kind {
-		return id, st, fmt.Errorf("%s is a %s, not a %s", id, st.Kind, kind)
-	}
-	if st.Deleted() {
-		return id, st, fmt.Errorf("%s %s was deleted; 'bale show %s' lists its history", st.Kind, id, id)
-	}
-	return id, st, nil
-}
-
-// saveNew saves one event of a new entity and returns the entity's id.
-func saveNew(s *data.Store, ev data.Event, yes bool) (data.EntityID, error) {
-	ids, err := s.Save([]data.Event{ev}, data.SaveOptions{Confirm: yes})
-	if err != nil {
-		return data.EntityID{}, recSaveError(err)
-	}
-	e, err := s.Event(ids[0])
-	return e.Entity, err
 }

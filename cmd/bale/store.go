@@ -1,79 +1,23 @@
 package main
 
 import (
+	"baleassay/data/desk"
 	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"math"
-	"os"
-	"path/filepath"
-	"runtime"
 	"strconv"
 	"strings"
 	"time"
-
-	"baleassay/data"
 )
-
-// Where the stores live. A user's records and the demo scenario are kept
-// in separate folders so that the demo never mixes into real data.
-//
-//	$XDG_DATA_HOME/baleassay/{store,demo}        when XDG_DATA_HOME is set
-//	~/.local/share/baleassay/{store,demo}        otherwise on Linux and BSD
-//	os.UserConfigDir()/baleassay/{store,demo}    on macOS and Windows
-//
-// $BALEASSAY_STORE, when set, replaces the default store folder (not the
-// demo one). --store DIR on any command overrides both.
-
-const appDir = "baleassay"
-
-func dataHome() (string, error) {
-	if x := os.Getenv("XDG_DATA_HOME"); x != "" && filepath.IsAbs(x) {
-		return filepath.Join(x, appDir), nil
-	}
-	switch runtime.GOOS {
-	case "darwin", "windows", "ios", "android", "plan9":
-		d, err := os.UserConfigDir()
-		if err != nil {
-			return "", fmt.Errorf("no user data folder (%v): give --store DIR", err)
-		}
-		return filepath.Join(d, appDir), nil
-	}
-	h, err := os.UserHomeDir()
-	if err != nil {
-		return "", fmt.Errorf("no home folder (%v): give --store DIR", err)
-	}
-	return filepath.Join(h, ".local", "share", appDir), nil
-}
-
-// defaultStoreDir is the user's store folder.
-func defaultStoreDir() (string, error) {
-	if d := os.Getenv("BALEASSAY_STORE"); d != "" {
-		return d, nil
-	}
-	h, err := dataHome()
-	if err != nil {
-		return "", err
-	}
-	return filepath.Join(h, "store"), nil
-}
-
-// demoStoreDir is the demo scenario's own store folder.
-func demoStoreDir() (string, error) {
-	h, err := dataHome()
-	if err != nil {
-		return "", err
-	}
-	return filepath.Join(h, "demo"), nil
-}
 
 // demoMarker is the value storeFlag puts in the flag for --demo.
 const demoMarker = "\x00demo"
 
 // storeFlag registers --store DIR and --demo (use the demo store) on a
-// command's flag set. Pass the result to openStore.
+// command's flag set. Pass the result to openDesk.
 func storeFlag(fs *flag.FlagSet) *string {
 	dir := new(string)
 	fs.StringVar(dir, "store", "", "records store `folder` (default: the user data folder, see README)")
@@ -84,48 +28,21 @@ func storeFlag(fs *flag.FlagSet) *string {
 	return dir
 }
 
+// location turns a --store value into a desk location.
+func location(dir string) desk.Location {
+	if dir == demoMarker {
+		return desk.Location{Demo: true}
+	}
+	return desk.Location{Dir: dir}
+}
+
 // storeDir resolves a --store value: empty means the default folder.
-func storeDir(dir string) (string, error) {
-	switch dir {
-	case "":
-		return defaultStoreDir()
-	case demoMarker:
-		return demoStoreDir()
-	}
-	return dir, nil
-}
+func storeDir(dir string) (string, error) { return location(dir).Resolve() }
 
-// openStore opens the store named by a --store value ("" for the default
-// folder), creating it when new.
-func openStore(dir string) (*data.Store, error) {
-	d, err := storeDir(dir)
-	if err != nil {
-		return nil, err
-	}
-	s, err := data.Open(d)
-	if errors.Is(err, data.ErrStoreInUse) {
-		return nil, err
-	}
-	if err != nil {
-		return nil, fmt.Errorf("cannot open the records store: %w", err)
-	}
-	return s, nil
-}
-
-// openExistingStore is openStore for commands that only read: a folder
-// without a store is an error rather than a new empty store.
-func openExistingStore(dir string) (*data.Store, error) {
-	d, err := storeDir(dir)
-	if err != nil {
-		return nil, err
-	}
-	if _, err := os.Stat(filepath.Join(d, data.DBFile)); errors.Is(err, os.ErrNotExist) {
-		if dir == demoMarker {
-			return nil, fmt.Errorf("no demo store at %s yet: run 'bale demo' first", d)
-		}
-		return nil, fmt.Errorf("no records store at %s yet: add a site with 'bale sites add', or give --store DIR", d)
-	}
-	return openStore(dir)
+// openDesk opens the store a --store value names; create makes it when
+// the folder holds none.
+func openDesk(dir string, create bool) (*desk.Desk, error) {
+	return desk.Open(location(dir), desk.Options{Create: create})
 }
 
 // parseWithNumbers is parseArgs for commands whose positional arguments
@@ -183,43 +100,25 @@ func recFloats(names []string, args []string) ([]float64, error) {
 	return out, nil
 }
 
-// recDate reads 2006-01-02 (UTC midnight) or RFC 3339.
-func recDate(flagName, s string) (time.Time, error) {
-	if s == "" {
-		return time.Time{}, nil
-	}
-	if t, err := time.Parse("2006-01-02", s); err == nil {
-		return t, nil
-	}
-	if t, err := time.Parse(time.RFC3339, s); err == nil {
-		return t, nil
-	}
-	return time.Time{}, usagef("%s %q: give a date as 2026-03-02 or 2026-03-02T14:30:00Z", flagName, s)
-}
-
 func recJSON(w io.Writer, v any) error {
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(v)
 }
 
-// recSaveError turns a refused save into a message that says what to do.
-func recSaveError(err error) error {
-	var we *data.WarningsError
-	if errors.As(err, &we) {
+// confirmHint is added to a refusal that --yes would accept.
+func withHint(err error) error {
+	var ce *desk.ConfirmError
+	if errors.As(err, &ce) {
 		var b strings.Builder
 		b.WriteString("not saved, please check:")
-		for _, w := range we.Warnings {
-			fmt.Fprintf(&b, "\n  - %s", w)
+		for _, c := range ce.Checks {
+			fmt.Fprintf(&b, "\n  - %s", c.Message)
 		}
 		b.WriteString("\nif the values are right, run the command again with --yes")
 		return errors.New(b.String())
 	}
-	var fe *data.FieldError
-	if errors.As(err, &fe) {
-		return fmt.Errorf("not saved: %v", fe)
-	}
-	return fmt.Errorf("not saved: %w", err)
+	return err
 }
 
 func recTime(ms int64) string {
@@ -233,7 +132,7 @@ func recTime(ms int64) string {
 // want positional ones came (wrong is the usage message for another
 // count; with want 0 it follows "unexpected argument"), and opens the
 // existing store that dir names.
-func openForArgs(fs *flag.FlagSet, dir *string, args []string, want int, wrong string) ([]string, *data.Store, error) {
+func openForArgs(fs *flag.FlagSet, dir *string, args []string, want int, wrong string) ([]string, *desk.Desk, error) {
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return nil, nil, err
@@ -244,9 +143,9 @@ func openForArgs(fs *flag.FlagSet, dir *string, args []string, want int, wrong s
 		}
 		return nil, nil, usagef("%s", wrong)
 	}
-	s, err := openExistingStore(*dir)
+	d, err := openDesk(*dir, false)
 	if err != nil {
 		return nil, nil, err
 	}
-	return pos, s, nil
+	return pos, d, nil
 }

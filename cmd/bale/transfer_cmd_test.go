@@ -1,6 +1,10 @@
 package main
 
 import (
+	"baleassay/data/desk"
+	"baleassay/data/record"
+	"baleassay/data/store"
+	"baleassay/data/transfer"
 	"bytes"
 	"encoding/json"
 	"errors"
@@ -8,8 +12,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"baleassay/data"
 )
 
 // bale runs one command line and returns status, stdout and stderr.
@@ -24,16 +26,16 @@ func bale(t *testing.T, args ...string) (int, string, string) {
 func grader(t *testing.T) string {
 	t.Helper()
 	dir := t.TempDir()
-	s, err := data.Open(dir)
+	s, err := store.Open(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer s.Close()
-	var evs []data.Event
+	var evs []record.Event
 	for i, n := range []string{"Eastfield yard", "Canal depot", "Mill lane MRF"} {
-		evs = append(evs, data.Event{Kind: data.KindSite, Site: &data.SiteRecord{Name: n, Lat: 51.5 + float64(i)/10, Lon: -0.1}})
+		evs = append(evs, record.Event{Kind: record.KindSite, Site: &record.SiteRecord{Name: n, Lat: 51.5 + float64(i)/10, Lon: -0.1}})
 	}
-	if _, err := s.Save(evs, data.SaveOptions{}); err != nil {
+	if _, err := s.Save(evs, store.SaveOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	return dir
@@ -46,7 +48,7 @@ func TestKeyCommand(t *testing.T) {
 	if code != 0 || !strings.Contains(out, "fingerprint: ") || !strings.Contains(out, "A new signing key") {
 		t.Fatalf("key: %d %q %q", code, out, errs)
 	}
-	st, err := os.Stat(filepath.Join(dir, data.KeyFileName))
+	st, err := os.Stat(filepath.Join(dir, transfer.KeyFileName))
 	if err != nil || st.Mode().Perm() != 0o600 { // common practice: private keys owner-only
 		t.Fatalf("key file mode %v, err %v; want 0600", st.Mode().Perm(), err)
 	}
@@ -160,8 +162,8 @@ func TestProgressBar(t *testing.T) {
 	var buf bytes.Buffer
 	p := &progress{w: &buf, tty: true, files: 2}
 	for i := 1; i <= 2; i++ {
-		p.show(data.Progress{File: "f.bale", Index: i, Of: 2, Step: "applying", Events: 10})
-		p.show(data.Progress{File: "f.bale", Index: i, Of: 2, Step: "done", Events: 10, EventsSoFar: 10 * i})
+		p.show(desk.Progress{File: "f.bale", Done: i - 1, Of: 2, Step: desk.StepApplying, Events: 10})
+		p.show(desk.Progress{File: "f.bale", Done: i, Of: 2, Step: desk.StepDone, Events: 10, EventsSoFar: 10 * i})
 	}
 	out := buf.String()
 	if !strings.HasPrefix(out, "\r[") || !strings.Contains(out, "] 2/2 files, 20 events") || !strings.HasSuffix(out, "\n") ||
@@ -171,7 +173,7 @@ func TestProgressBar(t *testing.T) {
 	// Not a terminal and a single small file: no progress lines at all.
 	buf.Reset()
 	p = newProgress(&buf, 1)
-	p.show(data.Progress{Index: 1, Of: 1, Step: "applying", Events: 5})
+	p.show(desk.Progress{Done: 0, Of: 1, Step: desk.StepApplying, Events: 5})
 	if buf.Len() != 0 || p.tty {
 		t.Fatalf("quiet case printed %q (tty %v)", buf.String(), p.tty)
 	}

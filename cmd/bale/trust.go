@@ -1,12 +1,11 @@
 package main
 
 import (
+	"baleassay/data/transfer"
 	"encoding/json"
 	"fmt"
 	"io"
 	"os"
-
-	"baleassay/data"
 )
 
 func init() {
@@ -37,7 +36,7 @@ func runTrust(args []string, stdout, stderr io.Writer) error {
 	if err := os.MkdirAll(dir, 0o700); err != nil {
 		return err
 	}
-	tl, err := data.LoadTrust(dir)
+	tl, err := transfer.LoadTrust(dir)
 	if err != nil {
 		return err
 	}
@@ -50,7 +49,7 @@ func runTrust(args []string, stdout, stderr io.Writer) error {
 		if err != nil {
 			return err
 		}
-		if k, err := data.LoadDeviceKey(dir); err == nil && k.Fingerprint() == fp {
+		if k, err := transfer.LoadDeviceKey(dir); err == nil && k.Fingerprint() == fp {
 			return fmt.Errorf("%s is this device's own key: it is always trusted and needs no entry", fp)
 		}
 		if err := tl.Add(*name, fp); err != nil {
@@ -67,7 +66,7 @@ func runTrust(args []string, stdout, stderr io.Writer) error {
 		}
 		if *asJSON {
 			if tl.Entries == nil {
-				tl.Entries = []data.TrustEntry{}
+				tl.Entries = []transfer.TrustEntry{}
 			}
 			return json.NewEncoder(stdout).Encode(tl.Entries)
 		}
@@ -97,22 +96,22 @@ func runTrust(args []string, stdout, stderr io.Writer) error {
 
 // fingerprintArg reads a fingerprint, a public key file (PEM, from 'bale
 // key --public') or a bundle whose signature verifies with its own key.
-func fingerprintArg(arg string) (data.Fingerprint, string, error) {
+func fingerprintArg(arg string) (transfer.Fingerprint, string, error) {
 	if !statusFile(arg) {
-		fp, err := data.ParseFingerprint(arg)
+		fp, err := transfer.ParseFingerprint(arg)
 		if err != nil {
 			return fp, "", fmt.Errorf("%q is neither a file nor a fingerprint: %w", arg, err)
 		}
 		return fp, "typed fingerprint", nil
 	}
-	b, err := data.ReadBundleFile(arg, 0)
+	b, err := transfer.ReadBundleFile(arg, 0)
 	if err != nil {
-		return data.Fingerprint{}, "", err
+		return transfer.Fingerprint{}, "", err
 	}
-	if pub, err := data.ParsePublicKeyPEM(b); err == nil {
-		return data.FingerprintOf(pub), "public key file " + arg, nil
+	if pub, err := transfer.ParsePublicKeyPEM(b); err == nil {
+		return transfer.FingerprintOf(pub), "public key file " + arg, nil
 	}
-	fp, err := data.BundleSigner(b)
+	fp, err := transfer.BundleSigner(b)
 	if err != nil {
 		return fp, "", fmt.Errorf("%s is neither a public key file nor a readable bundle: %w", arg, err)
 	}

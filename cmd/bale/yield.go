@@ -1,22 +1,26 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
+	"flag"
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"sort"
 	"strings"
 	"text/tabwriter"
 
 	"baleassay/assess"
+	"baleassay/data/desk"
 	"baleassay/yield"
 )
 
 func init() {
 	register(command{
 		name: "yield",
-		usage: "PULLS.csv --bale-kg N [--line FILE] [--flake-spec FILE|none] [--glycol KEY --glycol-ratio R [--molar]] " +
+		usage: "PULLS.csv --bale-kg N | BALE [--line FILE] [--flake-spec FILE|none] [--glycol KEY --glycol-ratio R [--molar]] " +
 			"[--strip-eg F] [--conversion X] [--catalyst-pct P] [--catalyst K] [--pet-mn MN] [--reactor-kg K] [--draws N] [--seed S] [--fixed-line] [--json]",
 		summary: "put an audited bale through the wash line and the glycolysis reactor, with P10/P50/P90",
 		run:     runYield,
@@ -110,12 +114,16 @@ func runYield(args []string, stdout, stderr io.Writer) error {
 	seed := fs.Uint64("seed", 1, "random seed; the same seed gives the same numbers")
 	fixed := fs.Bool("fixed-line", false, "hold the line's efficiencies at their midpoints (carry only the audit's uncertainty)")
 	asJSON := fs.Bool("json", false, "print JSON")
+	dir := storeFlag(fs)
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
 	}
 	if len(pos) != 1 {
-		return usagef("give exactly one pulls CSV file")
+		return usagef("give exactly one pulls CSV file, or a stored bale")
+	}
+	if _, err := os.Stat(pos[0]); err != nil && !strings.ContainsAny(pos[0], "/\\.") {
+		return yieldBale(pos[0], *dir, fs, rf, *lineFile, *specFile, *reactor, yield.MCOptions{Draws: *draws, Seed: *seed, FixedLine: *fixed}, *asJSON, stdout)
 	}
 	if !flagSet(fs, "bale-kg") {
 		return usagef("--bale-kg is required: the bale's gross mass in kg")
@@ -160,19 +168,46 @@ func runYield(args []string, stdout, stderr io.Writer) error {
 	if s := (assess.Audit{Pulls: pulls}).SampledKg(); *baleKg < s*(1-1e-9) {
 		return fmt.Errorf("--bale-kg %g is below the %.3f kg sampled in %s; check the bale's mass or the pull masses", *baleKg, s, pos[0])
 	}
-	rep, err := yield.Evaluate(pulls, *baleKg, plan)
+	var d *desk.Desk // no store: built-in and file settings only
+	run, err := d.YieldPulls(context.Background(), pulls, *baleKg, plan, desk.YieldOptions{MC: yield.MCOptions{Draws: *draws, Seed: *seed, FixedLine: *fixed}}, nil)
 	if err != nil {
 		return fmt.Errorf("%s: %w", pos[0], err)
 	}
-	mc, err := yield.Simulate(pulls, *baleKg, plan, yield.MCOptions{Draws: *draws, Seed: *seed, FixedLine: *fixed})
-	if err != nil {
-		return err
-	}
+	rep, mc := run.Report, run.MC
 	out := buildYieldJSON(rep, mc, plan, *fixed)
 	if *asJSON {
 		return writeJSON(stdout, out)
 	}
 	printYield(stdout, out, rep, plan)
+	return nil
+}
+
+// yieldBale runs a stored bale (its pulls and gross mass) through the
+// line, a stored line name winning over a built-in one.
+func yieldBale(bale, dir string, fs *flag.FlagSet, rf *recipeFlags, line, flakeSpec string, reactor float64, mc yield.MCOptions, asJSON bool, stdout io.Writer) error {
+	d, err := openDesk(dir, false)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	plan, err := d.Plan(line, flakeSpec)
+	if err != nil {
+		return err
+	}
+	if plan.Recipe, err = rf.recipe(fs, 0); err != nil {
+		return err
+	}
+	plan.ReactorKg = reactor
+	id, run, err := d.YieldBale(context.Background(), bale, plan, desk.YieldOptions{MC: mc}, nil)
+	if err != nil {
+		return err
+	}
+	out := buildYieldJSON(run.Report, run.MC, plan, mc.FixedLine)
+	if asJSON {
+		return writeJSON(stdout, out)
+	}
+	fmt.Fprintf(stdout, "Stored bale %s\n", id)
+	printYield(stdout, out, run.Report, plan)
 	return nil
 }
 

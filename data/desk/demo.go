@@ -1,0 +1,67 @@
+package desk
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+
+	"baleassay/data/demo"
+	"baleassay/data/store"
+)
+
+// DemoOptions tune MakeDemo.
+type DemoOptions struct {
+	Dir   string // "" for the demo folder
+	Weeks int    // 1 to 52
+	Seed  uint64
+	Force bool // replace an existing demo store
+}
+
+// MakeDemo writes the invented demo scenario into a store of its own. A
+// folder holding real records is refused (the demo never mixes into real
+// data); an existing demo store is replaced only with Force.
+func MakeDemo(o DemoOptions) (string, demo.DemoSummary, error) {
+	var sum demo.DemoSummary
+	if o.Weeks < 1 || o.Weeks > 52 {
+		return "", sum, fmt.Errorf("%w: %d weeks: give 1 to 52", ErrUsage, o.Weeks)
+	}
+	dir := o.Dir
+	if dir == "" {
+		var err error
+		if dir, err = DemoDir(); err != nil {
+			return "", sum, err
+		}
+	}
+	db := filepath.Join(dir, store.DBFile)
+	if _, err := os.Stat(db); err == nil {
+		s, err := store.Open(dir)
+		if err != nil {
+			return dir, sum, err
+		}
+		isDemo, err1 := s.IsDemo()
+		n, err2 := s.LastSeq()
+		s.Close()
+		if err1 != nil || err2 != nil {
+			return dir, sum, fmt.Errorf("cannot read the store at %s", dir)
+		}
+		switch {
+		case !isDemo && n > 0:
+			return dir, sum, fmt.Errorf("%w: %s holds %s, not a demo store; the demo is never mixed into real data: choose another folder", ErrRealStore, dir, Plural(int(n), "event", "events"))
+		case isDemo && !o.Force:
+			return dir, sum, fmt.Errorf("%w: at %s; use it, or make it again (force)", ErrDemoExists, dir)
+		}
+		if err := os.Remove(db); err != nil {
+			return dir, sum, fmt.Errorf("cannot replace the demo store: %w", err)
+		}
+	}
+	s, err := store.Open(dir)
+	if err != nil {
+		return dir, sum, err
+	}
+	defer s.Close()
+	sum, err = demo.WriteDemo(s, demo.DemoOptions{Weeks: o.Weeks, Seed: o.Seed})
+	if err != nil {
+		return dir, sum, fmt.Errorf("the demo scenario was not written: %w", err)
+	}
+	return dir, sum, nil
+}

@@ -1,0 +1,81 @@
+// Package desk is the one use-case layer of baleassay: what a front end
+// does with the records, the audit and the yield. The CLI (cmd/bale)
+// parses, calls the desk and prints; the app lays out, calls the desk and
+// renders. Neither computes anything of its own.
+//
+// # Opening
+//
+//	d, err := desk.Open(desk.Location{}, desk.Options{})            // the user's store
+//	d, err := desk.Open(desk.Location{Demo: true}, desk.Options{})  // the demo store (MakeDemo first)
+//	d, err := desk.Open(desk.Location{Dir: dir}, desk.Options{Create: true})
+//	defer d.Close()
+//
+// A missing store is a *NoStoreError (ErrNoStore) unless Options.Create.
+// A store held by another process fails at once with store.ErrStoreInUse.
+//
+// # Concurrency
+//
+// A *Desk is safe for concurrent use by several goroutines: an app may
+// run a Monte Carlo yield and an import in the background while the
+// screen lists bales. Reads run side by side; writes are serialised by the
+// store, each committed and synced before it returns. Long jobs
+// (YieldPulls, YieldBale, Import) take a context.Context and stop when it
+// is done; they report progress through a func(Progress) called on the
+// job's goroutine (post it to the UI loop), with a typed Step.
+//
+// # What it offers
+//
+//	records   Sites, AddSite, EditSite, RemoveSite, FindSites (near, within, box);
+//	          Bales (joined with site names, pull counts and each audit),
+//	          AddBale, EditBale, RemoveBale; Pulls, AddPulls, EditPull, RemovePull;
+//	          drafts of a pull being typed: PutDraft, Draft, Drafts, DiscardDraft,
+//	          SaveDraft (turns it into a pull, checked like AddPulls)
+//	ids       Resolve (full id, event id, unique prefix or suffix of 4 or more
+//	          hex digits, bale tag, site name), Find (sites by name, bales by tag),
+//	          Show (value, conflict, whole history, a bale's audit), Conflicts
+//	          (concurrent edits and pull labels used twice), ResolveConflict
+//	audit     AuditBale (stored pulls, the bale's stored or named spec: a stored
+//	          spec wins over a built-in one of the same name), AuditPulls (pulls
+//	          read with ReadPulls), LoadSpec
+//	yield     Plan (stored line or file, flake spec), YieldBale, YieldPulls: one
+//	          evaluation plus the Monte Carlo, the overall flake-spec pass, what
+//	          sinks with the PET, and the cautions that apply
+//	summaries SummarizeRegion, SummarizeSite, SummarizeSites: shares across
+//	          bales, bales with hazards, with labels used twice, not assessed
+//	settings  Settings, Setting, SaveSetting (checked by the same reader the
+//	          audit or the yield uses; the name inside must match)
+//	transfer  Trust, TrustAdd (fingerprint, PEM or bundle), TrustRemove,
+//	          Import (demo records refused unless ImportOptions.AllowDemo)
+//	demo      MakeDemo (refuses a folder of real records; replaces a demo
+//	          store only with Force)
+//	files     ReadPulls: the pulls CSV from any reader (stdin too), BOM accepted,
+//	          UTF-16, semicolons and decimal commas refused with the fix, "did
+//	          you mean" for keys, kg or lb, optional weighed and taken columns
+//
+// AuditPulls, LoadSpec, Plan and YieldPulls may be called on a nil *Desk
+// when no store is open: they then know the built-in specs, lines and
+// files only.
+//
+// # Results and errors
+//
+// Results are plain structs of typed values; states are enums with
+// String() (AuditState, Refusal, Concern, Step, SettingKind, QueryKind,
+// Unit, Caution, FingerprintSource; assess.Verdict, assess.Bound,
+// assess.Method from the audit). Nothing needs a string compared.
+//
+// Errors wrap a sentinel of this package (ErrNotFound, ErrAmbiguous,
+// ErrWrongKind, ErrDeleted, ErrRefused, ErrNeedsConfirm, ErrNoPulls,
+// ErrUsage, ErrNoStore, ErrBadPulls, ...) or of the records; use errors.Is
+// and errors.As. Their texts speak to the user: no package prefixes,
+// plural forms right, numbers without exponents (Num, Plural help a front
+// end do the same). A save the checks find implausible returns a
+// *ConfirmError listing typed Checks: show them, and call again with
+// SaveOptions{Confirm: true} if the user agrees. A save refused outright
+// returns a *RefusedError with its typed Reason (a pull total above the
+// bale's gross mass, a pull label the bale already has, an unknown spec, a
+// side that looks like centimetres, ...). A refused save writes nothing.
+// An ambiguous id returns an *AmbiguousError listing the candidates.
+//
+// Corrections never overwrite: an edit saves a new value that supersedes
+// the old one, a removal saves a tombstone; Show lists the history.
+package desk

@@ -1,0 +1,140 @@
+package store
+
+import (
+	"baleassay/data/record"
+	"fmt"
+	"strings"
+
+	bolt "go.etcd.io/bbolt"
+)
+
+// ApplyResult counts what a write did.
+type ApplyResult struct {
+	New       int // events inserted
+	Present   int // events already in the store (or repeated in the batch), left as they were
+	Conflicts int // entities that became conflicted by this write
+	// Warnings are the implausible values found in the new events (kept:
+	// an import does not ask; a local Save asks first).
+	Warnings []record.EventWarning
+}
+
+// ApplyRaw adds encoded events (from an import) and meta values in one
+// committed and synced transaction, all or nothing. Every event is first
+// decoded strictly (DecodeEvent), hashed and validated (ValidateEvent),
+// on all CPUs (checkEvents); the failure of the lowest index is returned
+// as an *EventError naming its index and field, and nothing is written.
+// Events already present are counted, not rewritten. raws may alias a
+// larger buffer that the caller leaves unchanged during the call: the
+// store reads it until the commit and keeps nothing of it afterwards.
+// Meta keys must start with MetaTransferPrefix.
+func (s *Store) ApplyRaw(raws [][]byte, meta map[string][]byte) (ApplyResult, error) {
+	return s.ApplyRawWithIDs(raws, nil, meta, ApplyOptions{})
+}
+
+// ApplyOptions tune ApplyRawWithIDs.
+type ApplyOptions struct {
+	// AllowDemo lets a store of real records take events of the demo
+	// scenario; without it they are refused with a *DemoRecordsError.
+	AllowDemo bool
+}
+
+// applyRaw is ApplyRaw with the events' ids when the caller has them
+// (OpenBundle hashed every event to check its stated id); nil ids are
+// computed here.
+func (s *Store) ApplyRawWithIDs(raws [][]byte, ids []record.EventID, meta map[string][]byte, opt ApplyOptions) (ApplyResult, error) {
+	items, warns, err := record.CheckEvents(raws, ids, s.now(), record.CheckWorkers(len(raws)))
+	if err != nil {
+		return ApplyResult{}, err
+	}
+	if !opt.AllowDemo && !s.demo.Load() {
+		n := 0
+		for i := range items {
+			if items[i].Demo {
+				n++
+			}
+		}
+		if n > 0 {
+			return ApplyResult{}, &DemoRecordsError{N: n}
+		}
+	}
+	for k := range meta {
+		if !strings.HasPrefix(k, MetaTransferPrefix) || len(k) > 200 {
+			return ApplyResult{}, fmt.Errorf("%w: %q (want %q...)", ErrMetaKey, k, MetaTransferPrefix)
+		}
+	}
+	res, err := s.commit(items, meta, true, nil)
+	res.Warnings = warns
+	return res, err
+}
+
+// SaveOptions tune Save.
+type SaveOptions struct {
+	// Confirm accepts warnings. Without it a save with warnings is
+	// refused with a *WarningsError and nothing is written.
+	Confirm bool
+}
+
+// Save stamps local events (format version, this device, a fresh clock
+// stamp, and a new entity id where Entity is zero), validates them and
+// writes them in one committed and synced transaction. It returns the new
+// event ids in order, and the entity ids through the events' Entity when
+// they were made here.
+func (s *Store) Save(evs []record.Event, opt SaveOptions) ([]record.EventID, error) {
+	ids, _, err := s.save(evs, opt, nil)
+	return ids, err
+}
+
+// save is Save with an extra step run inside the transaction.
+func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(tx *bolt.Tx) error) ([]record.EventID, []record.Event, error) {
+	items := make([]record.Checked, len(evs))
+	var warns []record.Warning
+	now := s.now()
+	out := make([]record.Event, len(evs))
+	for i, e := range evs {
+		e.Version = record.FormatVersion
+		e.Device = s.device
+		e.Demo = e.Demo || s.demo.Load()
+		e.Clock = s.clock.Now()
+		if e.Entity.IsZero() {
+			id, err := record.NewEntityID()
+			if err != nil {
+				return nil, nil, err
+			}
+			e.Entity = id
+		}
+		raw, err := record.EncodeEvent(e)
+		if err != nil {
+			return nil, nil, &record.EventError{Index: i, Err: err}
+		}
+		id := record.IDOf(raw)
+		w, err := record.ValidateEventAt(e, now)
+		if err != nil {
+			return nil, nil, &record.EventError{Index: i, ID: id, Err: err}
+		}
+		warns = append(warns, w...)
+		items[i] = record.CheckedOf(id, raw, e)
+		out[i] = e
+	}
+	if len(warns) > 0 && !opt.Confirm {
+		return nil, nil, &WarningsError{Warnings: warns}
+	}
+	if _, err := s.commit(items, nil, false, extra); err != nil {
+		return nil, nil, err
+	}
+	ids := make([]record.EventID, len(items))
+	for i, it := range items {
+		ids[i] = it.ID
+	}
+	return ids, out, nil
+}
+
+// writable reports why the store cannot take a write, if it cannot.
+func (s *Store) writableLocked() error {
+	if s.closed {
+		return ErrClosed
+	}
+	if s.failed != nil {
+		return &WriteError{Err: s.failed}
+	}
+	return nil
+}

@@ -1,0 +1,121 @@
+package store
+
+import (
+	"baleassay/data/geo"
+	"baleassay/data/record"
+	"encoding/binary"
+	"fmt"
+	"math"
+
+	bolt "go.etcd.io/bbolt"
+)
+
+// Supersede saves ev as the new value of an existing entity: its Entity
+// and Kind are set from the entity and it supersedes every current head,
+// so it also resolves a conflict. It returns the new event's id.
+func (s *Store) Supersede(ent record.EntityID, ev record.Event, opt SaveOptions) (record.EventID, error) {
+	st, err := s.Entity(ent)
+	if err != nil {
+		return record.EventID{}, err
+	}
+	ev.Entity, ev.Kind, ev.Supersedes = ent, st.Kind, st.HeadIDs()
+	ids, err := s.Save([]record.Event{ev}, opt)
+	if err != nil {
+		return record.EventID{}, err
+	}
+	return ids[0], nil
+}
+
+// Delete saves a tombstone that supersedes every head of the entity. The
+// entity disappears from views; its events stay in the store.
+func (s *Store) Delete(ent record.EntityID) (record.EventID, error) {
+	st, err := s.Entity(ent)
+	if err != nil {
+		return record.EventID{}, err
+	}
+	if st.Deleted() {
+		return record.EventID{}, fmt.Errorf("%w: %s %s is already deleted", ErrNotFound, st.Kind, ent)
+	}
+	return s.Supersede(ent, record.Event{Deleted: true}, SaveOptions{})
+}
+
+// Resolve ends a conflict by saving a copy of the chosen head's value (or
+// its deletion) that supersedes every head.
+func (s *Store) Resolve(ent record.EntityID, keep record.EventID) (record.EventID, error) {
+	st, err := s.Entity(ent)
+	if err != nil {
+		return record.EventID{}, err
+	}
+	for _, h := range st.Heads {
+		if h.ID == keep {
+			ev := record.Event{Deleted: h.Deleted, Site: h.Site, Bale: h.Bale, Pull: h.Pull, Setting: h.Setting}
+			return s.Supersede(ent, ev, SaveOptions{Confirm: true})
+		}
+	}
+	return record.EventID{}, fmt.Errorf("%w: event %s is not a current value of %s %s", ErrNotFound, keep.Short(), st.Kind, ent)
+}
+
+// The sites bucket keeps each visible site's shown position and name,
+// written in the same transaction as the events that change it, so that
+// opening a store loads the index without decoding events:
+//
+//	entity id → lat (float64 bits, BE) ‖ lon (float64 bits, BE) ‖ name
+
+func putSiteCache(tx *bolt.Tx, u geo.Update) error {
+	b := tx.Bucket(bSites)
+	if u.Remove {
+		return b.Delete(u.Site.ID[:])
+	}
+	v := make([]byte, 16, 16+len(u.Site.Name))
+	binary.BigEndian.PutUint64(v, math.Float64bits(u.Site.Lat))
+	binary.BigEndian.PutUint64(v[8:], math.Float64bits(u.Site.Lon))
+	return b.Put(u.Site.ID[:], append(v, u.Site.Name...))
+}
+
+// rebuildSiteCache fills the sites bucket from the events (a store made
+// before the bucket existed).
+func rebuildSiteCache(tx *bolt.Tx) error {
+	return tx.Bucket(bEntity).ForEach(func(k, v []byte) error {
+		if record.Kind(v[0]) != record.KindSite {
+			return nil
+		}
+		var id record.EntityID
+		copy(id[:], k)
+		st, err := stateTx(tx, id)
+		if err != nil {
+			return err
+		}
+		return putSiteCache(tx, siteUpdateOf(st))
+	})
+}
+
+// loadSites bulk-loads the site index from the sites bucket.
+func (s *Store) loadSites() error {
+	var sites []geo.IndexedSite
+	err := s.db.View(func(tx *bolt.Tx) error {
+		return tx.Bucket(bSites).ForEach(func(k, v []byte) error {
+			if len(v) < 16 || len(k) != 16 {
+				return fmt.Errorf("site cache entry of %d bytes", len(v))
+			}
+			var id record.EntityID
+			copy(id[:], k)
+			sites = append(sites, geo.IndexedSite{ID: id, Lat: math.Float64frombits(binary.BigEndian.Uint64(v)),
+				Lon: math.Float64frombits(binary.BigEndian.Uint64(v[8:])), Name: string(v[16:])})
+			return nil
+		})
+	})
+	if err != nil {
+		return fmt.Errorf("data: load site index: %w", err)
+	}
+	s.sites = geo.NewSiteIndex(sites)
+	return nil
+}
+
+// siteUpdateOf is the index change an entity's new state makes.
+func siteUpdateOf(st record.EntityState) geo.Update {
+	cur, ok := st.Current()
+	if !ok || cur.Site == nil {
+		return geo.Update{Site: geo.IndexedSite{ID: st.ID}, Remove: true}
+	}
+	return geo.Update{Site: geo.IndexedSite{ID: st.ID, Name: cur.Site.Name, Lat: cur.Site.Lat, Lon: cur.Site.Lon}}
+}

@@ -1,0 +1,277 @@
+package transfer
+
+import (
+	"baleassay/data/record"
+	"bytes"
+	"crypto/sha256"
+	"encoding/binary"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"slices"
+
+	"github.com/fxamacker/cbor/v2"
+)
+
+// Limits of the bundle reader. MaxBundleBytes caps the file size before
+// anything is read; DefaultPartBytes is the payload size at which export
+// starts a new part (well under the cap, so every part imports).
+// The part size trades the store's transaction cost against its memory
+// (TestImportPeakMemory1M, 2-core machine): the peak heap of a write
+// grows with the events of one transaction (bbolt keeps every leaf page
+// it touches as a node and a new page until the commit), so 1,000,000
+// events take 61 s and peak at 1.15 GB as 48 parts of 4 MiB, and 32 s
+// and 1.58 GB as 12 parts of 16 MiB (parts stamped in the same weeks;
+// 29 s, 304 MB and 22 s, 711 MB when each part follows the last in
+// time). One 19.5 MB bundle of 100,000 events imports in 1.7 s. The
+// smaller, leaner choice wins for the usual files of a week's grading.
+// MaxBundleEvents caps the events array.
+const (
+	MaxBundleBytes   = 64 << 20
+	DefaultPartBytes = 4 << 20
+	MaxBundleEvents  = 1 << 21
+)
+
+// minEntryBytes is the smallest encoded [id, event] pair: array head,
+// 34-byte id string, and the head of an (empty) byte string.
+const minEntryBytes = 1 + 34 + 1
+
+// TrustFunc answers whether a key is trusted and under which name.
+type TrustFunc func(Fingerprint) (name string, ok bool)
+
+// OpenedBundle is a bundle that passed every check short of the store:
+// signature by a trusted key, strict decoding, deterministic encoding,
+// event ids. Raws are sub-slices of the file bytes (not copies), in
+// bundle order.
+type OpenedBundle struct {
+	Header     BundleHeader
+	Signer     Fingerprint
+	SignerName string
+	Hash       [32]byte // SHA-256 of the complete file
+	Raws       [][]byte
+	IDs        []record.EventID // IDs[i] is the SHA-256 of Raws[i], checked against the id the bundle states
+}
+
+// buildBody returns the deterministic encoding of [header, [[id, event]...]].
+func buildBody(h BundleHeader, raws [][]byte) ([]byte, error) {
+	hdr, err := encodeHeader(h)
+	if err != nil {
+		return nil, err
+	}
+	size := 2 + len(hdr) + 9
+	for _, r := range raws {
+		size += 1 + 34 + 9 + len(r)
+	}
+	out := make([]byte, 0, size)
+	out = appendHead(out, majArray, 2)
+	out = append(out, hdr...)
+	out = appendHead(out, majArray, uint64(len(raws)))
+	for _, r := range raws {
+		id := sha256.Sum256(r)
+		out = appendHead(out, majArray, 2)
+		out = appendHead(out, majBytes, 32)
+		out = append(out, id[:]...)
+		out = appendHead(out, majBytes, uint64(len(r)))
+		out = append(out, r...)
+	}
+	return out, nil
+}
+
+// bodyOverhead is the encoded size of one event entry beyond its bytes.
+func bodyOverhead(rawLen int) int {
+	return 1 + 34 + len(appendHead(nil, majBytes, uint64(rawLen)))
+}
+
+// SealBundle encodes h and the events' stored bytes as a bundle body and
+// signs it with key. It fills h.Key and h.Count.
+func SealBundle(key *DeviceKey, h BundleHeader, raws [][]byte) ([]byte, error) {
+	h.Key = key.Fingerprint()
+	h.Count = uint64(len(raws))
+	body, err := buildBody(h, raws)
+	if err != nil {
+		return nil, err
+	}
+	return sealSign1(key.priv, body)
+}
+
+// OpenBundle checks a bundle file's bytes in the order the format
+// prescribes: envelope, signer in trust, signature, then the body. A nil
+// trusted trusts no key. It never modifies raw and never panics on any
+// input.
+func OpenBundle(raw []byte, trusted TrustFunc) (*OpenedBundle, error) {
+	if len(raw) > MaxBundleBytes {
+		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", len(raw), MaxBundleBytes)
+	}
+	// The file's hash is needed only at the end; a large file is hashed
+	// on another CPU meanwhile (hashing reads, it decodes nothing). The
+	// goroutine never blocks (buffered), so an early refusal leaves it to
+	// finish on its own.
+	var hashed chan [32]byte
+	if len(raw) >= 1<<20 {
+		hashed = make(chan [32]byte, 1)
+		go func() { hashed <- sha256.Sum256(raw) }()
+	}
+	env, err := parseSign1(raw)
+	if err != nil {
+		return nil, err
+	}
+	fp := FingerprintOf(env.kid)
+	var name string
+	ok := false
+	if trusted != nil {
+		name, ok = trusted(fp)
+	}
+	if !ok {
+		return nil, &UnknownSignerError{Fingerprint: fp}
+	}
+	if err := verifySign1(env, env.kid); err != nil {
+		return nil, err
+	}
+	h, raws, ids, err := decodeBody(env.payload, env.payloadOff)
+	if err != nil {
+		return nil, err
+	}
+	if h.Key != fp {
+		return nil, bundleErr(ErrBundleHeader, "header.key", env.payloadOff, "header names key %s, bundle is signed by %s", h.Key, fp)
+	}
+	var sum [32]byte
+	if hashed != nil {
+		sum = <-hashed
+	} else {
+		sum = sha256.Sum256(raw)
+	}
+	return &OpenedBundle{Header: h, Signer: fp, SignerName: name, Hash: sum, Raws: raws, IDs: ids}, nil
+}
+
+// decodeBody walks a verified payload: the body array, the header (via
+// the strict decoder) and each [id, event] pair (sliced, not copied).
+func decodeBody(p []byte, base int) (BundleHeader, [][]byte, []record.EventID, error) {
+	var h BundleHeader
+	w := &wire{buf: p, base: base, part: "body"}
+	if n, err := w.expect(majArray, "the body array"); err != nil {
+		return h, nil, nil, err
+	} else if n != 2 {
+		return h, nil, nil, bundleErr(ErrBundleMalformed, "body", base, "body array has %d items, want [header, events]", n)
+	}
+	hStart := w.off
+	var item cbor.RawMessage
+	rest, err := headerDec.UnmarshalFirst(p[hStart:], &item)
+	if err != nil {
+		return h, nil, nil, cborErr(err, "header", base+hStart)
+	}
+	w.off = len(p) - len(rest)
+	if h, err = decodeHeader(p[hStart:w.off], base+hStart); err != nil {
+		return h, nil, nil, err
+	}
+	w.part = "events"
+	at := w.off
+	n, err := w.expect(majArray, "the events array")
+	if err != nil {
+		return h, nil, nil, err
+	}
+	if n > MaxBundleEvents {
+		return h, nil, nil, bundleErr(ErrBundleTooMany, "events", base+at, "array claims %d events, limit %d", n, MaxBundleEvents)
+	}
+	if n*minEntryBytes > uint64(len(p)-w.off) {
+		return h, nil, nil, bundleErr(ErrBundleTruncated, "events", base+at, "array claims %d events, only %d bytes remain", n, len(p)-w.off)
+	}
+	if n != h.Count {
+		return h, nil, nil, bundleErr(ErrBundleEventCount, "events", base+at, "header says %d events, array has %d", h.Count, n)
+	}
+	raws := make([][]byte, 0, n)
+	ids := make([]record.EventID, 0, n)
+	for i := range int(n) {
+		if err := readEntry(w, i, &raws, &ids); err != nil {
+			var be *BundleError
+			if errors.As(err, &be) {
+				be.Part, be.Event = fmt.Sprintf("events[%d]", i), i
+			}
+			return h, nil, nil, err
+		}
+	}
+	w.part = "body"
+	if err := w.end(); err != nil {
+		return h, nil, nil, err
+	}
+	if i, ok := firstRepeat(ids); ok {
+		return h, nil, nil, bundleErr(ErrBundleDupEvent, "events", -1, "event %s appears twice", hex.EncodeToString(ids[i][:]))
+	}
+	return h, raws, ids, nil
+}
+
+// firstRepeat finds an id that appears twice, if any, and the index of
+// one copy. It sorts the ids' first 8 bytes (much faster than sorting
+// 32-byte keys); only when two prefixes are equal does it sort whole ids.
+func firstRepeat(ids []record.EventID) (int, bool) {
+	pre := make([]uint64, len(ids))
+	for i := range ids {
+		pre[i] = binary.BigEndian.Uint64(ids[i][:8])
+	}
+	slices.Sort(pre)
+	clash := false
+	for i := 1; i < len(pre); i++ {
+		if pre[i] == pre[i-1] {
+			clash = true
+			break
+		}
+	}
+	if !clash {
+		return 0, false
+	}
+	idx := make([]int, len(ids))
+	for i := range idx {
+		idx[i] = i
+	}
+	slices.SortFunc(idx, func(a, b int) int { return bytes.Compare(ids[a][:], ids[b][:]) })
+	for i := 1; i < len(idx); i++ {
+		if ids[idx[i]] == ids[idx[i-1]] {
+			return idx[i], true
+		}
+	}
+	return 0, false
+}
+
+// readEntry reads the i-th [id, event] pair and checks the id.
+func readEntry(w *wire, i int, raws *[][]byte, ids *[]record.EventID) error {
+	if k, err := w.expect(majArray, "an [id, event] pair"); err != nil {
+		return err
+	} else if k != 2 {
+		return bundleErr(ErrBundleMalformed, "", w.base+w.off, "entry has %d items, want [id, event]", k)
+	}
+	id, idOff, err := w.bytes("the event id")
+	if err != nil {
+		return err
+	}
+	if len(id) != 32 {
+		return bundleErr(ErrBundleMalformed, "", w.base+idOff, "event id has %d bytes, want 32", len(id))
+	}
+	ev, evOff, err := w.bytes("the event bytes")
+	if err != nil {
+		return err
+	}
+	sum := sha256.Sum256(ev)
+	if !bytes.Equal(sum[:], id) {
+		return bundleErr(ErrBundleEventID, "", w.base+evOff, "id %s, bytes hash to %s", hex.EncodeToString(id), hex.EncodeToString(sum[:]))
+	}
+	*raws = append(*raws, ev)
+	*ids = append(*ids, record.EventID(sum))
+	return nil
+}
+
+// BundleSigner returns the fingerprint of the key that signed a bundle,
+// after checking that the signature verifies with that key, so that
+// `bale trust add FILE` never trusts the key of a damaged file. It does
+// not consult any trust list.
+func BundleSigner(raw []byte) (Fingerprint, error) {
+	if len(raw) > MaxBundleBytes {
+		return Fingerprint{}, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", len(raw), MaxBundleBytes)
+	}
+	env, err := parseSign1(raw)
+	if err != nil {
+		return Fingerprint{}, err
+	}
+	if err := verifySign1(env, env.kid); err != nil {
+		return Fingerprint{}, err
+	}
+	return FingerprintOf(env.kid), nil
+}

@@ -1,0 +1,381 @@
+package transfer
+
+import (
+	"baleassay/data/record"
+	"baleassay/data/store"
+	"bytes"
+	"context"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"time"
+)
+
+// Clock-skew flags of the importer: a bundle stamped further ahead of
+// this device's clock than SkewAhead, or further behind than SkewBehind,
+// is imported and flagged. Ahead cannot happen with right clocks; behind
+// also happens when a file is carried for weeks, hence the wide bound.
+// Illustrative thresholds (common practice for offline sync, not a
+// standard).
+const (
+	SkewAhead  = 10 * time.Minute
+	SkewBehind = 30 * 24 * time.Hour
+)
+
+// Importer applies bundle files to a store.
+type Importer struct {
+	Store *store.Store
+	Trust TrustFunc
+	// Now is this device's clock for skew flags (time.Now when nil).
+	Now func() time.Time
+	// Progress, when set, is called as each file moves through the steps.
+	Progress func(Progress)
+	// MaxBytes caps the file size (MaxBundleBytes when 0).
+	MaxBytes int64
+	// AllowDemo lets a store of real records take the demo scenario's
+	// records (store.ErrDemoRecords otherwise).
+	AllowDemo bool
+	// Context, when set, stops ImportFiles between files once it is done;
+	// the files already imported stay.
+	Context context.Context
+}
+
+// Progress reports where an import is.
+type Progress struct {
+	File        string
+	Index, Of   int    // file number from 1, and how many files
+	Step        string // "reading", "verifying", "applying", "done", "refused"
+	Events      int    // events in the file, once known
+	EventsSoFar int    // events applied from earlier files in this run
+}
+
+// FileReport is the outcome of one file.
+type FileReport struct {
+	Path        string
+	Device      record.DeviceID
+	Seq         uint64
+	Part, Parts uint64
+	Signer      string // trust-list name
+	Events      int
+	New         int
+	Present     int
+	Conflicts   int
+	Warnings    int      // new events the records' validation warns about (kept, listed in Flags)
+	Replay      bool     // this exact bundle was imported before: a no-op
+	Flags       []string // clock skew, sequence chain mismatches
+	Err         error    // non-nil: the file was refused and nothing changed
+}
+
+// ImportReport is the outcome of a run.
+type ImportReport struct {
+	Files []FileReport
+	Gaps  []SeqGap // per device seen in this run, bundles below the highest that are missing
+	// Stopped is the context's error when the run stopped before the
+	// last file.
+	Stopped error
+}
+
+// Refused counts refused files.
+func (r ImportReport) Refused() int {
+	n := 0
+	for _, f := range r.Files {
+		if f.Err != nil {
+			n++
+		}
+	}
+	return n
+}
+
+// ExpandPaths turns the command-line arguments into files: a folder
+// stands for its *.bale files (not recursive), sorted by name.
+func ExpandPaths(args []string) ([]string, error) {
+	var out []string
+	for _, a := range args {
+		st, err := os.Stat(a)
+		if err != nil {
+			return nil, err
+		}
+		if !st.IsDir() {
+			out = append(out, a)
+			continue
+		}
+		m, err := filepath.Glob(filepath.Join(a, "*"+BundleExt))
+		if err != nil {
+			return nil, err
+		}
+		sort.Strings(m)
+		out = append(out, m...)
+	}
+	return out, nil
+}
+
+// ImportFiles imports each file in its own transaction; a refused file
+// does not stop the others. Gaps are computed after the last file.
+func (im *Importer) ImportFiles(paths []string) ImportReport {
+	var rep ImportReport
+	devs := map[record.DeviceID]bool{}
+	done := 0
+	for i, p := range paths {
+		if im.Context != nil && im.Context.Err() != nil {
+			rep.Stopped = im.Context.Err()
+			break
+		}
+		fr := im.importFile(p, i+1, len(paths), done)
+		done += fr.New + fr.Present
+		if fr.Err == nil {
+			devs[fr.Device] = true
+		}
+		rep.Files = append(rep.Files, fr)
+	}
+	rep.Gaps = im.gaps(devs)
+	return rep
+}
+
+func (im *Importer) progress(p Progress) {
+	if im.Progress != nil {
+		im.Progress(p)
+	}
+}
+
+func (im *Importer) importFile(path string, idx, of, soFar int) FileReport {
+	im.progress(Progress{File: path, Index: idx, Of: of, Step: "reading", EventsSoFar: soFar})
+	raw, err := ReadBundleFile(path, im.MaxBytes)
+	var fr FileReport
+	if err == nil {
+		fr = im.importBytes(raw, func(p Progress) {
+			p.File, p.Index, p.Of, p.EventsSoFar = path, idx, of, soFar
+			im.progress(p)
+		})
+	} else {
+		fr.Err = err
+	}
+	fr.Path = path
+	var use *UnknownSignerError
+	if errors.As(fr.Err, &use) {
+		use.File = path
+	}
+	step := "done"
+	if fr.Err != nil {
+		step = "refused"
+	}
+	im.progress(Progress{File: path, Index: idx, Of: of, Step: step, Events: fr.Events, EventsSoFar: soFar + fr.New + fr.Present})
+	return fr
+}
+
+// ReadBundleFile reads a bundle, refusing a file over max bytes
+// (MaxBundleBytes when max ≤ 0) before reading it, and reading no more
+// than max+1 bytes even if the file grows meanwhile.
+func ReadBundleFile(path string, max int64) ([]byte, error) {
+	if max <= 0 {
+		max = MaxBundleBytes
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	st, err := f.Stat()
+	if err != nil {
+		return nil, err
+	}
+	if !st.Mode().IsRegular() {
+		return nil, bundleErr(ErrBundleMalformed, "file", -1, "%s is not a regular file", path)
+	}
+	if st.Size() > max {
+		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", st.Size(), max)
+	}
+	// One allocation of the stated size; a file that grew meanwhile is
+	// noticed by the extra byte read after it.
+	b := make([]byte, st.Size())
+	if _, err := io.ReadFull(f, b); err != nil {
+		return nil, fmt.Errorf("data: reading %s: %w", path, err)
+	}
+	if n, _ := f.Read(make([]byte, 1)); n > 0 {
+		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%s grew while it was read; copy it again", path)
+	}
+	return b, nil
+}
+
+// ImportBytes imports one bundle held in memory.
+func (im *Importer) ImportBytes(raw []byte) FileReport { return im.importBytes(raw, im.progress) }
+
+func (im *Importer) importBytes(raw []byte, prog func(Progress)) FileReport {
+	var fr FileReport
+	max := im.MaxBytes
+	if max <= 0 {
+		max = MaxBundleBytes
+	}
+	if int64(len(raw)) > max {
+		fr.Err = bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", len(raw), max)
+		return fr
+	}
+	prog(Progress{Step: "verifying"})
+	ob, err := OpenBundle(raw, im.Trust)
+	if err != nil {
+		fr.Err = err
+		return fr
+	}
+	h := ob.Header
+	fr.Device, fr.Seq, fr.Part, fr.Parts, fr.Signer = h.Device, h.Seq, h.Part, h.Parts, ob.SignerName
+	fr.Events = len(ob.Raws)
+	meta, flags, replay, err := im.seqMeta(ob)
+	if err != nil {
+		fr.Err = err
+		return fr
+	}
+	fr.Flags, fr.Replay = append(flags, im.skewFlags(h)...), replay
+	prog(Progress{Step: "applying", Events: fr.Events})
+	res, err := im.Store.ApplyRawWithIDs(ob.Raws, ob.IDs, meta, store.ApplyOptions{AllowDemo: im.AllowDemo})
+	if err != nil {
+		var ee *record.EventError
+		if errors.As(err, &ee) && ee.Index >= 0 && ee.Index < len(ob.Raws) {
+			fr.Err = &EventRefusedError{Index: ee.Index, ID: ob.IDs[ee.Index].String(), Err: err}
+		} else {
+			fr.Err = err
+		}
+		return fr
+	}
+	fr.New, fr.Present, fr.Conflicts = res.New, res.Present, res.Conflicts
+	fr.Warnings = len(res.Warnings)
+	fr.Flags = append(fr.Flags, warningFlags(res.Warnings)...)
+	return fr
+}
+
+// warningFlags summarises the records' warnings on imported events (an
+// import keeps such events; a person should look at them), one line per
+// kind of warning with its count and first example.
+func warningFlags(ws []record.EventWarning) []string {
+	type sum struct {
+		n     int
+		first record.EventWarning
+	}
+	by := map[record.WarningCode]*sum{}
+	var order []record.WarningCode
+	for _, w := range ws {
+		if by[w.Code] == nil {
+			by[w.Code] = &sum{first: w}
+			order = append(order, w.Code)
+		}
+		by[w.Code].n++
+	}
+	var out []string
+	for _, c := range order {
+		x := by[c]
+		out = append(out, fmt.Sprintf("%d imported event(s) with warning %s, e.g. events[%d] %s", x.n, c, x.first.Index, x.first.Warning))
+	}
+	return out
+}
+
+// seqMeta computes the sequence meta this bundle adds and its flags. The
+// result depends only on the set of bundles imported: the seen set is a
+// union, and of two different bundles claiming one (device, seq) the one
+// with the smaller hash is recorded (both are imported; their events are
+// signed and merge by union).
+func (im *Importer) seqMeta(ob *OpenedBundle) (map[string][]byte, []string, bool, error) {
+	h := ob.Header
+	var flags []string
+	seenRaw, err := im.Store.Meta(metaSeenKey(h.Device))
+	if err != nil {
+		return nil, nil, false, err
+	}
+	seen, err := decodeSeqSet(seenRaw)
+	if err != nil {
+		return nil, nil, false, err
+	}
+	rec := append(append([]byte(nil), ob.Hash[:]...), h.Prev[:]...)
+	key := metaBundleKey(h.Device, h.Seq)
+	old, err := im.Store.Meta(key)
+	if err != nil {
+		return nil, nil, false, err
+	}
+	replay := len(old) == 64 && bytes.Equal(old[:32], ob.Hash[:])
+	if len(old) == 64 && !replay {
+		flags = append(flags, fmt.Sprintf("device %s has written two different bundles numbered %d (restored from a backup?); both are imported", h.Device, h.Seq))
+		if bytes.Compare(old[:32], ob.Hash[:]) < 0 {
+			rec = old
+		}
+	}
+	// Chain checks against the neighbours already recorded.
+	if h.Seq > 1 {
+		if p, _ := im.Store.Meta(metaBundleKey(h.Device, h.Seq-1)); len(p) == 64 && !bytes.Equal(p[:32], h.Prev[:]) {
+			flags = append(flags, fmt.Sprintf("bundle %d from device %s names a previous bundle other than the bundle %d imported here", h.Seq, h.Device, h.Seq-1))
+		}
+	}
+	if n, _ := im.Store.Meta(metaBundleKey(h.Device, h.Seq+1)); len(n) == 64 && !bytes.Equal(n[32:], ob.Hash[:]) {
+		flags = append(flags, fmt.Sprintf("bundle %d from device %s does not follow this bundle %d", h.Seq+1, h.Device, h.Seq))
+	}
+	enc, err := encodeSeqSet(seen.Add(h.Seq))
+	if err != nil {
+		return nil, nil, false, err
+	}
+	return map[string][]byte{metaSeenKey(h.Device): enc, key: rec}, flags, replay, nil
+}
+
+func (im *Importer) skewFlags(h BundleHeader) []string {
+	now := time.Now
+	if im.Now != nil {
+		now = im.Now
+	}
+	d := time.UnixMilli(h.WallMs).Sub(now())
+	switch {
+	case d > SkewAhead:
+		return []string{fmt.Sprintf("clock skew: device %s stamped this bundle %s ahead of this device's clock; check that device's date and time", h.Device, roundSkew(d))}
+	case -d > SkewBehind:
+		return []string{fmt.Sprintf("clock skew: bundle stamped %s before this device's clock; an old file, or that device's clock is behind", roundSkew(-d))}
+	}
+	return nil
+}
+
+func roundSkew(d time.Duration) string {
+	if d >= 48*time.Hour {
+		return fmt.Sprintf("%.0f days", d.Hours()/24)
+	}
+	return d.Round(time.Minute).String()
+}
+
+// gaps lists missing sequence numbers for the given devices.
+func (im *Importer) gaps(devs map[record.DeviceID]bool) []SeqGap {
+	ids := make([]record.DeviceID, 0, len(devs))
+	for d := range devs {
+		ids = append(ids, d)
+	}
+	sort.Slice(ids, func(i, j int) bool { return bytes.Compare(ids[i][:], ids[j][:]) < 0 })
+	var out []SeqGap
+	for _, d := range ids {
+		v, err := im.Store.Meta(metaSeenKey(d))
+		if err != nil {
+			continue
+		}
+		set, err := decodeSeqSet(v)
+		if err != nil {
+			continue
+		}
+		for _, r := range set.Missing() {
+			out = append(out, SeqGap{Device: d, From: r.Lo, To: r.Hi})
+		}
+	}
+	return out
+}
+
+// SummaryLine is a one-line report of a file for people.
+func (f FileReport) SummaryLine() string {
+	name := filepath.Base(f.Path)
+	if f.Err != nil {
+		return fmt.Sprintf("%s: refused: %v", name, f.Err)
+	}
+	dev := hex.EncodeToString(f.Device[:])
+	s := fmt.Sprintf("%s: bundle %d (part %d of %d) from device %s, signed by %q: %d new, %d already present, %d conflicts created",
+		name, f.Seq, f.Part, f.Parts, dev, f.Signer, f.New, f.Present, f.Conflicts)
+	if f.Replay {
+		s += " (imported before: nothing changed)"
+	}
+	if len(f.Flags) > 0 {
+		s += "\n  " + strings.Join(f.Flags, "\n  ")
+	}
+	return s
+}
