@@ -5,6 +5,13 @@ set -euo pipefail
 
 # python3-cbor2: independent CBOR decoder for the sync-file interop test.
 packages=(python3 python3-cbor2)
+# The field app (Gio): headers for cgo on Linux, Mesa for software
+# OpenGL ES / EGL (no GPU is needed), and for its tests a virtual X
+# server, xdotool to type into the real window and ImageMagick's import
+# for screenshots.
+packages+=(pkg-config libwayland-dev libx11-dev libx11-xcb-dev libxkbcommon-dev libxkbcommon-x11-dev
+  libxcursor-dev libxfixes-dev libegl-dev libgles2 libgl1-mesa-dri libvulkan-dev mesa-vulkan-drivers
+  xvfb xdotool x11-utils imagemagick)
 
 missing=()
 for p in "${packages[@]}"; do
@@ -23,4 +30,4 @@ else
 fi
 echo "baleassay: installing ${missing[*]}" >&2
 DEBIAN_FRONTEND=noninteractive "${apt[@]}" update -q
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" install -y -q "${missing[@]}"
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 install -y -q --no-install-recommends "${missing[@]}"
