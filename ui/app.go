@@ -7,6 +7,8 @@
 package ui
 
 import (
+	"time"
+
 	"gioui.org/app"
 	"gioui.org/io/event"
 	"gioui.org/io/key"
@@ -16,18 +18,21 @@ import (
 	"gioui.org/op/clip"
 	"gioui.org/widget"
 
+	"baleassay/data/desk"
 	"baleassay/ui/kit"
 	"baleassay/ui/theme"
 )
 
 // Config is what the app is opened on.
 type Config struct {
+	Desk  *desk.Desk // the open store; the app does not close it
 	Mode  theme.Mode
 	Scale float32
-	Unit  MassUnit
-	Demo  bool // the store is the demo store: show the banner
-	// StoreDir is the store's folder, shown in the footer.
-	StoreDir string
+	Unit  desk.Unit // 0 = kg
+	// Demo shows the demo banner (the store holds the demo scenario).
+	Demo bool
+	// Now is the clock (time.Now when nil); tests fix it.
+	Now func() time.Time
 }
 
 // App is the window's content: the screens, the shell around them and the
@@ -48,6 +53,13 @@ type App struct {
 
 	in    inbox
 	owner *owner
+	m     model
+
+	sites    *sitesScreen
+	intake   *intakeScreen
+	tally    *tallyScreen
+	outcome  *outcomeScreen
+	transfer *transferScreen
 
 	// Frames counts laid-out frames (tests and the start-up probe read it).
 	Frames     int
@@ -63,9 +75,21 @@ func New(cfg Config) *App {
 	if cfg.Scale <= 0 {
 		cfg.Scale = 1
 	}
+	if cfg.Unit == 0 {
+		cfg.Unit = desk.UnitKg
+	}
+	if cfg.Now == nil {
+		cfg.Now = time.Now
+	}
 	a := &App{cfg: cfg, owner: newOwner()}
 	a.th = theme.New(cfg.Mode, cfg.Scale, nil)
 	a.helpList.Axis = layout.Vertical
+	a.sites = newSitesScreen()
+	a.intake = newIntakeScreen()
+	a.tally = newTallyScreen()
+	a.outcome = newOutcomeScreen()
+	a.transfer = newTransferScreen()
+	a.start()
 	return a
 }
 
@@ -81,12 +105,6 @@ func (a *App) HelpOpen() bool { return a.help }
 // Theme is the theme in use.
 func (a *App) Theme() *theme.Theme { return a.th }
 
-// Settle waits for queued store jobs and applies their answers: for tests
-// and the smoke probe, never on the frame loop.
-func (a *App) Settle() {
-	a.owner.idle()
-	a.in.drain()
-}
 
 // Run drives a window until it closes.
 func (a *App) Run(w *app.Window) error {
@@ -131,7 +149,7 @@ func (a *App) Layout(gtx layout.Context) []Action {
 				return layout.Dimensions{}
 			}
 			return kit.Banner{Th: th, Title: "DEMO DATA",
-				Text: "Invented yards, bales and pulls for trying the app. Start with --store DIR (or without --demo) for real records."}.Layout(gtx, nil)
+				Text: "Invented yards, bales and pulls, for trying the app. Your own records: start baleassay without --demo (or with --store FOLDER)."}.Layout(gtx, nil)
 		}),
 		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
 			d, ac := a.layoutBar(gtx)
@@ -140,7 +158,9 @@ func (a *App) Layout(gtx layout.Context) []Action {
 		}),
 		layout.Flexed(1, func(gtx layout.Context) layout.Dimensions {
 			return layout.UniformInset(12).Layout(gtx, func(gtx layout.Context) layout.Dimensions {
-				return a.layoutScreen(gtx)
+				ac, d := a.layoutScreen(gtx)
+				acts = append(acts, ac...)
+				return d
 			})
 		}),
 		layout.Rigid(a.layoutFooter),
@@ -151,8 +171,20 @@ func (a *App) Layout(gtx layout.Context) []Action {
 	return acts
 }
 
-func (a *App) layoutScreen(gtx layout.Context) layout.Dimensions {
-	return kit.Text{Th: a.th, Text: a.screen.Title(), Color: a.th.Pal.Text, Size: theme.SizeTitle, Bold: true}.Layout(gtx)
+func (a *App) layoutScreen(gtx layout.Context) ([]Action, layout.Dimensions) {
+	switch a.screen {
+	case ScreenSites:
+		return a.sites.Layout(gtx, a)
+	case ScreenIntake:
+		return a.intake.Layout(gtx, a)
+	case ScreenTally:
+		return a.tally.Layout(gtx, a)
+	case ScreenOutcome:
+		return a.outcome.Layout(gtx, a)
+	case ScreenTransfer:
+		return a.transfer.Layout(gtx, a)
+	}
+	return nil, layout.Dimensions{}
 }
 
 // globalKeys reads the keys that work everywhere.
@@ -195,11 +227,13 @@ func (a *App) Apply(acts []Action) {
 	for _, act := range acts {
 		switch act := act.(type) {
 		case GoTo:
-			a.screen = act.Screen
-			a.help = false
+			a.goTo(act.Screen)
 		case ToggleHelp:
 			a.help = !a.help
 		case CloseHelp:
+			if !a.help && a.screen == ScreenTally {
+				a.tally.escape()
+			}
 			a.help = false
 		case SetMode:
 			a.th = a.th.With(act.Mode, a.th.Scale)
@@ -209,6 +243,8 @@ func (a *App) Apply(acts []Action) {
 			a.cfg.Scale = act.Scale
 		case SetMassUnit:
 			a.cfg.Unit = act.Unit
+		default:
+			a.applyData(act)
 		}
 	}
 }

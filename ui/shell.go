@@ -11,6 +11,7 @@ import (
 	"gioui.org/op/clip"
 	"gioui.org/widget/material"
 
+	"baleassay/data/desk"
 	"baleassay/ui/kit"
 	"baleassay/ui/theme"
 )
@@ -38,9 +39,9 @@ func (a *App) layoutBar(gtx layout.Context) (layout.Dimensions, []Action) {
 		acts = append(acts, SetScale{Scale: next})
 	}
 	if a.unitBtn.Clicked(gtx) {
-		u := Pound
-		if a.cfg.Unit == Pound {
-			u = Kilogram
+		u := desk.UnitLb
+		if a.cfg.Unit == desk.UnitLb {
+			u = desk.UnitKg
 		}
 		acts = append(acts, SetMassUnit{Unit: u})
 	}
@@ -105,10 +106,10 @@ func (a *App) layoutFooter(gtx layout.Context) layout.Dimensions {
 
 // storeNote says which records the app shows.
 func (a *App) storeNote() string {
-	if a.cfg.StoreDir == "" {
+	if a.cfg.Desk == nil {
 		return ""
 	}
-	return "Records: " + a.cfg.StoreDir
+	return "Records: " + a.cfg.Desk.Dir()
 }
 
 // layoutHelp draws the list of keys over the screen.
@@ -183,4 +184,9 @@ func whereSuffix(w string) string {
 }
 
 // screenShortcuts are the keys of the screen shown.
-func (a *App) screenShortcuts() []Shortcut { return nil }
+func (a *App) screenShortcuts() []Shortcut {
+	if a.screen == ScreenTally {
+		return tallyShortcuts()
+	}
+	return nil
+}

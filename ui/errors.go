@@ -1,5 +1,0 @@
-package ui
-
-import "errors"
-
-var errEmpty = errors.New("ui: empty field")
