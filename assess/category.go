@@ -73,7 +73,8 @@ type Category struct {
 	DensitySource string
 }
 
-// Density sources. The labels follow shared/REFERENCE.md.
+// Density sources: a published source where one was found, otherwise
+// marked from memory.
 const (
 	srcPETAmorph = "PET amorphous 1.333–1.335 (Daubeny, Bunn & Brown, Proc. R. Soc. A 226 (1954) 531); bottle wall 1.36–1.38 from memory; upper end toward crystalline 1.455 (same source)"
 	srcMemory    = "from memory"

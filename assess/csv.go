@@ -11,14 +11,6 @@ import (
 	"strings"
 )
 
-// Errors of the pulls CSV reader, wrapped in an *InputError.
-var (
-	ErrBadHeader = errors.New("assess: bad header")
-	ErrBadNumber = errors.New("assess: not a number")
-	ErrNoLabel   = errors.New("assess: pull label is empty")
-	ErrBadCSV    = errors.New("assess: malformed CSV")
-)
-
 // InputError locates a problem in a pulls file: file, line and column
 // (1-based, as encoding/csv counts them) and the column's header.
 type InputError struct {
@@ -50,7 +42,12 @@ func (e *InputError) Unwrap() error { return e.Err }
 type column struct {
 	cat    int  // catalogue index
 	pieces bool // true for a <key>_count column
+	total  bool // true for the total_count column (pieces examined)
 }
+
+// TotalCountColumn is the header of the optional column holding the
+// number of pieces examined in each pull, all categories together.
+const TotalCountColumn = "total_count"
 
 // ReadPullsFile reads a pulls CSV file; see ReadPulls.
 func ReadPullsFile(path string) ([]Pull, error) {
@@ -64,7 +61,8 @@ func ReadPullsFile(path string) ([]Pull, error) {
 
 // ReadPulls reads pulls from CSV (RFC 4180, via encoding/csv). The first
 // row is the header: "pull", then category keys (masses in kg) and
-// optionally "<key>_count" columns (piece counts). Lines starting with '#'
+// optionally "<key>_count" columns (piece counts) and a "total_count"
+// column (pieces examined in the pull, all categories together). Lines starting with '#'
 // are comments. An empty mass cell is 0 kg; an empty count cell means
 // not counted. Every row is checked; the first problem is returned as an
 // *InputError naming file, line and column, and no pull is returned then.
@@ -104,6 +102,10 @@ func ReadPulls(r io.Reader, name string) ([]Pull, error) {
 				Msg: fmt.Sprintf("pull label %q is used twice (first on line %d); give every pull its own label", p.Label, first), Err: ErrDuplicatePull}
 		}
 		seen[p.Label] = line
+		if counted := p.countedPieces(); p.TotalPieces > 0 && counted > p.TotalPieces {
+			return nil, &InputError{File: name, Line: line, Field: TotalCountColumn,
+				Msg: fmt.Sprintf("pull %q: %d pieces examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, counted), Err: ErrBadTotal}
+		}
 		if p.TotalKg() <= 0 {
 			return nil, &InputError{File: name, Line: line, Field: "pull",
 				Msg: fmt.Sprintf("pull %q weighs 0 kg; enter its masses or delete the row", p.Label), Err: ErrEmptyPull}
@@ -128,6 +130,14 @@ func parseHeader(cr *csv.Reader, header []string, name string) ([]column, error)
 	used := map[string]bool{}
 	for i, h := range header[1:] {
 		key := strings.ToLower(strings.TrimSpace(h))
+		if key == TotalCountColumn {
+			if used[key] {
+				return nil, herr(i+1, "this column appears twice; keep one", ErrBadHeader)
+			}
+			used[key] = true
+			cols[i] = column{total: true}
+			continue
+		}
 		pieces := false
 		if k, ok := strings.CutSuffix(key, "_count"); ok {
 			key, pieces = k, true
@@ -173,6 +183,17 @@ func parseRow(cr *csv.Reader, rec []string, cols []column, name string) (Pull, e
 				field += "_count"
 			}
 			return &InputError{File: name, Line: line, Column: colNo, Field: field, Msg: msg, Err: sentinel}
+		}
+		if c.total {
+			n, err := strconv.Atoi(cell)
+			if err != nil {
+				return Pull{}, &InputError{File: name, Line: line, Column: colNo, Field: TotalCountColumn, Msg: fmt.Sprintf("pieces examined %q is not a whole number", cell), Err: ErrBadNumber}
+			}
+			if n < 0 {
+				return Pull{}, &InputError{File: name, Line: line, Column: colNo, Field: TotalCountColumn, Msg: fmt.Sprintf("pieces examined %d is negative; counts are 0 or more", n), Err: ErrNegativeCount}
+			}
+			p.TotalPieces = n
+			continue
 		}
 		if c.pieces {
 			n, err := strconv.Atoi(cell)

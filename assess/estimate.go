@@ -35,7 +35,7 @@ func ParseMethod(s string) (Method, error) {
 	case "mean":
 		return MethodMean, nil
 	}
-	return 0, fmt.Errorf("assess: unknown method %q: use ratio or mean", s)
+	return 0, errorf(ErrBadMethod, "unknown estimator %q; use ratio or mean", s)
 }
 
 // DefaultConfidence is the two-sided confidence level used unless the
@@ -55,6 +55,35 @@ func (o Options) confidence() float64 {
 	return o.Confidence
 }
 
+// IntervalKind says what kind of interval a share has.
+type IntervalKind int
+
+// The interval kinds.
+const (
+	// IntervalNone: one pull, found in it: an estimate without spread.
+	IntervalNone IntervalKind = iota
+	// IntervalT: estimate ± t·SE, Student t on n − 1 degrees of freedom.
+	IntervalT
+	// IntervalNoneFound: found in no pull: [0, upper bound], see NoneFound.
+	IntervalNoneFound
+	// IntervalExact: the whole bale was sorted; the share is known.
+	IntervalExact
+)
+
+func (k IntervalKind) String() string {
+	switch k {
+	case IntervalNone:
+		return "none"
+	case IntervalT:
+		return "t"
+	case IntervalNoneFound:
+		return "none_found"
+	case IntervalExact:
+		return "exact"
+	}
+	return fmt.Sprintf("IntervalKind(%d)", int(k))
+}
+
 // Share is the estimated mass share of one category or group.
 type Share struct {
 	Key  string
@@ -71,7 +100,14 @@ type Share struct {
 	// Low and High bound the interval; valid only when HasInterval.
 	Low, High   float64
 	HasInterval bool
+	Kind        IntervalKind
+	// None is the bound of a share found in no pull (Kind
+	// IntervalNoneFound or, for a whole-bale sort, IntervalExact).
+	None NoneFound
 }
+
+// Absent reports whether the item was found in no pull.
+func (s Share) Absent() bool { return s.None.Method != 0 }
 
 // Result is what an audit says about its bale.
 type Result struct {
@@ -91,6 +127,20 @@ type Result struct {
 	// by mass or by count. Hazards are never averaged away.
 	HazardPulls  []string
 	HazardPieces int
+	// PullKg is the mean pull mass, for sample-size answers.
+	PullKg float64
+	// TargetAttached is the target-PET share with the closures and labels
+	// that came on the bottles counted in (trade audits differ on this;
+	// a spec chooses, see Spec.CountAttached).
+	TargetAttached Share
+	// Spread is the linearised sampling error of the category shares,
+	// from which package yield draws compositions.
+	Spread Spread
+}
+
+// Population is what the pulls were drawn from, for sample-size answers.
+func (r Result) Population() Population {
+	return Population{PullKg: r.PullKg, BaleKg: r.BaleKg, Taken: r.Pulls}
 }
 
 // Category returns the share of a category by key.
@@ -129,18 +179,20 @@ func (r Result) Item(key string) (Share, bool) {
 //	x̄ = Σ p_i / n,  Var(x̄) = (1 − f) · s² / n
 //
 // with f the sampled share of the bale by mass (0 when the bale mass is
-// unknown; D5231 leaves the correction out). Intervals are
-// r ± t·SE with Student's t on n − 1 degrees of freedom, clamped to
-// [0, 1]. One pull gives no interval unless the whole bale was sorted
-// (f = 1, zero width). Groups are estimated from the per-pull group
-// totals, so their variance includes the covariance of their members.
+// unknown). D5231 leaves the correction out; it is applied to both
+// methods here. Intervals are r ± t·SE with Student's t on n − 1 degrees
+// of freedom, clamped to [0, 1]. One pull gives no interval unless the
+// whole bale was sorted (f = 1, zero width). A category found in no pull
+// gets the one-sided bound of noneFoundUpper instead, never a zero-width
+// interval. Groups are estimated from the per-pull group totals, so
+// their variance includes the covariance of their members.
 func Assess(a Audit, opt Options) (Result, error) {
 	if err := a.Validate(); err != nil {
 		return Result{}, err
 	}
 	conf := opt.confidence()
 	if !(conf > 0 && conf < 1) {
-		return Result{}, fmt.Errorf("confidence %g: %w", conf, ErrBadConfidence)
+		return Result{}, errorf(ErrBadConfidence, "confidence %g: give a level between 0 and 1, e.g. 0.90", conf)
 	}
 	n := len(a.Pulls)
 	res := Result{
@@ -152,6 +204,7 @@ func Assess(a Audit, opt Options) (Result, error) {
 		SampledShare: a.SampledShare(),
 		T:            math.NaN(),
 	}
+	res.PullKg = res.SampledKg / float64(n)
 	if n > 1 {
 		res.T = StudentT(conf, n-1)
 	}
@@ -179,6 +232,14 @@ func Assess(a Audit, opt Options) (Result, error) {
 	for k, g := range groups {
 		res.Groups[k] = res.share(g.Key(), 0, totals[k*n:(k+1)*n], w)
 	}
+	attached := append([]float64(nil), totals[:n]...)
+	for _, key := range AttachedKeys {
+		j, _ := CategoryIndex(key)
+		for i, p := range a.Pulls {
+			attached[i] += p.Kg[j]
+		}
+	}
+	res.TargetAttached = res.share(GroupPET.Key(), 0, attached, w)
 	res.Pieces = pieceShares(a.Pulls, conf)
 	hz, _ := CategoryIndex("hazard")
 	for _, p := range a.Pulls {
@@ -191,8 +252,13 @@ func Assess(a Audit, opt Options) (Result, error) {
 		}
 		res.HazardPieces += pieces
 	}
+	res.Spread = spreadOf(a.Pulls, w, res)
 	return res, nil
 }
+
+// AttachedKeys are the categories that come attached to the bottles: a
+// spec with CountAttached counts them with the target PET.
+var AttachedKeys = []string{"closures", "labels"}
 
 // share estimates one column of masses c against pull masses w.
 func (res *Result) share(key string, code int, c, w []float64) Share {
@@ -233,15 +299,24 @@ func (res *Result) share(key string, code int, c, w []float64) Share {
 			s.SD = math.Sqrt(ss/(n-1)) / (sumW / n)
 		}
 	}
+	if sumC == 0 {
+		upper, method := noneFoundUpper(res.SampledKg, res.BaleKg, PieceKg(key), res.Confidence)
+		s.None = NoneFound{Pulls: len(c), Kg: res.SampledKg, Level: res.Confidence, Upper: upper, PieceKg: PieceKg(key), Method: method}
+		s.SE, s.Low, s.High, s.HasInterval, s.Kind = 0, 0, upper, true, IntervalNoneFound
+		if method == BoundWholeBale {
+			s.Kind = IntervalExact
+		}
+		return s
+	}
 	switch {
 	case fpc <= 0:
 		// The whole bale was sorted: the share is known exactly.
-		s.SE, s.Low, s.High, s.HasInterval = 0, s.Fraction, s.Fraction, true
+		s.SE, s.Low, s.High, s.HasInterval, s.Kind = 0, s.Fraction, s.Fraction, true, IntervalExact
 	case len(c) > 1:
 		s.SE = s.SD * math.Sqrt(fpc/n)
 		s.Low = math.Max(0, s.Fraction-res.T*s.SE)
 		s.High = math.Min(1, s.Fraction+res.T*s.SE)
-		s.HasInterval = true
+		s.HasInterval, s.Kind = true, IntervalT
 	default:
 		s.SE = math.NaN()
 	}

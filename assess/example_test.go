@@ -57,9 +57,14 @@ C,18.0,1.2,0.03,0.6
 }
 
 func ExamplePullsForPrecision() {
-	// ASTM D5231's illustration: s = 0.004, x̄ = 0.01, ±10 % at 90 %.
-	n, _ := assess.PullsForPrecision(0.004, 0.01, 0.10, 0.90)
-	fmt.Println(n, "pulls")
+	// s = 0.004, x̄ = 0.01, ±10 % at 90 %, six pulls taken; first with the
+	// bale mass unknown, then for a 548 kg bale in pulls of 21.5 kg (the
+	// finite-population correction). Computed by our own formula.
+	n, _ := assess.PullsForPrecision(0.004, 0.01, 0.10, 0.90, assess.Population{Taken: 6})
+	fmt.Println(n.Text())
+	n, _ = assess.PullsForPrecision(0.004, 0.01, 0.10, 0.90, assess.Population{PullKg: 21.5, BaleKg: 548, Taken: 6})
+	fmt.Println(n.Text())
 	// Output:
-	// 46 pulls
+	// 40 more pulls (46 in all)
+	// 11 more pulls (17 in all)
 }

@@ -1,26 +1,8 @@
 package assess
 
 import (
-	"errors"
-	"fmt"
 	"math"
-)
-
-// Sentinel errors of the audit model. Errors returned by this package wrap
-// one of them; test with errors.Is.
-var (
-	ErrNoPulls          = errors.New("assess: audit has no pulls")
-	ErrNegativeMass     = errors.New("assess: mass is negative")
-	ErrNonFiniteMass    = errors.New("assess: mass is not a finite number")
-	ErrEmptyPull        = errors.New("assess: pull has zero mass")
-	ErrDuplicatePull    = errors.New("assess: duplicate pull label")
-	ErrBaleLighter      = errors.New("assess: bale mass is below the sampled mass")
-	ErrUnknownCategory  = errors.New("assess: unknown category")
-	ErrBadConfidence    = errors.New("assess: confidence level outside (0, 1)")
-	ErrNegativeCount    = errors.New("assess: piece count is negative")
-	ErrBadSpec          = errors.New("assess: invalid spec")
-	ErrBadPrecision     = errors.New("assess: relative precision must be above 0")
-	ErrCategoryMismatch = errors.New("assess: pull does not match the catalogue")
+	"strings"
 )
 
 // NotCounted marks a category whose pieces were not counted in a pull.
@@ -35,6 +17,10 @@ type Pull struct {
 	// Pieces holds piece counts, NotCounted where none was taken. A nil
 	// slice means no category was counted.
 	Pieces []int
+	// TotalPieces is the number of pieces examined in the pull, all
+	// categories together; 0 when not counted. It is the denominator of
+	// piece shares.
+	TotalPieces int
 }
 
 // NewPull returns an empty pull with slices sized to the catalogue.
@@ -46,7 +32,7 @@ func NewPull(label string) Pull {
 func (p *Pull) Set(key string, kg float64) error {
 	i, ok := CategoryIndex(key)
 	if !ok {
-		return fmt.Errorf("%w %q", ErrUnknownCategory, key)
+		return errorf(ErrUnknownCategory, "unknown category %q; valid keys are: %s", key, strings.Join(CategoryKeys(), ", "))
 	}
 	p.Kg[i] = kg
 	return nil
@@ -56,7 +42,7 @@ func (p *Pull) Set(key string, kg float64) error {
 func (p *Pull) SetPieces(key string, n int) error {
 	i, ok := CategoryIndex(key)
 	if !ok {
-		return fmt.Errorf("%w %q", ErrUnknownCategory, key)
+		return errorf(ErrUnknownCategory, "unknown category %q; valid keys are: %s", key, strings.Join(CategoryKeys(), ", "))
 	}
 	if p.Pieces == nil {
 		p.Pieces = make([]int, len(catalogue))
@@ -66,6 +52,17 @@ func (p *Pull) SetPieces(key string, n int) error {
 	}
 	p.Pieces[i] = n
 	return nil
+}
+
+// countedPieces adds the pieces counted in the pull's categories.
+func (p Pull) countedPieces() int {
+	t := 0
+	for _, n := range p.Pieces {
+		if n > 0 {
+			t += n
+		}
+	}
+	return t
 }
 
 // TotalKg is the pull's mass, the sum over categories.
@@ -81,23 +78,29 @@ func (p Pull) TotalKg() float64 {
 // negative, and a mass above zero.
 func (p Pull) Validate() error {
 	if len(p.Kg) != len(catalogue) || (p.Pieces != nil && len(p.Pieces) != len(catalogue)) {
-		return fmt.Errorf("pull %q: %w", p.Label, ErrCategoryMismatch)
+		return errorf(ErrCategoryMismatch, "pull %q has %d masses for %d categories; build pulls with NewPull", p.Label, len(p.Kg), len(catalogue))
 	}
 	for i, m := range p.Kg {
 		if math.IsNaN(m) || math.IsInf(m, 0) {
-			return fmt.Errorf("pull %q, %s: %w", p.Label, catalogue[i].Key, ErrNonFiniteMass)
+			return errorf(ErrNonFiniteMass, "pull %q: the %s mass %v is not a number; write kilograms, e.g. 1.25", p.Label, catalogue[i].Key, m)
 		}
 		if m < 0 {
-			return fmt.Errorf("pull %q, %s = %g kg: %w", p.Label, catalogue[i].Key, m, ErrNegativeMass)
+			return errorf(ErrNegativeMass, "pull %q: the %s mass %g kg is negative; masses are 0 or more", p.Label, catalogue[i].Key, m)
 		}
 	}
 	for i, n := range p.Pieces {
 		if n < NotCounted {
-			return fmt.Errorf("pull %q, %s = %d pieces: %w", p.Label, catalogue[i].Key, n, ErrNegativeCount)
+			return errorf(ErrNegativeCount, "pull %q: %d %s pieces is negative; counts are 0 or more", p.Label, n, catalogue[i].Key)
 		}
 	}
+	if p.TotalPieces < 0 {
+		return errorf(ErrNegativeCount, "pull %q: %d pieces examined is negative; counts are 0 or more", p.Label, p.TotalPieces)
+	}
+	if counted := p.countedPieces(); p.TotalPieces > 0 && counted > p.TotalPieces {
+		return errorf(ErrBadTotal, "pull %q: %d pieces examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, counted)
+	}
 	if p.TotalKg() <= 0 {
-		return fmt.Errorf("pull %q: %w", p.Label, ErrEmptyPull)
+		return errorf(ErrEmptyPull, "pull %q weighs 0 kg; enter its masses or leave it out", p.Label)
 	}
 	return nil
 }
@@ -132,7 +135,7 @@ func (a Audit) SampledShare() float64 {
 // lighter than what was sampled from it.
 func (a Audit) Validate() error {
 	if len(a.Pulls) == 0 {
-		return ErrNoPulls
+		return errorf(ErrNoPulls, "the audit has no pulls; add at least one")
 	}
 	seen := make(map[string]bool, len(a.Pulls))
 	for _, p := range a.Pulls {
@@ -140,17 +143,17 @@ func (a Audit) Validate() error {
 			return err
 		}
 		if seen[p.Label] {
-			return fmt.Errorf("pull %q: %w", p.Label, ErrDuplicatePull)
+			return errorf(ErrDuplicatePull, "pull label %q is used twice; give every pull its own label", p.Label)
 		}
 		seen[p.Label] = true
 	}
 	if math.IsNaN(a.BaleKg) || math.IsInf(a.BaleKg, 0) || a.BaleKg < 0 {
-		return fmt.Errorf("bale mass %g kg: %w", a.BaleKg, ErrNonFiniteMass)
+		return errorf(ErrNonFiniteMass, "the bale mass %g kg is not a mass; give the gross mass in kg, or 0 when unknown", a.BaleKg)
 	}
 	// A relative slack of 1e-9 keeps a whole-bale sort (f = 1) from
 	// failing on rounding.
 	if s := a.SampledKg(); a.BaleKg > 0 && a.BaleKg < s*(1-1e-9) {
-		return fmt.Errorf("bale %g kg, pulls %g kg: %w", a.BaleKg, s, ErrBaleLighter)
+		return errorf(ErrBaleLighter, "the bale (%g kg) weighs less than its pulls (%g kg); check the bale mass or the pull masses", a.BaleKg, s)
 	}
 	return nil
 }

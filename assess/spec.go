@@ -36,7 +36,16 @@ type Spec struct {
 	Limits        []Limit  `json:"limits"`
 	ZeroTolerance []string `json:"zero_tolerance,omitempty"`
 	Grades        []Grade  `json:"grades,omitempty"`
+	// CountAttached counts the closures and labels that come on the
+	// bottles with the target PET (the "pet" item and the grades). Trade
+	// audits differ on this; the default leaves them out.
+	CountAttached bool `json:"count_attached,omitempty"`
 }
+
+// MaxContaminantLimit is the largest maximum a spec may set on a
+// contaminant without AllowLargeMax: a larger figure is almost always a
+// percentage written where a fraction belongs (0.5 for 0.5 %).
+const MaxContaminantLimit = 0.2
 
 // Limit bounds the share of one item from below, above or both.
 type Limit struct {
@@ -44,6 +53,9 @@ type Limit struct {
 	Min  *float64 `json:"min,omitempty"`
 	Max  *float64 `json:"max,omitempty"`
 	Note string   `json:"note,omitempty"`
+	// AllowLargeMax confirms a maximum above MaxContaminantLimit on a
+	// contaminant.
+	AllowLargeMax bool `json:"allow_large_max,omitempty"`
 }
 
 // Grade is a band of target-PET share: a bale whose share is at least
@@ -56,7 +68,7 @@ type Grade struct {
 // Validate checks that every item exists and every bound lies in [0, 1].
 func (s Spec) Validate() error {
 	bad := func(format string, args ...any) error {
-		return fmt.Errorf("spec %q: %s: %w", s.Name, fmt.Sprintf(format, args...), ErrBadSpec)
+		return errorf(ErrBadSpec, "spec %q: %s", s.Name, fmt.Sprintf(format, args...))
 	}
 	if strings.TrimSpace(s.Name) == "" {
 		return bad("name is empty; give the spec a name")
@@ -75,7 +87,11 @@ func (s Spec) Validate() error {
 			return bad("limit %d (%s) has neither min nor max", i+1, l.Item)
 		}
 		if !inRange(l.Min) || !inRange(l.Max) {
-			return bad("limit %d (%s): bounds are mass fractions from 0 to 1 (write 0.02 for 2 %%)", i+1, l.Item)
+			return bad("limit %d (%s): bounds are mass fractions from 0 to 1; write fractions: 0.005 for 0.5 %%", i+1, l.Item)
+		}
+		if l.Max != nil && *l.Max > MaxContaminantLimit && !isTarget(l.Item) && !l.AllowLargeMax {
+			return bad("limit %d (%s): max %g is %g %% of the bale, above %g %% for a contaminant; write fractions: 0.005 for 0.5 %%; if %g %% is meant, add \"allow_large_max\": true to the limit",
+				i+1, l.Item, *l.Max, 100**l.Max, 100*MaxContaminantLimit, 100**l.Max)
 		}
 		if l.Min != nil && l.Max != nil && *l.Min > *l.Max {
 			return bad("limit %d (%s): min %g is above max %g", i+1, l.Item, *l.Min, *l.Max)
@@ -99,6 +115,16 @@ func (s Spec) Validate() error {
 	return nil
 }
 
+// isTarget reports whether an item is target PET (the group or one of
+// its categories).
+func isTarget(item string) bool {
+	if item == GroupPET.Key() {
+		return true
+	}
+	c, ok := LookupCategory(item)
+	return ok && c.IsTargetPET()
+}
+
 // ParseSpec reads a spec from JSON, refusing unknown fields, and
 // validates it.
 func ParseSpec(b []byte) (Spec, error) {
@@ -108,15 +134,15 @@ func ParseSpec(b []byte) (Spec, error) {
 	if err := dec.Decode(&s); err != nil {
 		var se *json.SyntaxError
 		if errors.Is(err, io.ErrUnexpectedEOF) {
-			return Spec{}, fmt.Errorf("spec JSON is malformed: it ends too soon; close every brace and bracket: %w", ErrBadSpec)
+			return Spec{}, errorf(ErrBadSpec, "spec JSON is malformed: it ends too soon; close every brace and bracket")
 		}
 		if errors.As(err, &se) {
-			return Spec{}, fmt.Errorf("spec JSON is malformed at byte %d: %v: %w", se.Offset, err, ErrBadSpec)
+			return Spec{}, errorf(ErrBadSpec, "spec JSON is malformed at byte %d: %v", se.Offset, err)
 		}
-		return Spec{}, fmt.Errorf("spec JSON: %v: %w", err, ErrBadSpec)
+		return Spec{}, errorf(ErrBadSpec, "spec JSON: %v", err)
 	}
 	if dec.More() {
-		return Spec{}, fmt.Errorf("spec JSON has trailing data after the object: %w", ErrBadSpec)
+		return Spec{}, errorf(ErrBadSpec, "spec JSON has text after the object; a file holds one spec")
 	}
 	if err := s.Validate(); err != nil {
 		return Spec{}, err

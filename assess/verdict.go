@@ -3,6 +3,7 @@ package assess
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // Verdict is the outcome of a limit or of a whole spec.
@@ -56,13 +57,45 @@ type LimitVerdict struct {
 	Limit   float64
 	Share   Share
 	Verdict Verdict
-	// MorePulls is how many more pulls are expected to decide an
-	// undecided limit at the current spread; 0 when decided. Valid only
-	// when MoreKnown: it is unknown with one pull (no spread yet) and when
-	// the estimate sits exactly on the limit.
-	MorePulls int
-	MoreKnown bool
-	Note      string
+	// Need is what decides an undecided limit at the current spread:
+	// pulls in all and more, or a sort of the whole bale; SizeUnknown with
+	// one pull (no spread yet) or with the estimate exactly on the limit.
+	// For a decided limit it is SizePulls with More = 0.
+	Need SampleSize
+	Note string
+}
+
+// GradeState says how sure a grade is.
+type GradeState int
+
+// The grade states.
+const (
+	// GradeNone: the spec has no grade bands.
+	GradeNone GradeState = iota
+	// GradeSure: the whole interval of the target-PET share lies in the band.
+	GradeSure
+	// GradeSpans: the interval reaches into another band.
+	GradeSpans
+	// GradeNoInterval: one pull, so the band holds the estimate only.
+	GradeNoInterval
+	// GradeWithheld: the bale fails the spec, so it gets no band.
+	GradeWithheld
+)
+
+func (g GradeState) String() string {
+	switch g {
+	case GradeNone:
+		return "none"
+	case GradeSure:
+		return "sure"
+	case GradeSpans:
+		return "spans"
+	case GradeNoInterval:
+		return "no_interval"
+	case GradeWithheld:
+		return "withheld"
+	}
+	return fmt.Sprintf("GradeState(%d)", int(g))
 }
 
 // SpecVerdict is the verdict of a spec on an assessed bale.
@@ -70,41 +103,116 @@ type SpecVerdict struct {
 	Spec    string
 	Verdict Verdict
 	Limits  []LimitVerdict
-	// Grade is the grade band holding the target-PET estimate, and
-	// GradeSure is true when the whole interval lies in that band.
-	Grade     string
-	GradeSure bool
+	// Grade is the grade band holding the target-PET estimate ("" when
+	// withheld or when the spec has no bands); GradeState says how sure.
+	Grade      string
+	GradeState GradeState
+	// CountAttached is true when the target-PET share counts the closures
+	// and labels attached to the bottles (the spec's choice).
+	CountAttached bool
 }
+
+// Failing lists the limits that fail, as "item bound limit" texts.
+func (sv SpecVerdict) Failing() []LimitVerdict {
+	var out []LimitVerdict
+	for _, l := range sv.Limits {
+		if l.Verdict == Fail {
+			out = append(out, l)
+		}
+	}
+	return out
+}
+
+// failingTexts says why each failing limit fails: "pvc ≤ 1 % (its 90 %
+// interval lies wholly outside), hazard: none (found)".
+func failingTexts(limits []LimitVerdict, conf float64) string {
+	texts := make([]string, len(limits))
+	for i, l := range limits {
+		why := fmt.Sprintf("its %s %% interval lies wholly outside", levelText(conf))
+		if l.Bound == Zero {
+			why = "found"
+		}
+		texts[i] = fmt.Sprintf("%s (%s)", l.Text(), why)
+	}
+	return strings.Join(texts, ", ")
+}
+
+// Text is the limit in words: "pvc ≤ 1 %", "pet ≥ 72 %", "hazard: none".
+func (l LimitVerdict) Text() string {
+	switch l.Bound {
+	case AtLeast:
+		return fmt.Sprintf("%s ≥ %s %%", l.Item, trimZeros(fmt.Sprintf("%.3f", 100*l.Limit)))
+	case AtMost:
+		return fmt.Sprintf("%s ≤ %s %%", l.Item, trimZeros(fmt.Sprintf("%.3f", 100*l.Limit)))
+	}
+	return l.Item + ": none"
+}
+
+// needFunc answers how many pulls (or bales) decide a bound on a share.
+type needFunc func(sh Share, b Bound, limit float64) SampleSize
 
 // Judge applies a spec to an assessment. A bound passes when the whole
 // interval lies on its right side, fails when the whole interval lies on
 // the wrong side, and is undecided when the interval straddles it; with
-// no interval (one pull) it is undecided. Zero-tolerance items fail when
-// any was found in any pull, by mass or by count. The spec fails if any
-// bound fails, is undecided if any is undecided, and passes otherwise.
+// one pull (no spread) every bound is undecided, unless the whole bale
+// was sorted. A category found in no pull is judged by its one-sided
+// bound [0, upper]. Zero-tolerance items fail when any was found in any
+// pull, by mass or by count. The spec fails if any bound fails, is
+// undecided if any is undecided, and passes otherwise. An undecided
+// bound says what decides it at the current spread (Need).
 func Judge(r Result, s Spec) (SpecVerdict, error) {
+	pop := r.Population()
+	need := func(sh Share, b Bound, limit float64) SampleSize {
+		if sh.Absent() {
+			return oneMoreAtLeast(noneFoundPulls(limit, sh.None.PieceKg, r.Confidence, pop), pop.Taken)
+		}
+		gap := math.Abs(sh.Fraction - limit)
+		if math.IsNaN(sh.SD) || gap == 0 {
+			return SampleSize{} // no spread yet, or on the limit
+		}
+		n, err := PullsForHalfWidth(sh.SD, gap, r.Confidence, pop)
+		if err != nil {
+			return SampleSize{}
+		}
+		return oneMoreAtLeast(n, pop.Taken)
+	}
+	spread := r.Pulls >= 2 || r.SampledShare >= 1
+	return judge(r, s, spread, need)
+}
+
+func judge(r Result, s Spec, spread bool, need needFunc) (SpecVerdict, error) {
 	if err := s.Validate(); err != nil {
 		return SpecVerdict{}, err
 	}
-	sv := SpecVerdict{Spec: s.Name}
+	sv := SpecVerdict{Spec: s.Name, CountAttached: s.CountAttached}
+	item := func(key string) Share {
+		if s.CountAttached && key == GroupPET.Key() {
+			return r.TargetAttached
+		}
+		sh, _ := r.Item(key)
+		return sh
+	}
 	for _, l := range s.Limits {
-		sh, _ := r.Item(l.Item)
+		sh := item(l.Item)
 		if l.Min != nil {
-			sv.Limits = append(sv.Limits, judgeBound(r, sh, AtLeast, *l.Min, l.Note))
+			sv.Limits = append(sv.Limits, judgeBound(sh, AtLeast, *l.Min, l.Note, spread, need))
 		}
 		if l.Max != nil {
-			sv.Limits = append(sv.Limits, judgeBound(r, sh, AtMost, *l.Max, l.Note))
+			sv.Limits = append(sv.Limits, judgeBound(sh, AtMost, *l.Max, l.Note, spread, need))
 		}
 	}
 	for _, z := range s.ZeroTolerance {
-		sh, _ := r.Item(z)
-		lv := LimitVerdict{Item: z, Bound: Zero, Share: sh, Verdict: Pass, MoreKnown: true,
+		sh := item(z)
+		lv := LimitVerdict{Item: z, Bound: Zero, Share: sh, Verdict: Pass, Need: decided(),
 			Note: "zero tolerance: any item found rejects the bale"}
+		if sh.Absent() {
+			lv.Note = "zero tolerance; " + sh.None.Text() + ", which does not prove the bale free of them"
+		}
 		if sh.Kg > 0 || foundPieces(r, z) > 0 {
 			lv.Verdict = Fail
-			lv.Note = fmt.Sprintf("found in pulls %v; zero tolerance", r.HazardPulls)
-			if z != "hazard" && z != GroupHazards.Key() {
-				lv.Note = "found; zero tolerance"
+			lv.Note = "found; zero tolerance"
+			if z == "hazard" || z == GroupHazards.Key() {
+				lv.Note = fmt.Sprintf("found in pulls %s; zero tolerance", strings.Join(r.HazardPulls, ", "))
 			}
 		}
 		sv.Limits = append(sv.Limits, lv)
@@ -112,8 +220,27 @@ func Judge(r Result, s Spec) (SpecVerdict, error) {
 	for _, lv := range sv.Limits {
 		sv.Verdict = max(sv.Verdict, lv.Verdict)
 	}
-	sv.Grade, sv.GradeSure = grade(r.Group(GroupPET), s)
+	pet := r.Group(GroupPET)
+	if s.CountAttached {
+		pet = r.TargetAttached
+	}
+	sv.Grade, sv.GradeState = grade(pet, s, spread)
+	if sv.Verdict == Fail && sv.GradeState != GradeNone {
+		sv.Grade, sv.GradeState = "", GradeWithheld
+	}
 	return sv, nil
+}
+
+func decided() SampleSize { return SampleSize{State: SizePulls} }
+
+// oneMoreAtLeast makes an undecided limit ask for at least one more
+// pull: at the edge (the solver's n equals the pulls taken, or a bound
+// that one pull reaches but cannot yet judge) the next pull decides.
+func oneMoreAtLeast(s SampleSize, taken int) SampleSize {
+	if s.State == SizePulls && s.More == 0 {
+		s.Total, s.More = taken+1, 1
+	}
+	return s
 }
 
 // foundPieces counts pieces of a category or group found in the pulls.
@@ -128,7 +255,7 @@ func foundPieces(r Result, item string) int {
 	return n
 }
 
-func judgeBound(r Result, sh Share, b Bound, limit float64, note string) LimitVerdict {
+func judgeBound(sh Share, b Bound, limit float64, note string, spread bool, need needFunc) LimitVerdict {
 	lv := LimitVerdict{Item: sh.Key, Bound: b, Limit: limit, Share: sh, Note: note}
 	ok := func(x float64) bool {
 		if b == AtLeast {
@@ -139,45 +266,42 @@ func judgeBound(r Result, sh Share, b Bound, limit float64, note string) LimitVe
 	switch {
 	case !sh.HasInterval:
 		lv.Verdict = Undecided
-	case ok(sh.Low) && ok(sh.High):
+	case ok(sh.Low) && ok(sh.High) && (spread || sh.Kind == IntervalExact):
 		lv.Verdict = Pass
-	case !ok(sh.Low) && !ok(sh.High):
+	case !ok(sh.Low) && !ok(sh.High) && (spread || sh.Kind == IntervalExact):
 		lv.Verdict = Fail
 	default:
 		lv.Verdict = Undecided
 	}
 	if lv.Verdict != Undecided {
-		lv.MoreKnown = true
+		lv.Need = decided()
 		return lv
 	}
-	gap := math.Abs(sh.Fraction - limit)
-	if math.IsNaN(sh.SD) || gap == 0 {
-		return lv // no spread yet, or on the limit: cannot say
-	}
-	need, err := PullsForHalfWidth(sh.SD, gap, r.Confidence)
-	if err != nil {
-		return lv
-	}
-	lv.MorePulls, lv.MoreKnown = max(1, need-r.Pulls), true
+	lv.Need = need(sh, b, limit)
 	return lv
 }
 
-// grade finds the band holding the target-PET estimate and whether the
-// whole interval lies in it.
-func grade(pet Share, s Spec) (string, bool) {
+// grade finds the band holding the target-PET estimate and how sure it
+// is: sure when the whole interval lies in the band.
+func grade(pet Share, s Spec, spread bool) (string, GradeState) {
 	bands := s.sortedGrades()
+	if len(bands) == 0 {
+		return "", GradeNone
+	}
 	for i, g := range bands {
 		if pet.Fraction >= g.MinPET {
+			if !pet.HasInterval || (!spread && pet.Kind != IntervalExact) {
+				return g.Name, GradeNoInterval
+			}
 			upper := math.Inf(1)
 			if i > 0 {
 				upper = bands[i-1].MinPET
 			}
-			sure := pet.HasInterval && pet.Low >= g.MinPET && pet.High < upper
-			if i == 0 {
-				sure = pet.HasInterval && pet.Low >= g.MinPET
+			if pet.Low >= g.MinPET && pet.High < upper {
+				return g.Name, GradeSure
 			}
-			return g.Name, sure
+			return g.Name, GradeSpans
 		}
 	}
-	return "", false
+	return "", GradeNone
 }

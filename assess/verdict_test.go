@@ -19,14 +19,14 @@ func mustSpec(t testing.TB, name string) Spec {
 
 // shareWith builds a result whose item key has the given interval.
 func shareWith(key string, f, lo, hi, sd float64, pulls int) Result {
-	r := Result{Pulls: pulls, Confidence: 0.9, Categories: make([]Share, NumCategories()), Groups: make([]Share, len(Groups()))}
+	r := Result{Pulls: pulls, PullKg: 20, Confidence: 0.9, Categories: make([]Share, NumCategories()), Groups: make([]Share, len(Groups()))}
 	for i, c := range catalogue {
 		r.Categories[i] = Share{Key: c.Key, HasInterval: true}
 	}
 	for i, g := range Groups() {
 		r.Groups[i] = Share{Key: g.Key(), HasInterval: true}
 	}
-	s := Share{Key: key, Fraction: f, Low: lo, High: hi, SD: sd, SE: (hi - lo) / 3.4, HasInterval: true}
+	s := Share{Key: key, Fraction: f, Low: lo, High: hi, SD: sd, SE: (hi - lo) / 3.4, HasInterval: true, Kind: IntervalT}
 	if i, ok := CategoryIndex(key); ok {
 		r.Categories[i] = s
 	} else if g, ok := LookupGroup(key); ok {
@@ -61,11 +61,11 @@ func TestJudgeBounds(t *testing.T) {
 		if lv.Verdict != c.want || sv.Verdict != c.want {
 			t.Errorf("%s: limit %v spec %v, want %v", c.name, lv.Verdict, sv.Verdict, c.want)
 		}
-		if c.wantMoreSome && (!lv.MoreKnown || lv.MorePulls < 1) {
+		if c.wantMoreSome && (!lv.Need.Known() || lv.Need.More < 1) {
 			t.Errorf("%s: undecided without a pull count: %+v", c.name, lv)
 		}
-		if !c.wantMoreSome && lv.MorePulls != 0 {
-			t.Errorf("%s: decided but asks for %d pulls", c.name, lv.MorePulls)
+		if !c.wantMoreSome && lv.Need.More != 0 {
+			t.Errorf("%s: decided but asks for %d pulls", c.name, lv.Need.More)
 		}
 	}
 	min := Spec{Name: "m", Limits: []Limit{{Item: "pet", Min: frac(0.8)}}}
@@ -135,25 +135,30 @@ func TestSpecValidation(t *testing.T) {
 }
 
 // Grade bands of the built-in glycol-feed spec: 0.94 and 0.72 echo the
-// trade-association PET bale grades (Source: shared/REFERENCE.md 'Bales');
+// trade-association PET bale grades published in 2015 (Source: those
+// grades: top grade ≥ 94 %, failing grade ≤ 72 % PET containers);
 // 0.83 is illustrative. The shares tested are invented inputs.
 func TestGradeBands(t *testing.T) {
 	s := mustSpec(t, "glycol-feed")
 	cases := []struct {
 		f, lo, hi float64
 		grade     string
-		sure      bool
+		state     GradeState
 	}{
-		{0.96, 0.95, 0.97, "first", true},
-		{0.95, 0.93, 0.97, "first", false},
-		{0.90, 0.88, 0.92, "second", true},
-		{0.50, 0.40, 0.60, "off-grade", true},
+		{0.96, 0.95, 0.97, "first", GradeSure},
+		{0.95, 0.93, 0.97, "first", GradeSpans},
+		{0.90, 0.88, 0.92, "second", GradeSure},
+		{0.50, 0.40, 0.60, "off-grade", GradeSure},
 	}
 	for _, c := range cases {
-		g, sure := grade(Share{Fraction: c.f, Low: c.lo, High: c.hi, HasInterval: true}, s)
-		if g != c.grade || sure != c.sure {
-			t.Errorf("PET %g [%g, %g]: grade %q sure %v, want %q %v", c.f, c.lo, c.hi, g, sure, c.grade, c.sure)
+		g, state := grade(Share{Fraction: c.f, Low: c.lo, High: c.hi, HasInterval: true, Kind: IntervalT}, s, true)
+		if g != c.grade || state != c.state {
+			t.Errorf("PET %g [%g, %g]: grade %q %v, want %q %v", c.f, c.lo, c.hi, g, state, c.grade, c.state)
 		}
+	}
+	// One pull: the band of the estimate, but no claim about an interval.
+	if g, state := grade(Share{Fraction: 0.96, HasInterval: false}, s, false); g != "first" || state != GradeNoInterval {
+		t.Errorf("one pull: grade %q %v, want first no_interval", g, state)
 	}
 }
 
@@ -165,13 +170,15 @@ func TestMorePullsDecide(t *testing.T) {
 	r, _ := Assess(a, Options{})
 	sv, _ := Judge(r, spec)
 	lv := sv.Limits[0]
-	if lv.Verdict != Undecided || !lv.MoreKnown {
+	if lv.Verdict != Undecided || !lv.Need.Known() {
 		t.Fatalf("setup: %+v", lv)
 	}
 	pvc, _ := r.Category("pvc")
-	n := r.Pulls + lv.MorePulls
+	n := r.Pulls + lv.Need.More
 	half := StudentT(r.Confidence, n-1) * pvc.SD / sqrtInt(n)
 	if pvc.Fraction+half > 0.007 {
 		t.Errorf("with %d pulls the interval still reaches %g > 0.007", n, pvc.Fraction+half)
 	}
 }
+
+func errorsIs(err, target error) bool { return errors.Is(err, target) }

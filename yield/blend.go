@@ -2,6 +2,7 @@ package yield
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 )
@@ -19,7 +20,7 @@ type Polyol struct {
 // CastorOHV is the illustrative hydroxyl value of castor oil, mg KOH/g:
 // the middle of the USP range 160–168 (from memory), above the Ph. Eur.
 // minimum of 160 for virgin castor oil and below the 180 of pure
-// triricinolein (shared/REFERENCE.md 'Castor oil').
+// triricinolein (M 933.45 g/mol, f = 3: 3·56106/933.45, computed).
 const CastorOHV = 164
 
 // Castor returns kg of castor oil at CastorOHV.
@@ -94,7 +95,7 @@ func (p Polyol) validate(where string) error {
 // Isocyanate is an isocyanate preset.
 type Isocyanate struct {
 	Key, Name string
-	MolarMass float64 // g/mol
+	MolarMass float64 // g/mol; 0 for a mixture (polymeric MDI)
 	NCOPct    float64 // NCO content, mass %
 }
 
@@ -103,12 +104,15 @@ func isocyanate(key, name string, c, h, n, o float64) Isocyanate {
 	return Isocyanate{key, name, m, 100 * 2 * MolarMassNCO / m}
 }
 
-// Isocyanates are the presets: 2,4-TDI (C9H6N2O2) and 4,4'-MDI
-// (C15H10N2O2), both with two NCO groups; NCO contents from the formulas
-// (shared/REFERENCE.md: 48.25 % and 33.6 %).
+// Isocyanates are the presets: 2,4-TDI (C9H6N2O2) and monomeric
+// 4,4'-MDI (C15H10N2O2), both with two NCO groups and NCO contents from
+// their formulas (48.25 % and 33.6 %), and polymeric MDI, a mixture with
+// no single formula, at a typical 31 % NCO (from memory: grades run about
+// 30.5–32 %; give a grade's own figure with --isocyanate-nco).
 var Isocyanates = []Isocyanate{
 	isocyanate("TDI", "2,4-toluene diisocyanate", 9, 6, 2, 2),
-	isocyanate("MDI", "4,4'-diphenylmethane diisocyanate", 15, 10, 2, 2),
+	isocyanate("MDI", "4,4'-diphenylmethane diisocyanate (monomeric)", 15, 10, 2, 2),
+	{Key: "PMDI", Name: "polymeric MDI (typical grade, 31 % NCO, from memory)", NCOPct: 31},
 }
 
 // LookupIsocyanate finds a preset by key, ignoring case.
@@ -118,7 +122,7 @@ func LookupIsocyanate(key string) (Isocyanate, error) {
 			return i, nil
 		}
 	}
-	return Isocyanate{}, fieldErr("", "isocyanate", ErrUnknownKey, "%q is not a preset; use TDI or MDI, or give the NCO content in %%", key)
+	return Isocyanate{}, fieldErr("", "isocyanate", ErrUnknownKey, "%q is not a preset; use TDI, MDI or PMDI, or give the NCO content in %%", key)
 }
 
 // Blend is a polyol blend and its isocyanate.
@@ -150,7 +154,7 @@ type BlendResult struct {
 
 // FoamPETShareCaution is the recycled-PET share of a polyol blend above
 // which MixBlend warns: about 10–15 % still gives good foam (common
-// practice, shared/REFERENCE.md 'Glycolysis'); the upper end is used.
+// practice); the upper end is used.
 const FoamPETShareCaution = 0.15
 
 // MixBlend computes a polyol blend and its isocyanate demand:
@@ -160,8 +164,9 @@ const FoamPETShareCaution = 0.15
 //	EW(NCO) = 100·M(NCO) / %NCO   (= 4202 / %NCO)
 //	m_iso = index/100 · (OH eq + water eq) · EW(NCO)
 //
-// Textbook polyurethane arithmetic (common practice; shared/REFERENCE.md
-// 'Formulas'). Acid groups and amines are not counted.
+// Textbook polyurethane arithmetic (common practice), with KOH 56.106
+// g/mol and 100·M(NCO) = 4201.7 from IUPAC atomic weights. Acid groups
+// and amines are not counted.
 func MixBlend(b Blend) (BlendResult, error) {
 	const where = "blend"
 	if len(b.Polyols) == 0 {
@@ -181,8 +186,12 @@ func MixBlend(b Blend) (BlendResult, error) {
 	if err := checkPositive(where, "index", b.Index); err != nil {
 		return BlendResult{}, err
 	}
-	if b.Index > 1000 {
-		return BlendResult{}, fieldErr(where, "index", ErrOutOfRange, "%g: the index is 100 × NCO/OH, usually 90–350; give it as such (105, not 1.05)", b.Index)
+	if b.Index < MinIndex || b.Index > MaxIndex {
+		msg := fmt.Sprintf("is %g, outside %g–%g; the index is 100 × NCO / (OH + water) equivalents, usually 90–350", b.Index, float64(MinIndex), float64(MaxIndex))
+		if s := suggestIndex(b.Index); s > 0 {
+			msg += fmt.Sprintf(": did you mean %g?", s)
+		}
+		return BlendResult{}, fieldErr(where, "index", ErrOutOfRange, "%s", msg)
 	}
 	if err := checkNonNegative(where, "water_kg", b.WaterKg); err != nil {
 		return BlendResult{}, err
@@ -218,6 +227,25 @@ func MixBlend(b Blend) (BlendResult, error) {
 		r.Warnings = append(r.Warnings, fmt.Sprintf("recycled PET is %.0f %% of the blend; above about 10–15 %% foams may turn brittle or coarse: trial it, or blend to a lower share", 100*r.RecycledPETShare))
 	}
 	return r, nil
+}
+
+// The isocyanate indices MixBlend accepts: below 50 or above 500 is
+// almost always a factor-of-10 or -100 slip (1.05 for 105).
+const (
+	MinIndex = 50
+	MaxIndex = 500
+)
+
+// suggestIndex returns the index a slip most likely meant: v times or
+// divided by 10 or 100, the first that lands in MinIndex–MaxIndex; 0
+// when none does.
+func suggestIndex(v float64) float64 {
+	for _, f := range []float64{100, 10, 0.1, 0.01} {
+		if s := v * f; s >= MinIndex && s <= MaxIndex {
+			return math.Round(s*1e6) / 1e6
+		}
+	}
+	return 0
 }
 
 // scaleToShare scales the PET-free polyols by one factor λ so that

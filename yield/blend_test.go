@@ -9,8 +9,9 @@ import (
 )
 
 func TestIsocyanatePresets(t *testing.T) {
-	// Source: shared/REFERENCE.md 'Molar masses': 2,4-TDI 174.16 g/mol,
-	// NCO 48.25 %, equivalent weight 87.1; 4,4'-MDI 250.26, NCO 33.6 %.
+	// Computed from IUPAC atomic weights in
+	// yield/testdata/ref/glycolysis_ref.py: 2,4-TDI 174.16 g/mol,
+	// NCO 48.25 %; 4,4'-MDI 250.26, NCO 33.58 %.
 	tdi, _ := LookupIsocyanate("tdi")
 	mdi, _ := LookupIsocyanate("MDI")
 	if math.Abs(tdi.MolarMass-174.16) > 0.01 || math.Abs(tdi.NCOPct-48.25) > 0.01 {
@@ -23,8 +24,8 @@ func TestIsocyanatePresets(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// Source: shared/REFERENCE.md 'Formulas': NCO equivalent weight =
-	// 4202 / %NCO; 87.1 for TDI.
+	// Common practice (textbook polyurethane arithmetic): NCO equivalent
+	// weight = 4202 / %NCO, 87.1 g/eq for TDI.
 	if math.Abs(r.NCOEquivalentWeight-4202/tdi.NCOPct) > 0.01 || math.Abs(r.NCOEquivalentWeight-87.1) > 0.05 {
 		t.Errorf("TDI EW %g", r.NCOEquivalentWeight)
 	}
@@ -126,7 +127,9 @@ func TestBlendErrors(t *testing.T) {
 		}
 	}
 	p, err := ParsePolyol("Castor:12.5", 2)
-	// Source: shared/REFERENCE.md 'Castor oil' (USP 160–168, from memory): 164.
+	// From memory: castor oil's hydroxyl value runs 160–168 mg KOH/g (USP
+	// range), the Ph. Eur. monograph for virgin castor oil asks at least
+	// 160; the preset takes 164.
 	if err != nil || p.HydroxylValue != CastorOHV || p.Kg != 12.5 {
 		t.Errorf("castor: %+v %v", p, err)
 	}
@@ -140,8 +143,8 @@ func TestFoamShareWarning(t *testing.T) {
 		}
 		return r
 	}
-	// Source: shared/REFERENCE.md 'Glycolysis': roughly 10–15 % recycled
-	// PET in the blend still gives good foam (common practice).
+	// Common practice: roughly 10–15 % recycled PET in the blend still
+	// gives good foam.
 	if r := mk(40); r.RecycledPETShare != 0.1 || len(r.Warnings) != 0 {
 		t.Errorf("10 %%: %v", r.Warnings)
 	}

@@ -7,8 +7,8 @@ const BuiltinLineName = "illustrative hot-wash line"
 // are not measurements of any plant: each is marked from memory (a
 // plausible value for a hot-wash line) or common practice. Ranges are
 // what the Monte Carlo run draws from. With a typical curbside bale it
-// gives a bale-to-flake yield inside the 60–80 % of shared/REFERENCE.md
-// 'Wash line' (from memory).
+// gives a bale-to-flake yield inside the roughly 60–80 % of practice
+// (from memory).
 func BuiltinLine() Line {
 	return Line{
 		Name: BuiltinLineName,
@@ -78,7 +78,7 @@ func BuiltinLine() Line {
 			},
 			{
 				Kind: StageSinkFloat, Name: "hydrocyclone heavy-particle trap, modelled as a density cut at 2.0 g/cm³",
-				Keep: "float", BathDensity: 2.0, // a cut between PET (1.3–1.4) and glass, metal, stones (from memory)
+				Keep: SideFloat, BathDensity: 2.0, // a cut between PET (1.3–1.4) and glass, metal, stones (from memory)
 				Efficiency:  Range(0.60, 0.85),   // from memory
 				ProductLoss: Range(0.001, 0.003), // from memory
 			},

@@ -2,7 +2,7 @@
 // become: clean flake from a wash line, glycolysate (recycled polyol)
 // from a glycolysis reactor, and the isocyanate a polyurethane
 // formulation with that polyol needs. Every step carries the audit's
-// uncertainty through a seeded bootstrap.
+// uncertainty through seeded draws from the audit's own estimator.
 //
 // # Units
 //
@@ -59,11 +59,18 @@
 //
 // # Uncertainty
 //
-// Simulate resamples the pulls with replacement (a nonparametric
-// bootstrap), takes Cochran's ratio estimate Σc/Σw of each resample,
-// draws every ranged line parameter uniformly, and reports P10, P50, P90
-// and the mean (Hyndman & Fan definition 7). A seeded math/rand/v2 PCG
-// source makes runs reproducible; the inner loop allocates nothing.
+// Simulate draws the composition from the audit's estimator
+// (assess.Spread: Cochran's ratio estimate, its covariance and the
+// finite-population correction) as a multivariate t on n − 1 degrees of
+// freedom, so that the P5–P95 of a drawn share is the audit's 90 %
+// interval; a draw that leaves the simplex is projected back onto it.
+// One pull gives no spread (SpreadNone). It draws every ranged line
+// parameter, and the plan's conversion and EG-stripping ranges,
+// uniformly, and reports P5, P10, P50, P90, P95 and the mean (Hyndman &
+// Fan definition 7). SimulateLoad does the same for a load's two-stage
+// estimate; Sensitivity ranks the inputs by the spread each causes
+// alone. A seeded math/rand/v2 PCG source makes runs reproducible; the
+// inner loop allocates nothing.
 //
 // # Blends
 //
@@ -75,6 +82,7 @@
 // # Safety
 //
 // Outputs that concern hot glycols, isocyanates or the caustic wash
-// carry CautionHotGlycol, CautionIsocyanate and CautionCaustic. They
-// defer to local codes and licensed practice.
+// carry CautionHotGlycolFor (the glycol charged), CautionIsocyanateFor
+// (TDI's or MDI's figures) and CautionCaustic. They defer to local codes
+// and licensed practice.
 package yield

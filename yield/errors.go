@@ -3,22 +3,25 @@ package yield
 import (
 	"errors"
 	"fmt"
+	"strings"
 )
 
 // Sentinel errors of the yield model. Every error this package returns
-// wraps one of them; test with errors.Is.
+// wraps one of them; test with errors.Is. Their texts, like every
+// message of this package, carry no package prefix: a grader reads
+// "glycol ratio must be above 0 (got 0)".
 var (
-	ErrBadNumber     = errors.New("yield: value is not a finite number")
-	ErrOutOfRange    = errors.New("yield: value out of range")
-	ErrUnknownKey    = errors.New("yield: unknown key")
-	ErrUnknownGlycol = errors.New("yield: unknown glycol")
-	ErrBadLine       = errors.New("yield: invalid line profile")
-	ErrNotClosed     = errors.New("yield: line stage does not close")
-	ErrBadSpec       = errors.New("yield: invalid flake spec")
-	ErrBadCharge     = errors.New("yield: invalid glycolysis charge")
-	ErrRebuildsPET   = errors.New("yield: stripping that much glycol leaves no chain ends")
-	ErrBadBlend      = errors.New("yield: invalid polyol blend")
-	ErrBadAudit      = errors.New("yield: invalid audit")
+	ErrBadNumber     = errors.New("a value is not a finite number")
+	ErrOutOfRange    = errors.New("a value is out of range")
+	ErrUnknownKey    = errors.New("unknown key")
+	ErrUnknownGlycol = errors.New("unknown glycol")
+	ErrBadLine       = errors.New("invalid line profile")
+	ErrNotClosed     = errors.New("a line stage does not close")
+	ErrBadSpec       = errors.New("invalid flake spec")
+	ErrBadCharge     = errors.New("invalid glycolysis charge")
+	ErrRebuildsPET   = errors.New("stripping that much glycol leaves no chain ends")
+	ErrBadBlend      = errors.New("invalid polyol blend")
+	ErrBadAudit      = errors.New("invalid audit")
 )
 
 // FieldError names the field of an input that is wrong and says what to
@@ -32,15 +35,48 @@ type FieldError struct {
 }
 
 func (e *FieldError) Error() string {
-	s := "yield: "
-	if e.Where != "" {
-		s += e.Where + ": "
+	var b strings.Builder
+	if e.Where != "" && !contextWords[e.Where] {
+		b.WriteString(e.Where)
+		b.WriteString(": ")
 	}
-	if e.Field != "" {
-		s += e.Field + ": "
+	if e.Field == "" {
+		b.WriteString(e.Msg)
+		return b.String()
 	}
-	return s + e.Msg
+	b.WriteString(fieldWords(e.Field))
+	for _, verb := range []string{"must ", "is ", "has ", "needs ", "applies "} {
+		if strings.HasPrefix(e.Msg, verb) {
+			b.WriteByte(' ')
+			b.WriteString(e.Msg)
+			return b.String()
+		}
+	}
+	b.WriteString(": ")
+	b.WriteString(e.Msg)
+	return b.String()
 }
+
+// fieldLabels name the fields in a grader's or chemist's words; other
+// fields are written with spaces for underscores.
+var fieldLabels = map[string]string{
+	"strip_eg": "EG stripping share", "pet_kg": "PET mass", "glycol_kg": "glycol mass", "catalyst_pct": "catalyst loading",
+	"pet_mn": "PET Mn", "pvc_kg": "PVC mass", "inert_kg": "inert solids mass", "bale_kg": "bale mass", "reactor_kg": "reactor charge",
+	"isocyanate_nco": "NCO content", "target_pet_share": "target recycled-PET share", "pet_share": "recycled-PET share",
+	"water_kg": "water mass", "kg": "mass",
+}
+
+func fieldWords(field string) string {
+	if l, ok := fieldLabels[field]; ok {
+		return l
+	}
+	return strings.NewReplacer("_", " ", ".", " ").Replace(field)
+}
+
+// contextWords are Where values that name a part of the model rather
+// than a place in a file; the message leaves them out, the field says
+// enough.
+var contextWords = map[string]bool{"glycolysis": true, "blend": true, "plan": true, "audit": true, "monte carlo": true, "line": true, "flake spec": true}
 
 func (e *FieldError) Unwrap() error { return e.Err }
 
@@ -51,10 +87,10 @@ func fieldErr(where, field string, sentinel error, format string, args ...any) e
 // checkFraction reports a FieldError unless 0 ≤ v ≤ 1 and finite.
 func checkFraction(where, field string, v float64) error {
 	if !finite(v) {
-		return fieldErr(where, field, ErrBadNumber, "%v is not a number; give a fraction from 0 to 1", v)
+		return fieldErr(where, field, ErrBadNumber, "is not a number (%v); give a fraction from 0 to 1", v)
 	}
 	if v < 0 || v > 1 {
-		return fieldErr(where, field, ErrOutOfRange, "%g is outside 0–1; give a fraction (0.95, not 95)", v)
+		return fieldErr(where, field, ErrOutOfRange, "is %g, outside 0–1; give a fraction (0.95, not 95)", v)
 	}
 	return nil
 }
@@ -62,10 +98,10 @@ func checkFraction(where, field string, v float64) error {
 // checkPositive reports a FieldError unless v > 0 and finite.
 func checkPositive(where, field string, v float64) error {
 	if !finite(v) {
-		return fieldErr(where, field, ErrBadNumber, "%v is not a number", v)
+		return fieldErr(where, field, ErrBadNumber, "is not a number (%v)", v)
 	}
 	if v <= 0 {
-		return fieldErr(where, field, ErrOutOfRange, "%g must be above 0", v)
+		return fieldErr(where, field, ErrOutOfRange, "must be above 0 (got %g)", v)
 	}
 	return nil
 }
@@ -73,10 +109,10 @@ func checkPositive(where, field string, v float64) error {
 // checkNonNegative reports a FieldError unless v ≥ 0 and finite.
 func checkNonNegative(where, field string, v float64) error {
 	if !finite(v) {
-		return fieldErr(where, field, ErrBadNumber, "%v is not a number", v)
+		return fieldErr(where, field, ErrBadNumber, "is not a number (%v)", v)
 	}
 	if v < 0 {
-		return fieldErr(where, field, ErrOutOfRange, "%g must not be negative", v)
+		return fieldErr(where, field, ErrOutOfRange, "must not be negative (got %g)", v)
 	}
 	return nil
 }

@@ -1,6 +1,7 @@
 package yield
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"strings"
@@ -10,8 +11,7 @@ import (
 
 // DefaultGlycol and DefaultGlycolRatio are the glycolysis charge used
 // for a bale unless another is given: DEG at 1:1 by mass, one of the
-// charges in Hoang et al., Polymers 11 (2019) 236 and the worked example
-// of shared/REFERENCE.md.
+// charges in Hoang et al., Polymers 11 (2019) 236.
 const (
 	DefaultGlycol      = "DEG"
 	DefaultGlycolRatio = 1.0
@@ -26,11 +26,18 @@ const (
 // flake as charged, contaminants included, because a plant weighs flake,
 // not PET: glycol = R·m_flake (or, with Molar, R moles per 192.17 g of
 // flake). The flake's purity therefore moves the hydroxyl value.
+//
+// Conversion and StripEG, when set, give the recipe's conversion and EG
+// stripping as ranges: the deterministic figures use their midpoints
+// (they override the recipe's own values) and the Monte Carlo draws them
+// uniformly.
 type Plan struct {
-	Line      *Model
-	Spec      *FlakeSpec
-	Recipe    Recipe
-	ReactorKg float64
+	Line       *Model
+	Spec       *FlakeSpec
+	Recipe     Recipe
+	ReactorKg  float64
+	Conversion Param
+	StripEG    Param
 }
 
 // DefaultPlan is the built-in line and flake spec with DEG 1:1 w/w and
@@ -75,16 +82,40 @@ func Evaluate(pulls []assess.Pull, baleKg float64, plan Plan) (Report, error) {
 	if err != nil {
 		return Report{}, err
 	}
+	return evaluateShares(est, baleKg, plan)
+}
+
+// EvaluateLoad runs a whole load through the plan at its point estimate
+// (the two-stage ratio-to-size estimate of assess.AssessLoad) and its
+// mass.
+func EvaluateLoad(lr assess.LoadResult, plan Plan) (Report, error) {
+	if err := plan.validate(); err != nil {
+		return Report{}, err
+	}
+	return evaluateShares(lr.Result, lr.BaleKg, plan)
+}
+
+// SimulateLoad is Simulate for a load: the composition is drawn from
+// the load's two-stage estimator (its between-bale and within-bale
+// terms), the mass is the load's.
+func SimulateLoad(lr assess.LoadResult, plan Plan, opt MCOptions) (MCResult, error) {
+	_, res, err := RunLoad(context.Background(), lr, plan, opt, nil)
+	return res, err
+}
+
+// evaluateShares runs a composition (shares of est.Categories) of
+// massKg through the plan.
+func evaluateShares(est assess.Result, massKg float64, plan Plan) (Report, error) {
 	comp := make([]float64, assess.NumCategories())
 	for j, sh := range est.Categories {
-		comp[j] = sh.Fraction * baleKg
+		comp[j] = sh.Fraction * massKg
 	}
 	bal, err := plan.Line.Run(comp)
 	if err != nil {
 		return Report{}, err
 	}
-	rep := Report{BaleKg: baleKg, BaleComposition: comp, Balance: bal}
-	rep.Warnings = lineWarnings(pulls, comp, bal)
+	rep := Report{BaleKg: massKg, BaleComposition: comp, Balance: bal}
+	rep.Warnings = lineWarnings(est.HazardPulls, comp, bal)
 	if plan.Spec != nil {
 		rep.Checks = plan.Spec.Check(bal)
 	}
@@ -119,7 +150,20 @@ func (p Plan) validate() error {
 	if p.Recipe.GlycolKg != 0 {
 		return fieldErr("plan", "glycol_kg", ErrBadCharge, "for a bale give the glycol as a ratio to the PET, so it scales with the flake")
 	}
-	probe := p.Recipe
+	if p.Conversion.IsSet() {
+		if err := checkParam("glycolysis", "conversion", p.Conversion); err != nil {
+			return err
+		}
+		if p.Conversion.Lo == 0 {
+			return fieldErr("glycolysis", "conversion", ErrOutOfRange, "a range starting at 0 dissolves no PET at its low end; give the dissolved share in (0, 1]")
+		}
+	}
+	if p.StripEG.IsSet() {
+		if err := checkParam("glycolysis", "strip_eg", p.StripEG); err != nil {
+			return err
+		}
+	}
+	probe := p.withRanges(p.Recipe)
 	probe.PETKg = 1
 	probe.PVCKg, probe.InertKg = 0, 0
 	g, cat, err := probe.validate()
@@ -128,6 +172,12 @@ func (p Plan) validate() error {
 	}
 	if err := newCharge(probe, g, cat).ok(); err != nil {
 		return err
+	}
+	if p.StripEG.IsSet() {
+		probe.StripEG = p.StripEG.Hi
+		if err := newCharge(probe, g, cat).ok(); err != nil {
+			return err
+		}
 	}
 	if !finite(p.ReactorKg) || p.ReactorKg < 0 {
 		return fieldErr("plan", "reactor_kg", ErrOutOfRange, "%v: give the reactor charge in kg, above 0", p.ReactorKg)
@@ -138,7 +188,7 @@ func (p Plan) validate() error {
 // recipeFor is the plan's recipe for a flake holding petKg of PET in
 // dryKg of dry flake. It allocates nothing.
 func (p Plan) recipeFor(petKg, dryKg float64, g Glycol) Recipe {
-	r := p.Recipe
+	r := p.withRanges(p.Recipe)
 	r.PETKg = petKg
 	if r.Molar {
 		r.GlycolKg = r.Ratio * dryKg / MolarMassPETUnit * g.MolarMass
@@ -149,18 +199,24 @@ func (p Plan) recipeFor(petKg, dryKg float64, g Glycol) Recipe {
 	return r
 }
 
+// withRanges sets the recipe's conversion and EG stripping to the
+// midpoints of the plan's ranges, where given.
+func (p Plan) withRanges(r Recipe) Recipe {
+	if p.Conversion.IsSet() {
+		r.Conversion = p.Conversion.Mid()
+	}
+	if p.StripEG.IsSet() {
+		r.StripEG = p.StripEG.Mid()
+	}
+	return r
+}
+
 // lineWarnings flags what the grader and the line crew must act on:
 // hazards in the audit or, worse, in the flake, and aluminium reaching
 // the caustic wash.
-func lineWarnings(pulls []assess.Pull, comp []float64, bal Balance) []string {
+func lineWarnings(labels []string, comp []float64, bal Balance) []string {
 	var w []string
 	hz, _ := assess.CategoryIndex("hazard")
-	var labels []string
-	for _, p := range pulls {
-		if p.Kg[hz] > 0 || (p.Pieces != nil && p.Pieces[hz] > 0) {
-			labels = append(labels, p.Label)
-		}
-	}
 	if len(labels) > 0 {
 		w = append(w, fmt.Sprintf("hazards were found in pulls %s: the bale must be sorted by hand before it goes on the line; the model assumes only what the line profile removes", strings.Join(labels, ", ")))
 	}

@@ -111,8 +111,7 @@ func TestHazardWarnings(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// Source: shared/REFERENCE.md 'Cautions to show' (hazardous items in
-	// bales are safety flags, common practice).
+	// Common practice: hazardous items in bales are safety flags.
 	if len(rep.Warnings) < 1 || !strings.Contains(rep.Warnings[0], pulls[2].Label) {
 		t.Errorf("no hazard warning naming the pull: %q", rep.Warnings)
 	}

@@ -8,9 +8,9 @@ import (
 )
 
 // One kilogram of PET glycolysed with one kilogram of DEG, without
-// catalyst. Source of the printed figures: shared/REFERENCE.md
-// 'Glycolysis' (528.7, p = 0.356, 64.4 / 22.9 / 8.2 %) and
-// testdata/ref/glycolysis_ref.py (EW, Mn, weight shares).
+// catalyst. The printed figures are computed by our own formulas and
+// checked against yield/testdata/ref/glycolysis_ref.py (528.70, p =
+// 0.3558, 64.42 / 22.92 / 8.15 %, EW, Mn, weight shares).
 func ExampleGlycolyse() {
 	r := yield.DefaultRecipe(1, "DEG", 1)
 	r.CatalystPct = 0
@@ -51,8 +51,8 @@ func ExampleMixBlend() {
 	// TDI 49.30 kg; recycled PET 12.0 % of the blend, 7.4 % of the foam
 }
 
-// Which categories sink in a water bath. Source: shared/REFERENCE.md
-// 'Densities' (polyolefins float, PET and PVC sink); labels 0.90–1.40
+// Which categories sink in a water bath. From memory (handbook
+// densities: polyolefins float, PET and PVC sink); labels 0.90–1.40
 // straddle water and split by overlap, (1.40 − 1.00)/(1.40 − 0.90).
 func ExampleSinkShare() {
 	for _, key := range []string{"pet_clear", "pvc", "closures", "labels"} {
@@ -117,12 +117,14 @@ func ExampleSimulate() {
 		fmt.Println(err)
 		return
 	}
-	f, g := res.FlakeKg, res.GlycolysateKg
+	f, g, pet := res.FlakeKg, res.GlycolysateKg, res.TargetPET
+	fmt.Printf("target PET P5 %.1f %%, P95 %.1f %%\n", 100*pet.P5, 100*pet.P95)
 	fmt.Printf("flake kg P10 %.0f, P50 %.0f, P90 %.0f\n", f.P10, f.P50, f.P90)
 	fmt.Printf("glycolysate kg P10 %.0f, P50 %.0f, P90 %.0f\n", g.P10, g.P50, g.P90)
 	fmt.Printf("hydroxyl value P50 %.0f mg KOH/g\n", res.HydroxylValue.P50)
 	// Output:
-	// flake kg P10 446, P50 455, P90 463
-	// glycolysate kg P10 888, P50 906, P90 922
+	// target PET P5 87.0 %, P95 93.3 %
+	// flake kg P10 443, P50 455, P90 467
+	// glycolysate kg P10 881, P50 905, P90 929
 	// hydroxyl value P50 527 mg KOH/g
 }

@@ -154,7 +154,7 @@ const BuiltinFlakeSpecName = "illustrative clean clear flake"
 
 // BuiltinFlakeSpec returns an illustrative clean-flake spec. Each limit
 // sits inside the ranges seen in trade listings for clean clear flake
-// (shared/REFERENCE.md 'Wash line'): polyolefins 10–30 ppm, PVC 20–100,
+// (trade listings of clean flake): polyolefins 10–30 ppm, PVC 20–100,
 // glue 50, paper 50, metal 10, moisture 0.7–1 %, dust 0.5–1 %.
 func BuiltinFlakeSpec() FlakeSpec {
 	f := func(v float64) *float64 { return &v }

@@ -14,8 +14,7 @@ type Glycol struct {
 	MolarMass float64
 	// Functionality is the number of OH groups per molecule.
 	Functionality int
-	// BoilingC is the normal boiling point in °C (from memory, see
-	// shared/REFERENCE.md for EG, DEG and PG).
+	// BoilingC is the normal boiling point in °C (from memory).
 	BoilingC float64
 	// FlashC is the closed-cup flash point in °C (from memory); 0 when
 	// not recorded.

@@ -135,7 +135,7 @@ func (r Recipe) validate() (Glycol, Catalyst, error) {
 //	OH  = f·n_G + 2·N_c − 2·n_s            equivalents
 //	molecules = N_G − N_T                  (no rings)
 //
-// Source: OH conservation, shared/REFERENCE.md 'Glycolysis' (computed);
+// Source: OH conservation through transesterification (computed);
 // molecules = units − bonds holds for any ring-free product.
 func newCharge(r Recipe, g Glycol, cat Catalyst) charge {
 	c := charge{glycol: g, cat: cat}

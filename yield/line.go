@@ -84,10 +84,48 @@ type Stage struct {
 	PETLoss     Param            `json:"pet_loss,omitzero"`
 	DustMade    Param            `json:"dust_made,omitzero"`
 	BathDensity float64          `json:"bath_density,omitempty"`
-	Keep        string           `json:"keep,omitempty"`
+	Keep        Side             `json:"keep,omitempty"`
 	Efficiency  Param            `json:"efficiency,omitzero"`
 	ProductLoss Param            `json:"product_loss,omitzero"`
 	Moisture    Param            `json:"moisture,omitzero"`
+}
+
+// Side is the side of a sink–float bath that goes on with the PET.
+type Side int
+
+// The sides. SideUnset (a profile that says nothing) means SideSink.
+const (
+	SideUnset Side = iota
+	SideSink
+	SideFloat
+)
+
+func (s Side) String() string {
+	switch s {
+	case SideUnset:
+		return ""
+	case SideSink:
+		return "sink"
+	case SideFloat:
+		return "float"
+	}
+	return fmt.Sprintf("Side(%d)", int(s))
+}
+
+// MarshalText writes "sink" or "float".
+func (s Side) MarshalText() ([]byte, error) { return []byte(s.String()), nil }
+
+// UnmarshalText reads "sink" or "float".
+func (s *Side) UnmarshalText(b []byte) error {
+	switch string(b) {
+	case "sink":
+		*s = SideSink
+	case "float":
+		*s = SideFloat
+	default:
+		return fmt.Errorf("keep %q: say which side goes on, \"sink\" or \"float\"", b)
+	}
+	return nil
 }
 
 // IsZero lets encoding/json omit an unset Param.

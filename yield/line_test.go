@@ -20,8 +20,10 @@ func catIdx(t testing.TB, key string) int {
 }
 
 func TestSinkShareWater(t *testing.T) {
-	// Source: shared/REFERENCE.md 'Densities': polyolefin caps, rings and
-	// film float in water; PET, PVC, PETG, PLA and PS sink.
+	// From memory (handbook densities: polyolefins 0.90–0.965 g/cm³, PVC
+	// 1.35–1.45, PLA ≈1.24, PS ≈1.05; PET amorphous 1.333–1.335, Daubeny,
+	// Bunn & Brown, Proc. R. Soc. A 226 (1954) 531): polyolefin caps,
+	// rings and film float in water; PET, PVC, PETG, PLA and PS sink.
 	for key, want := range map[string]float64{
 		"hdpe": 0, "ldpe": 0, "pp": 0, "closures": 0, "film": 0,
 		"pet_clear": 1, "pet_thermoform": 1, "pvc": 1, "pla": 1, "ps": 1, "other_resin": 1,
@@ -44,8 +46,8 @@ func TestSinkShareWater(t *testing.T) {
 	if _, ok := SinkShare(assess.DensityRange{}, 1); ok {
 		t.Error("unknown density reported as known")
 	}
-	// No salt bath separates PVC from PET (overlap). Source:
-	// shared/REFERENCE.md 'Densities' (no density bath separates them).
+	// No salt bath separates PVC from PET: their density ranges overlap
+	// (common practice: PVC must be sorted out before grinding).
 	pvc, _ := SinkShare(assess.CategoryAt(catIdx(t, "pvc")).Density, 1.38)
 	pet, _ := SinkShare(assess.CategoryAt(catIdx(t, "pet_clear")).Density, 1.38)
 	if pvc <= 0 || pet <= 0 || pvc >= 1 || pet >= 1 {
@@ -71,8 +73,9 @@ func TestClosuresFloatPVCSinksWithPET(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// Source: shared/REFERENCE.md 'Densities': polyolefins float; PVC,
-	// PETG, PLA and PS stay with the PET unless a sort removed them.
+	// From memory (handbook densities, see TestSinkShareWater): polyolefins
+	// float; PVC, PETG, PLA and PS stay with the PET unless a sort
+	// removed them.
 	for _, k := range []string{"pet_clear", "pvc", "pla", "ps", "other_resin"} {
 		if b.Flake[catIdx(t, k)] != 1 {
 			t.Errorf("%s: %g kg in the flake, want all 1 kg", k, b.Flake[catIdx(t, k)])
@@ -115,8 +118,7 @@ func TestBuiltinLineOnTypicalBale(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// Source: shared/REFERENCE.md 'Wash line': bale-to-flake yield roughly
-	// 60–80 % (from memory).
+	// From memory: a bale-to-clean-flake yield of roughly 60–80 %.
 	if b.FlakeShare < 0.60 || b.FlakeShare > 0.85 {
 		t.Errorf("flake share %.3f outside 0.60–0.85", b.FlakeShare)
 	}
@@ -240,7 +242,7 @@ func TestLineProfileErrors(t *testing.T) {
 		{"bath on a grinder", Line{Name: "x", Stages: []Stage{{Kind: StageGrind, BathDensity: 1}}}, ErrBadLine},
 		{"dry without moisture", Line{Name: "x", Stages: []Stage{{Kind: StageDry}}}, ErrBadLine},
 		{"grind dust and loss over 1", Line{Name: "x", Stages: []Stage{{Kind: StageGrind, PETLoss: Fixed(0.6), DustMade: Fixed(0.6)}}}, ErrNotClosed},
-		{"keep sideways", Line{Name: "x", Stages: []Stage{{Kind: StageSinkFloat, BathDensity: 1, Efficiency: Fixed(1), Keep: "middle"}}}, ErrBadLine},
+		{"keep sideways", Line{Name: "x", Stages: []Stage{{Kind: StageSinkFloat, BathDensity: 1, Efficiency: Fixed(1), Keep: Side(7)}}}, ErrBadLine},
 	}
 	for _, c := range inline {
 		if err := c.line.Validate(); !errors.Is(err, c.err) {
@@ -349,15 +351,16 @@ func TestBathNotesShowWhatStaysWithPET(t *testing.T) {
 		t.Fatal(err)
 	}
 	notes := m.BathNotes(nil)
-	if len(notes) != 1 || notes[0].Keep != "sink" || notes[0].BathDensity != 1 {
+	if len(notes) != 1 || notes[0].Keep != SideSink || notes[0].BathDensity != 1 {
 		t.Fatalf("notes %+v", notes)
 	}
 	got := map[string]float64{}
 	for _, s := range notes[0].WithPET {
 		got[s.Key] = s.Share
 	}
-	// Source: shared/REFERENCE.md 'Densities': PVC, PETG, PLA and PS sink
-	// with PET in water; polyolefins float. Labels 0.90–1.40: 0.8 by overlap.
+	// From memory (handbook densities, see TestSinkShareWater): PVC, PETG,
+	// PLA and PS sink with PET in water; polyolefins float. Labels
+	// 0.90–1.40: 0.8 by overlap (computed).
 	for key, want := range map[string]float64{"pvc": 1, "ps": 1, "pla": 1, "other_resin": 1, "labels": 0.8} {
 		if math.Abs(got[key]-want) > 1e-12 {
 			t.Errorf("%s stays with PET at %g, want %g", key, got[key], want)

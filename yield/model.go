@@ -25,7 +25,7 @@ type cstage struct {
 	moist  int  // parameter of moisture (dry), -1 if none
 	where  string
 	bath   float64 // sink_float: bath density
-	keep   string  // sink_float: the side that goes on
+	keep   Side    // sink_float: the side that goes on
 }
 
 // op is one component a stage acts on, with its two terms.
@@ -48,6 +48,7 @@ func (cs *cstage) sparse() {
 type Model struct {
 	line    Line
 	params  []Param
+	names   []string // what each parameter is, for the sensitivity table
 	stages  []cstage
 	streams []string
 	glue    int // parameter of glue_share_of_labels, -1 if none
@@ -62,9 +63,11 @@ const zeroParam = 0
 // Compile validates a line profile and prepares it for evaluation.
 func Compile(l Line) (*Model, error) { return compile(l) }
 
-// addParam adds a parameter and returns its index.
-func (m *Model) addParam(p Param) int {
+// addParam adds a parameter named for the sensitivity table and returns
+// its index.
+func (m *Model) addParam(p Param, name string) int {
 	m.params = append(m.params, p)
+	m.names = append(m.names, name)
 	return len(m.params) - 1
 }
 
@@ -89,12 +92,12 @@ func compile(l Line) (*Model, error) {
 	m := &Model{line: l, glue: -1, nCat: assess.NumCategories()}
 	m.labels, _ = assess.CategoryIndex("labels")
 	m.liquid, _ = assess.CategoryIndex("liquid")
-	m.addParam(Fixed(0))
+	m.addParam(Fixed(0), "")
 	if l.GlueShareOfLabels.set {
 		if err := checkParam("line", "glue_share_of_labels", l.GlueShareOfLabels); err != nil {
 			return nil, err
 		}
-		m.glue = m.addParam(l.GlueShareOfLabels)
+		m.glue = m.addParam(l.GlueShareOfLabels, "line: glue_share_of_labels")
 	}
 	for i, s := range l.Stages {
 		cs, err := m.compileStage(i, s, nc)
@@ -120,7 +123,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 	for _, c := range []error{
 		only("dust_made", s.DustMade.set, StageGrind),
 		only("bath_density", s.BathDensity != 0, StageSinkFloat),
-		only("keep", s.Keep != "", StageSinkFloat),
+		only("keep", s.Keep != SideUnset, StageSinkFloat),
 		only("efficiency", s.Efficiency.set, StageSinkFloat),
 		only("product_loss", s.ProductLoss.set, StageSinkFloat),
 		only("moisture", s.Moisture.set, StageDry),
@@ -133,14 +136,14 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 	keep := s.Keep
 	if s.Kind == StageSinkFloat {
 		switch keep {
-		case "", "sink":
-			keep = "sink"
-		case "float":
+		case SideUnset, SideSink:
+			keep = SideSink
+		case SideFloat:
 			if stream == "" {
 				stream = "sinks"
 			}
 		default:
-			return cstage{}, fieldErr(where, "keep", ErrBadLine, "%q: say which side goes on, \"sink\" or \"float\"", s.Keep)
+			return cstage{}, fieldErr(where, "keep", ErrBadLine, "%v: say which side goes on, \"sink\" or \"float\"", s.Keep)
 		}
 	}
 	if stream == "" {
@@ -159,7 +162,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 		if err := checkParam(where, "pet_loss", s.PETLoss); err != nil {
 			return cstage{}, err
 		}
-		pet = m.addParam(s.PETLoss)
+		pet = m.addParam(s.PETLoss, where+": pet_loss")
 	}
 	// One parameter per removal entry: a group's members share one draw.
 	entry := map[string]int{}
@@ -168,7 +171,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 		if removal[c].set {
 			pi, ok := entry[from[c]]
 			if !ok {
-				pi = m.addParam(removal[c])
+				pi = m.addParam(removal[c], where+": removal."+from[c])
 				entry[from[c]] = pi
 			}
 			cs.rem[c][0] = term{pi, 1}
@@ -183,7 +186,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 			if err := checkParam(where, "dust_made", s.DustMade); err != nil {
 				return cstage{}, err
 			}
-			cs.dust = m.addParam(s.DustMade)
+			cs.dust = m.addParam(s.DustMade, where+": dust_made")
 		}
 	case StageDry:
 		if !s.Moisture.set {
@@ -195,7 +198,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 		if s.Moisture.Hi >= 1 {
 			return cstage{}, fieldErr(where, "moisture", ErrOutOfRange, "%g leaves only water; give the moisture share of the wet flake below 1", s.Moisture.Hi)
 		}
-		cs.moist = m.addParam(s.Moisture)
+		cs.moist = m.addParam(s.Moisture, where+": moisture")
 	case StageSinkFloat:
 		if err := m.compileSinkFloat(where, s, keep, &cs); err != nil {
 			return cstage{}, err
@@ -208,7 +211,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 // compileSinkFloat sets the sink–float shares: a component whose ideal
 // side (from SinkShare) is the reject side leaves with the efficiency,
 // the rest with the product loss.
-func (m *Model) compileSinkFloat(where string, s Stage, keep string, cs *cstage) error {
+func (m *Model) compileSinkFloat(where string, s Stage, keep Side, cs *cstage) error {
 	if err := checkPositive(where, "bath_density", s.BathDensity); err != nil {
 		return err
 	}
@@ -224,13 +227,13 @@ func (m *Model) compileSinkFloat(where string, s Stage, keep string, cs *cstage)
 	if err := checkParam(where, "efficiency", s.Efficiency); err != nil {
 		return err
 	}
-	eff := m.addParam(s.Efficiency)
+	eff := m.addParam(s.Efficiency, where+": efficiency")
 	loss := zeroParam
 	if s.ProductLoss.set {
 		if err := checkParam(where, "product_loss", s.ProductLoss); err != nil {
 			return err
 		}
-		loss = m.addParam(s.ProductLoss)
+		loss = m.addParam(s.ProductLoss, where+": product_loss")
 	}
 	pc, _ := assess.CategoryIndex("pet_clear")
 	petRange := assess.CategoryAt(pc).Density // dust is bottle PET
@@ -247,7 +250,7 @@ func (m *Model) compileSinkFloat(where string, s Stage, keep string, cs *cstage)
 		reject := 0.0 // unknown density or attached: stays with the product
 		if ok {
 			reject = 1 - sink
-			if keep == "float" {
+			if keep == SideFloat {
 				reject = sink
 			}
 		}
@@ -279,7 +282,7 @@ type BathNote struct {
 	Index       int // 1-based stage number
 	Stage       string
 	BathDensity float64
-	Keep        string // "sink" or "float": the PET's side
+	Keep        Side // the PET's side
 	WithPET     []BathShare
 }
 

@@ -12,7 +12,8 @@ import "baleassay/assess"
 //
 // The density is taken as spread evenly over its range. ok is false when
 // the category has no meaningful density (hazards); the line model then
-// leaves it with the product. Densities: shared/REFERENCE.md 'Densities'.
+// leaves it with the product. Densities: the catalogue's, each with its
+// source (assess.Category.DensitySource).
 func SinkShare(r assess.DensityRange, bath float64) (share float64, ok bool) {
 	if !r.Known() {
 		return 0, false

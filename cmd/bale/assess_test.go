@@ -43,6 +43,7 @@ func TestAssessDemoJSON(t *testing.T) {
 				Item, Verdict string
 				Limit         float64
 				MorePulls     *int `json:"more_pulls"`
+				Need          string
 			}
 		} `json:"spec"`
 	}
@@ -71,7 +72,7 @@ func TestAssessDemoJSON(t *testing.T) {
 		t.Errorf("spec: %+v", rep.Spec)
 	}
 	for _, l := range rep.Spec.Limits {
-		if (l.Verdict == "undecided") != (l.MorePulls != nil && *l.MorePulls > 0) {
+		if (l.Verdict == "undecided") != (l.MorePulls != nil && *l.MorePulls > 0 || l.Need == "whole_bale" || l.Need == "unknown") {
 			t.Errorf("limit %s %s: more_pulls %v", l.Item, l.Verdict, l.MorePulls)
 		}
 	}
@@ -137,12 +138,19 @@ func TestCategoriesJSON(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &rows); err != nil {
 		t.Fatal(err)
 	}
-	// Source: ASTM D7611 resin identification codes (shared/REFERENCE.md).
+	// Source: ASTM D7611, the resin identification codes 1–7.
 	want := map[string]int{"pet_clear": 1, "hdpe": 2, "pvc": 3, "ldpe": 4, "pp": 5, "ps": 6, "pla": 7}
+	seen := 0
 	for _, r := range rows {
-		if c, ok := want[r.Key]; ok && c != r.Code {
-			t.Errorf("%s: code %d, want %d", r.Key, r.Code, c)
+		if c, ok := want[r.Key]; ok {
+			seen++
+			if c != r.Code {
+				t.Errorf("%s: code %d, want %d", r.Key, r.Code, c)
+			}
 		}
+	}
+	if seen != len(want) {
+		t.Errorf("%d of the %d coded categories listed", seen, len(want))
 	}
 	if len(rows) != 24 {
 		t.Errorf("%d categories", len(rows))

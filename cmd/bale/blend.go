@@ -12,7 +12,7 @@ import (
 func init() {
 	register(command{
 		name: "blend",
-		usage: "--polyol OHV:KG[:PET_SHARE] ... (--isocyanate-nco PCT | --isocyanate TDI|MDI) --index I " +
+		usage: "--polyol OHV:KG[:PET_SHARE] ... (--isocyanate-nco PCT | --isocyanate TDI|MDI|PMDI) --index I " +
 			"[--water-kg W] [--target-pet-share S] [--json]",
 		summary: "hydroxyl value of a polyol blend and the isocyanate it needs at an index",
 		run:     runBlend,
@@ -59,7 +59,7 @@ func runBlend(args []string, stdout, stderr io.Writer) error {
 	var polyols polyolFlags
 	fs.Var(&polyols, "polyol", "a polyol as OHV:KG, OHV:KG:PET_SHARE or castor:KG (repeat for each)")
 	nco := fs.Float64("isocyanate-nco", 0, "NCO content of the isocyanate, mass %")
-	iso := fs.String("isocyanate", "", "isocyanate preset: TDI (2,4-TDI) or MDI (4,4'-MDI)")
+	iso := fs.String("isocyanate", "", "isocyanate preset: TDI (2,4-TDI), MDI (monomeric 4,4'-MDI) or PMDI (polymeric MDI, 31 % NCO, typical)")
 	index := fs.Float64("index", 0, "isocyanate index, 100 × NCO / (OH + water) equivalents (required)")
 	water := fs.Float64("water-kg", 0, "water added as blowing agent, kg (2 equivalents per mole)")
 	target := fs.Float64("target-pet-share", 0, "scale the PET-free polyols so the blend holds this share of recycled PET (0–1)")
@@ -88,7 +88,7 @@ func runBlend(args []string, stdout, stderr io.Writer) error {
 		}
 		*nco, name = p.NCOPct, p.Key
 	case !flagSet(fs, "isocyanate-nco"):
-		return usagef("give the isocyanate as --isocyanate-nco PCT or --isocyanate TDI|MDI")
+		return usagef("give the isocyanate as --isocyanate-nco PCT or --isocyanate TDI|MDI|PMDI")
 	}
 	b := yield.Blend{NCOPct: *nco, Index: *index, WaterKg: *water, TargetPETShare: *target}
 	for i, s := range polyols {
@@ -109,7 +109,7 @@ func runBlend(args []string, stdout, stderr io.Writer) error {
 		IsocyanateKg: r.IsocyanateKg, RecycledPETKg: r.RecycledPETKg, RecycledPETShare: r.RecycledPETShare,
 		FormulationKg: r.FormulationKg, FormulationPETShare: r.FormulationPETShare,
 		Warnings: append([]string{}, r.Warnings...),
-		Cautions: []string{yield.CautionIsocyanate},
+		Cautions: []string{yield.CautionIsocyanateFor(name)},
 	}
 	for _, p := range r.Polyols {
 		o.Polyols = append(o.Polyols, polyolJSON{p.Name, p.HydroxylValue, p.Kg, p.PETShare})

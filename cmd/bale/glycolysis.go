@@ -25,7 +25,8 @@ type recipeFlags struct {
 	glycol, catalyst *string
 	ratio, glycolKg  *float64
 	molar            *bool
-	strip, conv, cat *float64
+	strip, conv      *shareFlag
+	cat              *float64
 	petMn            *float64
 }
 
@@ -45,8 +46,12 @@ func addRecipeFlags(fs *flag.FlagSet, forBale bool) *recipeFlags {
 		rf.glycolKg = fs.Float64("glycol-kg", 0, "glycol charged, kg")
 	}
 	rf.molar = fs.Bool("molar", false, "read --glycol-ratio as a mole ratio")
-	rf.strip = fs.Float64("strip-eg", 0, "share (0–1) of the liberated ethylene glycol stripped by distillation")
-	rf.conv = fs.Float64("conversion", 1, "share (0–1] of the PET that dissolves; the rest leaves as a solid")
+	rangeHelp := ""
+	if forBale {
+		rangeHelp = ", or a range LOW:HIGH the Monte Carlo draws from"
+	}
+	rf.strip = newShareFlag(fs, "strip-eg", 0, "share (0–1) of the liberated ethylene glycol stripped by distillation"+rangeHelp)
+	rf.conv = newShareFlag(fs, "conversion", 1, "share (0–1] of the PET that dissolves; the rest leaves as a solid"+rangeHelp)
 	rf.cat = fs.Float64("catalyst-pct", yield.DefaultCatalystPct, "catalyst loading, wt % of the PET")
 	rf.catalyst = fs.String("catalyst", yield.DefaultCatalyst, "catalyst: zinc_acetate or zinc_acetate_dihydrate")
 	rf.petMn = fs.Float64("pet-mn", 0, "number-average molar mass of the PET in g/mol, to count its chain ends (0: neglected)")
@@ -59,15 +64,29 @@ func (rf *recipeFlags) recipe(fs *flag.FlagSet, petKg float64) (yield.Recipe, er
 	if *rf.molar && !flagSet(fs, "glycol-ratio") {
 		return yield.Recipe{}, usagef("--molar needs --glycol-ratio")
 	}
+	if petKg > 0 && (rf.conv.p.Varies() || rf.strip.p.Varies()) {
+		return yield.Recipe{}, usagef("one charge takes one value for --conversion and --strip-eg; ranges are for bale yield")
+	}
 	r := yield.Recipe{PETKg: petKg, Glycol: *rf.glycol, Ratio: *rf.ratio, Molar: *rf.molar,
-		Conversion: *rf.conv, StripEG: *rf.strip, Catalyst: *rf.catalyst, CatalystPct: *rf.cat, PETMn: *rf.petMn}
+		Conversion: rf.conv.p.Mid(), StripEG: rf.strip.p.Mid(), Catalyst: *rf.catalyst, CatalystPct: *rf.cat, PETMn: *rf.petMn}
 	if rf.glycolKg != nil && flagSet(fs, "glycol-kg") {
 		if !(*rf.glycolKg > 0) {
-			return r, &yield.FieldError{Where: "glycolysis", Field: "glycol_kg", Msg: fmt.Sprintf("%g must be above 0 (--glycol-kg)", *rf.glycolKg), Err: yield.ErrOutOfRange}
+			return r, &yield.FieldError{Where: "glycolysis", Field: "glycol_kg", Msg: fmt.Sprintf("must be above 0 (got %g in --glycol-kg)", *rf.glycolKg), Err: yield.ErrOutOfRange}
 		}
 		r.GlycolKg = *rf.glycolKg
 	}
 	return r, nil
+}
+
+// ranges puts --conversion and --strip-eg ranges into a plan, for the
+// Monte Carlo to draw from.
+func (rf *recipeFlags) ranges(plan *yield.Plan) {
+	if rf.conv.p.Varies() {
+		plan.Conversion = rf.conv.p
+	}
+	if rf.strip.p.Varies() {
+		plan.StripEG = rf.strip.p
+	}
 }
 
 // flagSet reports whether the flag was given on the command line.
@@ -160,7 +179,7 @@ func runGlycolysis(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	o := glycolysisOut(g)
-	o.Cautions = []string{yield.CautionHotGlycol}
+	o.Cautions = []string{yield.CautionHotGlycolFor(g.Glycol)}
 	if g.HClKg > 0 {
 		o.Cautions = append(o.Cautions, yield.CautionPVC)
 	}

@@ -93,6 +93,9 @@ func pullsAdd(args []string, stdout io.Writer) error {
 		kg += p.PartsKg()
 	}
 	fmt.Fprintf(stdout, "saved %s (%s kg) for bale %s\n", desk.Plural(len(pulls), "pull", "pulls"), desk.Num(kg, 3), bale)
+	if n := desk.HazardNotice(pulls); n != "" {
+		fmt.Fprintln(stdout, wrap(n, 100))
+	}
 	return nil
 }
 
@@ -125,6 +128,9 @@ func pullsEdit(args []string, stdout io.Writer) error {
 		return withHint(err)
 	}
 	fmt.Fprintf(stdout, "saved pull %s  %s, %s kg; the earlier value stays in its history\n", id, pulls[0].Label, desk.Num(pulls[0].PartsKg(), 3))
+	if n := desk.HazardNotice(pulls); n != "" {
+		fmt.Fprintln(stdout, wrap(n, 100))
+	}
 	return nil
 }
 

@@ -21,7 +21,7 @@ func init() {
 	register(command{
 		name: "yield",
 		usage: "PULLS.csv --bale-kg N | BALE [--line FILE] [--flake-spec FILE|none] [--glycol KEY --glycol-ratio R [--molar]] " +
-			"[--strip-eg F] [--conversion X] [--catalyst-pct P] [--catalyst K] [--pet-mn MN] [--reactor-kg K] [--draws N] [--seed S] [--fixed-line] [--json]",
+			"[--strip-eg F|LO:HI] [--conversion X|LO:HI] [--catalyst-pct P] [--catalyst K] [--pet-mn MN] [--reactor-kg K] [--draws N] [--seed S] [--fixed-line] [--json]",
 		summary: "put an audited bale through the wash line and the glycolysis reactor, with P10/P50/P90",
 		run:     runYield,
 	})
@@ -48,12 +48,20 @@ type yieldJSON struct {
 	Glycolysis       glycolysisJSON     `json:"glycolysis"`
 	Warnings         []string           `json:"warnings"`
 	Cautions         []string           `json:"cautions"`
+	// How the audit's uncertainty was carried (yield_spread.go).
+	Spread          string       `json:"spread"`
+	TargetPET       summaryJSON  `json:"target_pet"`
+	Sensitivity     []driverJSON `json:"sensitivity"`
+	ConversionRange *[2]float64  `json:"conversion_range,omitempty"`
+	StripEGRange    *[2]float64  `json:"strip_eg_range,omitempty"`
 }
 
 type summaryJSON struct {
+	P5   *float64 `json:"p5"`
 	P10  *float64 `json:"p10"`
 	P50  *float64 `json:"p50"`
 	P90  *float64 `json:"p90"`
+	P95  *float64 `json:"p95"`
 	Mean *float64 `json:"mean"`
 }
 
@@ -66,7 +74,7 @@ func jnum(v float64) *float64 {
 }
 
 func summaryOf(s yield.Summary) summaryJSON {
-	return summaryJSON{jnum(s.P10), jnum(s.P50), jnum(s.P90), jnum(s.Mean)}
+	return summaryJSON{jnum(s.P5), jnum(s.P10), jnum(s.P50), jnum(s.P90), jnum(s.P95), jnum(s.Mean)}
 }
 
 type pointJSON struct {
@@ -161,6 +169,7 @@ func runYield(args []string, stdout, stderr io.Writer) error {
 	}
 	plan.Recipe = recipe
 	plan.ReactorKg = *reactor
+	rf.ranges(&plan)
 	pulls, err := assess.ReadPullsFile(pos[0])
 	if err != nil {
 		return err
@@ -169,12 +178,13 @@ func runYield(args []string, stdout, stderr io.Writer) error {
 		return fmt.Errorf("--bale-kg %g is below the %.3f kg sampled in %s; check the bale's mass or the pull masses", *baleKg, s, pos[0])
 	}
 	var d *desk.Desk // no store: built-in and file settings only
-	run, err := d.YieldPulls(context.Background(), pulls, *baleKg, plan, desk.YieldOptions{MC: yield.MCOptions{Draws: *draws, Seed: *seed, FixedLine: *fixed}}, nil)
+	run, err := d.YieldPulls(context.Background(), pulls, *baleKg, plan, desk.YieldOptions{MC: yield.MCOptions{Draws: *draws, Seed: *seed, FixedLine: *fixed}, Sensitivity: true}, nil)
 	if err != nil {
 		return fmt.Errorf("%s: %w", pos[0], err)
 	}
 	rep, mc := run.Report, run.MC
 	out := buildYieldJSON(rep, mc, plan, *fixed)
+	addSpread(&out, mc, run.Drivers, plan)
 	if *asJSON {
 		return writeJSON(stdout, out)
 	}
@@ -198,11 +208,13 @@ func yieldBale(bale, dir string, fs *flag.FlagSet, rf *recipeFlags, line, flakeS
 		return err
 	}
 	plan.ReactorKg = reactor
-	id, run, err := d.YieldBale(context.Background(), bale, plan, desk.YieldOptions{MC: mc}, nil)
+	rf.ranges(&plan)
+	id, run, err := d.YieldBale(context.Background(), bale, plan, desk.YieldOptions{MC: mc, Sensitivity: true}, nil)
 	if err != nil {
 		return err
 	}
 	out := buildYieldJSON(run.Report, run.MC, plan, mc.FixedLine)
+	addSpread(&out, run.MC, run.Drivers, plan)
 	if asJSON {
 		return writeJSON(stdout, out)
 	}
@@ -228,7 +240,7 @@ func buildYieldJSON(rep yield.Report, mc yield.MCResult, plan yield.Plan, fixed 
 		ProcessWaterKg: b.ProcessWaterKg, Closure: b.Closure,
 		Glycolysis: glycolysisOut(g),
 		Warnings:   append(append([]string{}, rep.Warnings...), g.Warnings...),
-		Cautions:   []string{yield.CautionCaustic, yield.CautionHotGlycol},
+		Cautions:   []string{yield.CautionCaustic, yield.CautionHotGlycolFor(g.Glycol)},
 	}
 	if plan.ReactorKg > 0 {
 		n := rep.Batches
@@ -239,7 +251,7 @@ func buildYieldJSON(rep yield.Report, mc yield.MCResult, plan yield.Plan, fixed 
 	}
 	out.WithPET = []bathNoteJSON{}
 	for _, n := range plan.Line.BathNotes(rep.Balance.Flake[:len(rep.BaleComposition)]) {
-		j := bathNoteJSON{Stage: n.Stage, BathDensity: n.BathDensity, Keep: n.Keep, Shares: map[string]float64{}}
+		j := bathNoteJSON{Stage: n.Stage, BathDensity: n.BathDensity, Keep: n.Keep.String(), Shares: map[string]float64{}}
 		for _, s := range n.WithPET {
 			j.Shares[s.Key] = s.Share
 		}
@@ -262,9 +274,9 @@ func buildYieldJSON(rep yield.Report, mc yield.MCResult, plan yield.Plan, fixed 
 func printYield(w io.Writer, o yieldJSON, rep yield.Report, plan yield.Plan) {
 	p := o.Point
 	fmt.Fprintf(w, "Bale %.0f kg through %s\n", o.BaleKg, plan.Line)
-	mode := "audit resampled and line efficiencies drawn from their ranges"
+	mode := "composition drawn from the audit's estimator, line efficiencies from their ranges"
 	if o.FixedLine {
-		mode = "audit resampled, line efficiencies fixed at their midpoints"
+		mode = "composition drawn from the audit's estimator, line efficiencies fixed at their midpoints"
 	}
 	fmt.Fprintf(w, "%d draws, seed %d (%s)\n\n", o.Draws, o.Seed, mode)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
@@ -282,6 +294,7 @@ func printYield(w io.Writer, o yieldJSON, rep yield.Report, plan yield.Plan) {
 	row("glycolysate, kg", "%.1f", p.GlycolysateKg, o.GlycolysateKg)
 	row("hydroxyl value, mg KOH/g", "%.1f", p.HydroxylValue, o.HydroxylValue)
 	tw.Flush()
+	printSpread(w, o, "pull")
 	fmt.Fprintf(w, "\nFlake: %.1f %% of the bale; %.1f kg PET, %.2f kg moisture (%.2f %%)\n", 100*p.FlakeShare, p.PETKg, p.MoistureKg, 100*p.MoistureKg/p.FlakeKg)
 	fmt.Fprintf(w, "Reject streams, kg:")
 	for _, s := range rep.Balance.Streams {
@@ -382,7 +395,7 @@ func printBathNotes(w io.Writer, notes []yield.BathNote) {
 	var order []float64
 	byBath := map[float64]*group{}
 	for _, n := range notes {
-		if n.Keep != "sink" || len(n.WithPET) == 0 {
+		if n.Keep != yield.SideSink || len(n.WithPET) == 0 {
 			continue
 		}
 		g, ok := byBath[n.BathDensity]

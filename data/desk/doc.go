@@ -39,7 +39,13 @@
 //	          read with ReadPulls), LoadSpec
 //	yield     Plan (stored line or file, flake spec), YieldBale, YieldPulls: one
 //	          evaluation plus the Monte Carlo, the overall flake-spec pass, what
-//	          sinks with the PET, and the cautions that apply
+//	          sinks with the PET, and the cautions that apply; with
+//	          YieldOptions.Sensitivity what drives the spread
+//	loads     ParseLoadBale, AuditLoad: a delivery of bales, some audited (stored
+//	          bales or pulls files with their masses), by two-stage sampling:
+//	          composition, verdict in bales, the advice between more bales and
+//	          more pulls, and with a plan its flake and polyol
+//	hazards   HazardNotice: what to show when saved pulls hold a hazard
 //	summaries SummarizeRegion, SummarizeSite, SummarizeSites: shares across
 //	          bales, bales with hazards, with labels used twice, not assessed
 //	settings  Settings, Setting, SaveSetting (checked by the same reader the

@@ -139,6 +139,9 @@ func (d *Desk) Plan(line, flakeSpec string) (yield.Plan, error) {
 // YieldOptions tune a Monte Carlo yield run.
 type YieldOptions struct {
 	MC yield.MCOptions
+	// Sensitivity also ranks the inputs that drive the spread
+	// (YieldRun.Drivers).
+	Sensitivity bool
 }
 
 // SinkGroup is what sinks with the PET at one bath density: the stages
@@ -160,6 +163,20 @@ type YieldRun struct {
 	FlakePass bool // every flake-spec limit met at the point estimate (true without a spec)
 	Sinks     []SinkGroup
 	Cautions  []Caution
+	// Drivers rank what drives the spread of flake and polyol, with
+	// YieldOptions.Sensitivity.
+	Drivers []yield.Driver
+}
+
+// CautionText is a caution as it applies to this run: the hot-glycol
+// caution names the glycol charged, its flash and boiling points.
+func (r YieldRun) CautionText(c Caution) string {
+	if c == CautionHotGlycol {
+		if g, err := yield.LookupGlycol(r.Plan.Recipe.Glycol); err == nil {
+			return yield.CautionHotGlycolFor(g)
+		}
+	}
+	return c.Text()
 }
 
 // YieldPulls runs pulls through the plan: one evaluation and the Monte
@@ -177,7 +194,23 @@ func (d *Desk) YieldPulls(ctx context.Context, pulls []assess.Pull, baleKg float
 	if err != nil {
 		return YieldRun{}, err
 	}
-	run := YieldRun{BaleKg: baleKg, Plan: plan, Report: rep, MC: mc, FlakePass: true,
+	run := newYieldRun(baleKg, plan, rep, mc)
+	if opt.Sensitivity {
+		est, err := assess.Assess(assess.Audit{Pulls: pulls, BaleKg: baleKg}, assess.Options{})
+		if err != nil {
+			return run, err
+		}
+		if run.Drivers, err = yield.Sensitivity(est.Spread, baleKg, plan, opt.MC); err != nil {
+			return run, err
+		}
+	}
+	return run, nil
+}
+
+// newYieldRun gathers what a front end shows with a yield: the overall
+// flake-spec pass, what sinks with the PET and the cautions that apply.
+func newYieldRun(massKg float64, plan yield.Plan, rep yield.Report, mc yield.MCResult) YieldRun {
+	run := YieldRun{BaleKg: massKg, Plan: plan, Report: rep, MC: mc, FlakePass: true,
 		Cautions: []Caution{CautionCaustic, CautionHotGlycol}}
 	for _, c := range rep.Checks {
 		run.FlakePass = run.FlakePass && c.Pass
@@ -186,7 +219,7 @@ func (d *Desk) YieldPulls(ctx context.Context, pulls []assess.Pull, baleKg float
 		run.Cautions = append(run.Cautions, CautionPVC)
 	}
 	run.Sinks = sinkGroups(plan.Line.BathNotes(rep.Balance.Flake[:len(rep.BaleComposition)]))
-	return run, nil
+	return run
 }
 
 // YieldBale runs a stored bale's pulls through the plan.
@@ -205,7 +238,7 @@ func sinkGroups(notes []yield.BathNote) []SinkGroup {
 	var out []SinkGroup
 	at := map[float64]int{}
 	for _, n := range notes {
-		if n.Keep != "sink" || len(n.WithPET) == 0 {
+		if n.Keep != yield.SideSink || len(n.WithPET) == 0 {
 			continue
 		}
 		i, ok := at[n.BathDensity]
