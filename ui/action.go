@@ -99,3 +99,8 @@ func (ExportTo) isAction()     {}
 func (ImportFrom) isAction()   {}
 func (CancelImport) isAction() {}
 func (TrustSigner) isAction()  {}
+
+// StartOwnStore leaves the demo for a new store of the user's own.
+type StartOwnStore struct{}
+
+func (StartOwnStore) isAction() {}

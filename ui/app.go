@@ -33,6 +33,9 @@ type Config struct {
 	Demo bool
 	// Now is the clock (time.Now when nil); tests fix it.
 	Now func() time.Time
+	// StartOwn, when set, is offered on the demo banner: it makes and
+	// opens the user's own store (the user has none yet).
+	StartOwn func() (*desk.Desk, error)
 }
 
 // App is the window's content: the screens, the shell around them and the
@@ -49,6 +52,7 @@ type App struct {
 	scaleBtn  widget.Clickable
 	unitBtn   widget.Clickable
 	closeHelp widget.Clickable
+	startOwn  widget.Clickable
 	helpList  widget.List
 
 	in    inbox
@@ -96,6 +100,9 @@ func New(cfg Config) *App {
 // Close stops the background work after the queued jobs.
 func (a *App) Close() { a.owner.close() }
 
+// Desk is the store the app shows now (StartOwn may replace the first).
+func (a *App) Desk() *desk.Desk { return a.cfg.Desk }
+
 // Screen is the screen shown.
 func (a *App) Screen() Screen { return a.screen }
 
@@ -104,7 +111,6 @@ func (a *App) HelpOpen() bool { return a.help }
 
 // Theme is the theme in use.
 func (a *App) Theme() *theme.Theme { return a.th }
-
 
 // Run drives a window until it closes.
 func (a *App) Run(w *app.Window) error {
@@ -148,8 +154,16 @@ func (a *App) Layout(gtx layout.Context) []Action {
 			if !a.cfg.Demo {
 				return layout.Dimensions{}
 			}
+			if a.startOwn.Clicked(gtx) {
+				acts = append(acts, StartOwnStore{})
+			}
+			if a.cfg.StartOwn == nil {
+				return kit.Banner{Th: th, Title: "DEMO DATA",
+					Text: "Invented yards, bales and pulls, for trying the app. Your own records: start baleassay without --demo (or with --store FOLDER)."}.Layout(gtx, nil)
+			}
 			return kit.Banner{Th: th, Title: "DEMO DATA",
-				Text: "Invented yards, bales and pulls, for trying the app. Your own records: start baleassay without --demo (or with --store FOLDER)."}.Layout(gtx, nil)
+				Text: "You have no records of your own yet; these are invented yards, bales and pulls."}.Layout(gtx,
+				kit.Button{Th: th, Click: &a.startOwn, Text: "Start my own records"}.Layout)
 		}),
 		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
 			d, ac := a.layoutBar(gtx)

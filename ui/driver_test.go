@@ -65,6 +65,22 @@ func (d *driver) press(name key.Name, mods key.Modifiers) []Action {
 	return append(acts, d.frame()...)
 }
 
+// pressChar presses a printable key as a real window does: the key event
+// first (a handler may move the focus), then the same character as text
+// for whichever editor holds the focus after that frame.
+func (d *driver) pressChar(name key.Name) []Action {
+	d.r.Queue(key.Event{Name: name, State: key.Press})
+	acts := d.frame()
+	if st := d.r.EditorState(); true {
+		s := st.Selection.Start
+		d.r.Queue(key.EditEvent{Range: key.Range{Start: s, End: st.Selection.End}, Text: strings.ToLower(string(name))},
+			key.SelectionEvent{Start: s + 1, End: s + 1})
+	}
+	d.r.Queue(key.Event{Name: name, State: key.Release})
+	acts = append(acts, d.frame()...)
+	return append(acts, d.frame()...)
+}
+
 // typeText types s into the focused editor one character at a time, as
 // the window's input method does.
 func (d *driver) typeText(s string) {

@@ -15,16 +15,16 @@ import (
 // intakeScreen: a new bale for a site — gross mass, sides with the
 // density, tag, the grader and the spec to grade against.
 type intakeScreen struct {
-	site                  record.EntityID
-	siteName              string
-	gross, l, w, h        *kit.Field
-	tag, grader           *kit.Field
-	spec                  string
-	specBtns              map[string]*widget.Clickable
-	saveBtn, anywayBtn    widget.Clickable
-	chooseSite            widget.Clickable
-	checks                []desk.Check // a save asked to confirm these
-	problem               string       // a save was refused: why
+	site               record.EntityID
+	siteName           string
+	gross, l, w, h     *kit.Field
+	tag, grader        *kit.Field
+	spec               string
+	specBtns           map[string]*widget.Clickable
+	saveBtn, anywayBtn widget.Clickable
+	chooseSite         widget.Clickable
+	checks             []desk.Check // a save asked to confirm these
+	problem            string       // a save was refused: why
 }
 
 func newIntakeScreen() *intakeScreen {

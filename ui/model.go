@@ -261,6 +261,29 @@ func (a *App) applyData(act Action) {
 		})
 	case CancelImport:
 		a.m.imported.Cancel()
+	case StartOwnStore:
+		if a.cfg.StartOwn == nil {
+			return
+		}
+		open := a.cfg.StartOwn
+		a.owner.do(func() {
+			nd, err := open()
+			a.in.post(func() {
+				if err != nil {
+					a.m.note = "Could not start your own records: " + errText(err)
+					return
+				}
+				old := a.cfg.Desk
+				a.cfg.Desk, a.cfg.Demo, a.cfg.StartOwn = nd, false, nil
+				a.m = model{}
+				a.tally.reset()
+				a.intake.setSite(record.EntityID{}, "")
+				a.owner.do(func() { old.Close() })
+				a.start()
+				a.m.note = "Your own records are at " + nd.Dir() + ". Add a site with the bale command line (bale sites add) to begin."
+				a.goTo(ScreenSites)
+			})
+		})
 	case TrustSigner:
 		a.m.trusted.Start(a.owner.do, &a.in, func(context.Context) (string, error) {
 			_, _, err := d.TrustAdd(act.File, act.Name)

@@ -76,14 +76,19 @@ func (s *sitesScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimen
 // columns lays two panes side by side, or one above the other when the
 // window is narrow (portrait).
 func columns(gtx layout.Context, th *theme.Theme, left, right layout.Widget) layout.Dimensions {
+	return columnsW(gtx, 0.45, left, right)
+}
+
+// columnsW is columns with the left pane's share of the width.
+func columnsW(gtx layout.Context, share float32, left, right layout.Widget) layout.Dimensions {
 	if gtx.Constraints.Max.X < gtx.Dp(1000) {
 		return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
 			layout.Flexed(1, left), vgap(12), layout.Flexed(1, right))
 	}
 	return layout.Flex{}.Layout(gtx,
-		layout.Flexed(0.45, left),
+		layout.Flexed(share, left),
 		layout.Rigid(layout.Spacer{Width: 16}.Layout),
-		layout.Flexed(0.55, right))
+		layout.Flexed(1-share, right))
 }
 
 func (s *sitesScreen) find() []Action {

@@ -3,6 +3,7 @@ package ui
 import (
 	"fmt"
 	"strconv"
+	"strings"
 
 	"gioui.org/io/event"
 	"gioui.org/io/key"
@@ -67,6 +68,7 @@ type tallyScreen struct {
 	anywayBtn widget.Clickable
 	correct   clicks
 	list      widget.List
+	btnList   widget.List
 	lastDraft string // the draft last sent, to send only changes
 }
 
@@ -74,6 +76,7 @@ func newTallyScreen() *tallyScreen {
 	s := &tallyScreen{pullMass: kit.NewField(), frac: kit.NewField(), correct: clicks{},
 		catBtns: make([]widget.Clickable, assess.NumCategories())}
 	s.list.Axis = layout.Vertical
+	s.btnList.Axis = layout.Vertical
 	return s
 }
 
@@ -135,7 +138,7 @@ func (s *tallyScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimen
 			layout.Rigid(title(a.th, "Tally pulls")), vgap(12),
 			layout.Rigid(body(a.th, "No bale yet: receive one first (Ctrl+2), or open one from its site (Ctrl+1).")))
 	}
-	if s.label == "" {
+	if s.label == "" && a.m.pulls.Has && !a.m.pulls.Busy {
 		s.label = nextLabel(a.m.pulls.Value)
 	}
 	acts := s.update(gtx, a)
@@ -162,13 +165,7 @@ func (s *tallyScreen) update(gtx layout.Context, a *App) []Action {
 			break
 		}
 		if _, ok := e.(widget.SubmitEvent); ok {
-			if _, err := desk.ParseMass(s.pullMass.Text(), u); err != nil {
-				s.pullMass.Problem = errText(err)
-			} else {
-				s.pullMass.Problem = ""
-				s.step = stepPick
-				gtx.Execute(key.FocusCmd{Tag: &s.keyTag})
-			}
+			s.confirmPullMass(gtx, u)
 		}
 	}
 	for {
@@ -188,6 +185,22 @@ func (s *tallyScreen) update(gtx layout.Context, a *App) []Action {
 		}
 		e, ok := ev.(key.Event)
 		if !ok || e.State != key.Press {
+			continue
+		}
+		switch s.step {
+		case stepPullMass:
+			if e.Name == key.NameReturn || e.Name == key.NameEnter {
+				s.confirmPullMass(gtx, u)
+			} else {
+				typeKey(s.pullMass, e.Name)
+			}
+			continue
+		case stepFraction:
+			if e.Name == key.NameReturn || e.Name == key.NameEnter {
+				s.addFraction(gtx, u)
+			} else {
+				typeKey(s.frac, e.Name)
+			}
 			continue
 		}
 		switch e.Name {
@@ -233,14 +246,36 @@ func (s *tallyScreen) update(gtx layout.Context, a *App) []Action {
 	return acts
 }
 
-func (s *tallyScreen) focusTarget() event.Tag {
-	switch s.step {
-	case stepFraction:
-		return &s.frac.Editor
-	case stepPick:
-		return &s.keyTag
+func (s *tallyScreen) focusTarget() event.Tag { return &s.keyTag }
+
+// typeKey types a key into a field the tally fills itself. The tally
+// keeps the keyboard focus through a whole pull and reads keys, not text:
+// a key that changes the step can then never arrive a second time as text
+// in the next field, however fast the keys come.
+func typeKey(f *kit.Field, n key.Name) {
+	t := f.Text()
+	switch {
+	case n == key.NameDeleteBackward:
+		if len(t) > 0 {
+			t = t[:len(t)-1]
+		}
+	case len(n) == 1 && strings.ContainsAny(string(n), "0123456789.,+"):
+		t += string(n)
+	default:
+		return
 	}
-	return &s.pullMass.Editor
+	f.SetText(t)
+}
+
+// confirmPullMass checks the pull's mass and goes on to the fractions.
+func (s *tallyScreen) confirmPullMass(gtx layout.Context, u desk.Unit) {
+	if _, err := desk.ParseMass(s.pullMass.Text(), u); err != nil {
+		s.pullMass.Problem = errText(err)
+		return
+	}
+	s.pullMass.Problem = ""
+	s.step = stepPick
+	gtx.Execute(key.FocusCmd{Tag: &s.keyTag})
 }
 
 // pick chooses the category of the next fraction and moves to its field.
@@ -248,14 +283,13 @@ func (s *tallyScreen) pick(gtx layout.Context, i int) {
 	if s.step == stepPullMass {
 		if _, err := desk.ParseMass(s.pullMass.Text(), desk.UnitKg); err != nil {
 			s.pullMass.Problem = "Weigh the pull first and type its mass here; then choose the categories."
-			gtx.Execute(key.FocusCmd{Tag: &s.pullMass.Editor})
 			return
 		}
 	}
 	s.cat, s.step = i, stepFraction
 	s.frac.SetText("")
 	s.frac.Problem = ""
-	gtx.Execute(key.FocusCmd{Tag: &s.frac.Editor})
+	gtx.Execute(key.FocusCmd{Tag: &s.keyTag})
 }
 
 // addFraction adds the typed mass to the chosen category.

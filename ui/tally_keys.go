@@ -63,6 +63,9 @@ func tallyFilters(tag event.Tag) []event.Filter {
 	for _, k := range tallyKeys {
 		fs = append(fs, key.Filter{Focus: tag, Name: k.Key, Optional: key.ModShift})
 	}
+	for _, n := range []key.Name{"0", "8", "9", ".", ",", "+"} {
+		fs = append(fs, key.Filter{Focus: tag, Name: n, Optional: key.ModShift})
+	}
 	return fs
 }
 

@@ -54,7 +54,7 @@ func (s *tallyScreen) side(gtx layout.Context, a *App, p record.PullRecord) layo
 			return layout.Flex{}.Layout(gtx,
 				layout.Rigid(kit.Button{Th: th, Click: &s.saveBtn, Text: save, Hint: "Enter", Role: kit.RolePrimary, Disabled: !ready}.Layout),
 				layout.Rigid(kit.Gap(kit.SpacingDp)),
-				layout.Rigid(kit.Button{Th: th, Click: &s.undoBtn, Text: "Undo", Hint: "⌫", Disabled: len(s.entries) == 0}.Layout),
+				layout.Rigid(kit.Button{Th: th, Click: &s.undoBtn, Text: "Undo", Hint: "Bksp", Disabled: len(s.entries) == 0}.Layout),
 				layout.Rigid(kit.Gap(kit.SpacingDp)),
 				layout.Rigid(kit.Button{Th: th, Click: &s.dropBtn, Text: "Discard", Disabled: len(s.entries) == 0 && p.StatedKg == 0}.Layout),
 			)

@@ -2,6 +2,7 @@ package ui
 
 import (
 	"fmt"
+	"strings"
 
 	"gioui.org/layout"
 	"gioui.org/unit"
@@ -73,13 +74,14 @@ func (s *tallyScreen) fields(gtx layout.Context, a *App) layout.Dimensions {
 		fracLabel = shortName(assess.CategoryAt(s.cat)) + ": mass (" + u + ")"
 	}
 	return layout.Flex{Alignment: layout.Start}.Layout(gtx,
-		layout.Rigid(kit.FieldStyle{Th: th, F: s.pullMass, Label: "Pull " + s.label + ", weighed (" + u + ")", Unit: u, Width: 160}.Layout),
+		layout.Rigid(kit.FieldStyle{Th: th, F: s.pullMass, Label: "Pull " + s.label + ", weighed (" + u + ")", Unit: u, Width: 160,
+			Active: s.step == stepPullMass && gtx.Focused(&s.keyTag)}.Layout),
 		layout.Rigid(layout.Spacer{Width: 24}.Layout),
 		layout.Flexed(1, func(gtx layout.Context) layout.Dimensions {
 			if s.step != stepFraction {
 				return layout.Dimensions{}
 			}
-			return kit.FieldStyle{Th: th, F: s.frac, Label: fracLabel, Unit: u, Width: 160}.Layout(gtx)
+			return kit.FieldStyle{Th: th, F: s.frac, Label: fracLabel, Unit: u, Width: 160, Active: s.step == stepFraction && gtx.Focused(&s.keyTag)}.Layout(gtx)
 		}),
 	)
 }
@@ -111,7 +113,7 @@ func (s *tallyScreen) buttons(gtx layout.Context, a *App, p record.PullRecord) l
 			layout.Rigid(kit.Text{Th: th, Text: g.String(), Bold: true, Color: th.Pal.Muted, Size: theme.SizeSmall + 1}.Layout),
 			vgap(2),
 			layout.Rigid(func(gtx layout.Context) layout.Dimensions {
-				return grid(gtx, len(idx), 200, func(gtx layout.Context, j int) layout.Dimensions {
+				return grid(gtx, len(idx), 150, func(gtx layout.Context, j int) layout.Dimensions {
 					i := idx[j]
 					c := assess.CategoryAt(i)
 					role := kit.RoleNormal
@@ -122,12 +124,24 @@ func (s *tallyScreen) buttons(gtx layout.Context, a *App, p record.PullRecord) l
 					if kg := p.Kg[c.Key]; kg > 0 {
 						sub = mass(a.cfg.Unit, kg, 2)
 					}
-					return kit.Button{Th: th, Click: &s.catBtns[i], Text: shortName(c), Sub: sub, Hint: string(keyOfCategory(c.Key)), Role: role}.Layout(gtx)
+					return kit.Button{Th: th, Click: &s.catBtns[i], Text: tallyName(c), Sub: sub, Hint: string(keyOfCategory(c.Key)), Role: role}.Layout(gtx)
 				})
 			}),
 			vgap(6))
 	}
-	return layout.Flex{Axis: layout.Vertical}.Layout(gtx, kids...)
+	return s.btnList.Layout(gtx, 1, func(gtx layout.Context, _ int) layout.Dimensions {
+		return layout.Flex{Axis: layout.Vertical}.Layout(gtx, kids...)
+	})
+}
+
+// tallyName is a category's name on its button: "PET clear" rather than
+// "PET bottles, clear".
+func tallyName(c assess.Category) string {
+	n := shortName(c)
+	if rest, ok := strings.CutPrefix(n, "PET bottles, "); ok {
+		return "PET " + rest
+	}
+	return n
 }
 
 // grid lays n cells in rows of as many columns of at least minDp as fit,

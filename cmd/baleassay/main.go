@@ -72,7 +72,16 @@ func main() {
 		fmt.Fprintln(os.Stderr, "baleassay:", err)
 		os.Exit(2)
 	}
-	cfg := ui.Config{Scale: float32(o.scale), Demo: o.demo}
+	st, err := openStore(o)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "baleassay:", err)
+		os.Exit(1)
+	}
+	defer st.d.Close()
+	cfg := ui.Config{Desk: st.d, Scale: float32(o.scale), Demo: st.demo}
+	if st.noOwn {
+		cfg.StartOwn = startOwn
+	}
 	if o.contrast {
 		cfg.Mode = theme.HighContrast
 	}
@@ -87,6 +96,7 @@ func main() {
 		w.Option(app.Title("baleassay"), app.Size(unit.Dp(o.w), unit.Dp(o.h)))
 		err := a.Run(w)
 		a.Close()
+		a.Desk().Close()
 		if err != nil {
 			fmt.Fprintln(os.Stderr, "baleassay:", err)
 			os.Exit(1)

@@ -49,6 +49,9 @@ type FieldStyle struct {
 	Unit  string // "kg", "m", "°"; shown right of the box
 	Hint  string // grey text in an empty box
 	Width unit.Dp
+	// Active draws the focus ring although the editor is not focused: a
+	// screen that types into the field itself (the tally) sets it.
+	Active bool
 }
 
 // Layout draws the field.
@@ -68,7 +71,7 @@ func (s FieldStyle) Layout(gtx layout.Context) layout.Dimensions {
 			border, bw = th.Pal.Error, gtx.Dp(3)
 		}
 		Outline(gtx, border, sz, r, bw)
-		if gtx.Focused(&s.F.Editor) {
+		if s.Active || gtx.Focused(&s.F.Editor) {
 			FocusRing(gtx, th, sz, r)
 		}
 		layout.Inset{Left: 10, Right: 10}.Layout(gtx, func(gtx layout.Context) layout.Dimensions {

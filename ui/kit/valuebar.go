@@ -54,7 +54,7 @@ func (v ValueBar) Layout(gtx layout.Context) layout.Dimensions {
 			gtx.Constraints.Min = image.Pt(gtx.Dp(vw), gtx.Dp(32))
 			gtx.Constraints.Max.X = gtx.Dp(vw)
 			return layout.Inset{Left: 10}.Layout(gtx, func(gtx layout.Context) layout.Dimensions {
-				return layout.W.Layout(gtx, Text{Th: th, Text: v.Value, Color: th.Pal.Text, Bold: v.Emphase, Mono: true, MaxLines: 2}.Layout)
+				return layout.W.Layout(gtx, Text{Th: th, Text: v.Value, Color: th.Pal.Text, Bold: v.Emphase, MaxLines: 2}.Layout)
 			})
 		}),
 	)
