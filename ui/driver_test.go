@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"gioui.org/f32"
+	"gioui.org/io/event"
 	"gioui.org/io/input"
 	"gioui.org/io/key"
 	"gioui.org/io/pointer"
@@ -94,6 +95,12 @@ func (d *driver) typeText(s string) {
 	}
 }
 
+// focus gives the keyboard focus to a tag (an editor), as a click would.
+func (d *driver) focus(tag event.Tag) {
+	d.r.Source().Execute(key.FocusCmd{Tag: tag})
+	d.frame()
+}
+
 // tab moves the focus as the window does for Tab.
 func (d *driver) tab(back bool) {
 	dir := key.FocusForward
@@ -109,7 +116,13 @@ func (d *driver) tab(back bool) {
 // text, failing the test when there is none.
 func (d *driver) find(text string) image.Rectangle {
 	d.t.Helper()
-	for _, n := range d.r.AppendSemantics(nil) {
+	nodes := d.r.AppendSemantics(nil)
+	for _, n := range nodes {
+		if n.Desc.Label == text {
+			return n.Desc.Bounds
+		}
+	}
+	for _, n := range nodes {
 		if strings.Contains(n.Desc.Label, text) {
 			return n.Desc.Bounds
 		}

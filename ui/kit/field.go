@@ -6,6 +6,7 @@ import (
 	"gioui.org/io/semantic"
 	"gioui.org/layout"
 	"gioui.org/op"
+	"gioui.org/op/clip"
 	"gioui.org/unit"
 	"gioui.org/widget"
 	"gioui.org/widget/material"
@@ -65,6 +66,8 @@ func (s FieldStyle) Layout(gtx layout.Context) layout.Dimensions {
 		gtx.Constraints = layout.Exact(image.Pt(width, gtx.Dp(TargetDp)))
 		sz := gtx.Constraints.Min
 		r := gtx.Dp(4)
+		defer clip.Rect{Max: sz}.Push(gtx.Ops).Pop()
+		semantic.LabelOp(s.Label).Add(gtx.Ops)
 		Fill(gtx, th.Pal.Surface, sz, r)
 		border, bw := th.Pal.Border, gtx.Dp(1.5)
 		if s.F.Problem != "" {
@@ -99,7 +102,6 @@ func (s FieldStyle) Layout(gtx layout.Context) layout.Dimensions {
 	problem := func(gtx layout.Context) layout.Dimensions {
 		return Problem{Th: th, Text: s.F.Problem}.Layout(gtx)
 	}
-	semantic.LabelOp(s.Label).Add(gtx.Ops)
 	return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
 		layout.Rigid(Text{Th: th, Text: s.Label, Color: th.Pal.Text, Size: theme.SizeLabel}.Layout),
 		layout.Rigid(layout.Spacer{Height: 4}.Layout),
