@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"time"
 
 	"baleassay/data/demo"
 	"baleassay/data/store"
@@ -15,6 +16,9 @@ type DemoOptions struct {
 	Weeks int    // 1 to 52
 	Seed  uint64
 	Force bool // replace an existing demo store
+	// End is the scenario's last day (today when zero); tests and
+	// reference images fix it.
+	End time.Time
 }
 
 // MakeDemo writes the invented demo scenario into a store of its own. A
@@ -59,7 +63,7 @@ func MakeDemo(o DemoOptions) (string, demo.DemoSummary, error) {
 		return dir, sum, err
 	}
 	defer s.Close()
-	sum, err = demo.WriteDemo(s, demo.DemoOptions{Weeks: o.Weeks, Seed: o.Seed})
+	sum, err = demo.WriteDemo(s, demo.DemoOptions{Weeks: o.Weeks, Seed: o.Seed, End: o.End})
 	if err != nil {
 		return dir, sum, fmt.Errorf("the demo scenario was not written: %w", err)
 	}
