@@ -49,6 +49,7 @@ type App struct {
 	tabs      [numScreens]widget.Clickable
 	helpBtn   widget.Clickable
 	modeBtn   widget.Clickable
+	modeBtn2  widget.Clickable
 	scaleBtn  widget.Clickable
 	unitBtn   widget.Clickable
 	closeHelp widget.Clickable
@@ -177,7 +178,6 @@ func (a *App) Layout(gtx layout.Context) []Action {
 				return d
 			})
 		}),
-		layout.Rigid(a.layoutFooter),
 	)
 	if a.help {
 		acts = append(acts, a.layoutHelp(gtx)...)

@@ -28,7 +28,7 @@ func (a *App) layoutBar(gtx layout.Context) (layout.Dimensions, []Action) {
 	if a.helpBtn.Clicked(gtx) {
 		acts = append(acts, ToggleHelp{})
 	}
-	if a.modeBtn.Clicked(gtx) {
+	if a.modeBtn.Clicked(gtx) || a.modeBtn2.Clicked(gtx) {
 		acts = append(acts, SetMode{Mode: otherMode(th.Mode)})
 	}
 	if a.scaleBtn.Clicked(gtx) {
@@ -45,7 +45,7 @@ func (a *App) layoutBar(gtx layout.Context) (layout.Dimensions, []Action) {
 		}
 		acts = append(acts, SetMassUnit{Unit: u})
 	}
-	wide := gtx.Constraints.Max.X >= gtx.Dp(1150)
+	wide := gtx.Constraints.Max.X >= gtx.Dp(1500)
 	m := op.Record(gtx.Ops)
 	dims := layout.Inset{Left: 12, Right: 12, Top: 8, Bottom: 8}.Layout(gtx, func(gtx layout.Context) layout.Dimensions {
 		var kids []layout.FlexChild
@@ -64,7 +64,14 @@ func (a *App) layoutBar(gtx layout.Context) (layout.Dimensions, []Action) {
 		kids = append(kids, layout.Flexed(1, func(gtx layout.Context) layout.Dimensions {
 			return layout.Dimensions{Size: image.Pt(gtx.Constraints.Min.X, 0)}
 		}))
-		kids = append(kids, layout.Rigid(kit.Button{Th: th, Click: &a.helpBtn, Text: "Keys", Hint: "F1"}.Layout))
+		contrast := "Sunlight: off"
+		if th.Mode == theme.HighContrast {
+			contrast = "Sunlight: on"
+		}
+		kids = append(kids,
+			layout.Rigid(kit.Button{Th: th, Click: &a.modeBtn, Text: contrast, Hint: hintIf(wide, "Ctrl+H")}.Layout),
+			layout.Rigid(kit.Gap(kit.SpacingDp)),
+			layout.Rigid(kit.Button{Th: th, Click: &a.helpBtn, Text: "Keys, settings", Hint: "F1"}.Layout))
 		return layout.Flex{Alignment: layout.Middle}.Layout(gtx, kids...)
 	})
 	call := m.Stop()
@@ -77,37 +84,45 @@ func (a *App) layoutBar(gtx layout.Context) (layout.Dimensions, []Action) {
 	return dims, acts
 }
 
-// layoutFooter draws the settings strip at the bottom: mass unit,
-// sunlight colours, text size, and where the records are.
-func (a *App) layoutFooter(gtx layout.Context) layout.Dimensions {
+// settingsRow is the settings in the help overlay: mass unit, sunlight
+// colours, text size, and where the records are.
+func (a *App) settingsRow(gtx layout.Context) layout.Dimensions {
 	th := a.th
 	contrast := "Sunlight colours: off"
 	if th.Mode == theme.HighContrast {
 		contrast = "Sunlight colours: on"
 	}
-	m := op.Record(gtx.Ops)
-	dims := layout.Inset{Left: 12, Right: 12, Top: 6, Bottom: 6}.Layout(gtx, func(gtx layout.Context) layout.Dimensions {
-		return layout.Flex{Alignment: layout.Middle}.Layout(gtx,
-			layout.Rigid(kit.Button{Th: th, Click: &a.unitBtn, Text: "Masses in " + a.cfg.Unit.String()}.Layout),
-			layout.Rigid(kit.Gap(kit.SpacingDp)),
-			layout.Rigid(kit.Button{Th: th, Click: &a.modeBtn, Text: contrast, Hint: "Ctrl+H"}.Layout),
-			layout.Rigid(kit.Gap(kit.SpacingDp)),
-			layout.Rigid(kit.Button{Th: th, Click: &a.scaleBtn, Text: "Text size " + theme.ScaleLabel(th.Scale)}.Layout),
-			layout.Rigid(kit.Gap(kit.SpacingDp)),
-			layout.Flexed(1, kit.Text{Th: th, Text: a.storeNote(), Color: th.Pal.Muted, Size: theme.SizeSmall, MaxLines: 2}.Layout),
-		)
-	})
-	call := m.Stop()
-	kit.Fill(gtx, th.Pal.Surface, dims.Size, 0)
-	kit.Fill(gtx, th.Pal.Border, image.Pt(dims.Size.X, gtx.Dp(2)), 0)
-	call.Add(gtx.Ops)
-	return dims
+	return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
+		layout.Rigid(kit.Text{Th: th, Text: "Settings", Size: theme.SizeTitle - 4, Bold: true, Color: th.Pal.Text}.Layout),
+		vgap(6),
+		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
+			return layout.Flex{Alignment: layout.Middle}.Layout(gtx,
+				layout.Rigid(kit.Button{Th: th, Click: &a.unitBtn, Text: "Masses in " + a.cfg.Unit.String()}.Layout),
+				layout.Rigid(kit.Gap(kit.SpacingDp)),
+				layout.Rigid(kit.Button{Th: th, Click: &a.modeBtn2, Text: contrast, Hint: "Ctrl+H"}.Layout),
+				layout.Rigid(kit.Gap(kit.SpacingDp)),
+				layout.Rigid(kit.Button{Th: th, Click: &a.scaleBtn, Text: "Text size " + theme.ScaleLabel(th.Scale)}.Layout))
+		}),
+		vgap(6),
+		layout.Rigid(kit.Text{Th: th, Text: a.storeNote(), Color: th.Pal.Muted, Size: theme.SizeSmall}.Layout),
+		vgap(12),
+	)
+}
+
+func hintIf(ok bool, h string) string {
+	if ok {
+		return h
+	}
+	return ""
 }
 
 // storeNote says which records the app shows.
 func (a *App) storeNote() string {
-	if a.cfg.Desk == nil {
+	switch {
+	case a.cfg.Desk == nil:
 		return ""
+	case a.cfg.Demo:
+		return "Records: the demo store (invented data)."
 	}
 	return "Records: " + a.cfg.Desk.Dir()
 }
@@ -145,14 +160,17 @@ func (a *App) layoutHelp(gtx layout.Context) []Action {
 			return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
 				layout.Rigid(func(gtx layout.Context) layout.Dimensions {
 					return layout.Flex{Alignment: layout.Middle}.Layout(gtx,
-						layout.Flexed(1, kit.Text{Th: th, Text: "Keys", Size: theme.SizeTitle, Bold: true, Color: th.Pal.Text}.Layout),
+						layout.Flexed(1, kit.Text{Th: th, Text: "Keys and settings", Size: theme.SizeTitle, Bold: true, Color: th.Pal.Text}.Layout),
 						layout.Rigid(kit.Button{Th: th, Click: &a.closeHelp, Text: "Close", Hint: "Esc"}.Layout),
 					)
 				}),
 				layout.Rigid(kit.Gap(kit.SpacingDp)),
 				layout.Flexed(1, func(gtx layout.Context) layout.Dimensions {
-					return material.List(th.Material(), &a.helpList).Layout(gtx, len(rows), func(gtx layout.Context, i int) layout.Dimensions {
-						r := rows[i]
+					return material.List(th.Material(), &a.helpList).Layout(gtx, len(rows)+1, func(gtx layout.Context, i int) layout.Dimensions {
+						if i == 0 {
+							return a.settingsRow(gtx)
+						}
+						r := rows[i-1]
 						return layout.Inset{Bottom: 6}.Layout(gtx, func(gtx layout.Context) layout.Dimensions {
 							return layout.Flex{}.Layout(gtx,
 								layout.Rigid(func(gtx layout.Context) layout.Dimensions {

@@ -37,7 +37,7 @@ func (s *tallyScreen) side(gtx layout.Context, a *App, p record.PullRecord) layo
 			var kids []layout.FlexChild
 			for i := len(s.entries) - 1; i >= 0 && i >= len(s.entries)-6; i-- {
 				e := s.entries[i]
-				kids = append(kids, layout.Rigid(kit.Text{Th: th, Text: fmt.Sprintf("%s  %s", mass(u, e.kg, 2), shortName(assess.CategoryAt(e.cat))), Color: th.Pal.Text, Mono: true, MaxLines: 1}.Layout))
+				kids = append(kids, layout.Rigid(kit.Text{Th: th, Text: fmt.Sprintf("%s  %s", mass(u, e.kg, 2), tallyName(assess.CategoryAt(e.cat))), Color: th.Pal.Text, MaxLines: 1}.Layout))
 			}
 			if len(s.entries) > 6 {
 				kids = append(kids, layout.Rigid(muted(th, fmt.Sprintf("… and %d earlier", len(s.entries)-6))))
@@ -54,7 +54,7 @@ func (s *tallyScreen) side(gtx layout.Context, a *App, p record.PullRecord) layo
 			return layout.Flex{}.Layout(gtx,
 				layout.Rigid(kit.Button{Th: th, Click: &s.saveBtn, Text: save, Hint: "Enter", Role: kit.RolePrimary, Disabled: !ready}.Layout),
 				layout.Rigid(kit.Gap(kit.SpacingDp)),
-				layout.Rigid(kit.Button{Th: th, Click: &s.undoBtn, Text: "Undo", Hint: "Bksp", Disabled: len(s.entries) == 0}.Layout),
+				layout.Rigid(kit.Button{Th: th, Click: &s.undoBtn, Text: "Undo", Disabled: len(s.entries) == 0}.Layout),
 				layout.Rigid(kit.Gap(kit.SpacingDp)),
 				layout.Rigid(kit.Button{Th: th, Click: &s.dropBtn, Text: "Discard", Disabled: len(s.entries) == 0 && p.StatedKg == 0}.Layout),
 			)
@@ -83,12 +83,12 @@ func (s *tallyScreen) side(gtx layout.Context, a *App, p record.PullRecord) layo
 				r := rows[len(rows)-1-i]
 				txt := fmt.Sprintf("%s  %s sorted", r.Pull.Label, mass(u, r.PartsKg(), 2))
 				if r.Pull.StatedKg > 0 {
-					txt += fmt.Sprintf(", %s weighed", mass(u, r.Pull.StatedKg, 2))
+					txt = fmt.Sprintf("%s  %s of %s sorted", r.Pull.Label, mass(u, r.PartsKg(), 2), mass(u, r.Pull.StatedKg, 2))
 				}
 				c := s.correct.of(r.ID)
 				return layout.Inset{Bottom: 6}.Layout(gtx, func(gtx layout.Context) layout.Dimensions {
 					return layout.Flex{Alignment: layout.Middle}.Layout(gtx,
-						layout.Flexed(1, kit.Text{Th: th, Text: txt, Color: th.Pal.Text, Size: theme.SizeBody, MaxLines: 1}.Layout),
+						layout.Flexed(1, kit.Text{Th: th, Text: txt, Color: th.Pal.Text, Size: theme.SizeSmall + 1, MaxLines: 2}.Layout),
 						layout.Rigid(kit.Button{Th: th, Click: c, Text: "Correct " + r.Pull.Label}.Layout))
 				})
 			})

@@ -42,10 +42,10 @@ func (s *tallyScreen) layout(gtx layout.Context, a *App) layout.Dimensions {
 	right := func(gtx layout.Context) layout.Dimensions { return s.side(gtx, a, p) }
 	if gtx.Constraints.Max.X < gtx.Dp(1000) {
 		return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
-			layout.Flexed(0.68, left), vgap(8), layout.Flexed(0.32, right))
+			layout.Flexed(0.7, left), vgap(8), layout.Flexed(0.3, right))
 	}
 	return layout.Flex{}.Layout(gtx,
-		layout.Flexed(0.66, left), layout.Rigid(layout.Spacer{Width: 16}.Layout), layout.Flexed(0.34, right))
+		layout.Flexed(0.7, left), layout.Rigid(layout.Spacer{Width: 16}.Layout), layout.Flexed(0.3, right))
 }
 
 // guide says, in one sentence, what to do now.
@@ -91,7 +91,7 @@ func (s *tallyScreen) sums(gtx layout.Context, a *App, p record.PullRecord) layo
 	th := a.th
 	u := a.cfg.Unit
 	row := desk.PullRow{Pull: p}
-	txt := fmt.Sprintf("Sorted so far: %s in %d fractions", mass(u, row.PartsKg(), 2), len(s.entries))
+	txt := fmt.Sprintf("Sorted so far: %s in %s", mass(u, row.PartsKg(), 2), desk.Plural(len(s.entries), "fraction", "fractions"))
 	if p.StatedKg > 0 {
 		txt += fmt.Sprintf(" · unsorted remainder: %s of the %s weighed", mass(u, row.RemainderKg(), 2), mass(u, p.StatedKg, 2))
 	}
@@ -102,6 +102,13 @@ func (s *tallyScreen) sums(gtx layout.Context, a *App, p record.PullRecord) layo
 func (s *tallyScreen) buttons(gtx layout.Context, a *App, p record.PullRecord) layout.Dimensions {
 	th := a.th
 	var kids []layout.FlexChild
+	// sections of buttons: each group, the last two (moisture and fines,
+	// hazards: three buttons) sharing a row
+	type section struct {
+		name string
+		idx  []int
+	}
+	var secs []section
 	for _, g := range assess.Groups() {
 		var idx []int
 		for i := 0; i < assess.NumCategories(); i++ {
@@ -109,34 +116,54 @@ func (s *tallyScreen) buttons(gtx layout.Context, a *App, p record.PullRecord) l
 				idx = append(idx, i)
 			}
 		}
+		if g == assess.GroupHazards && len(secs) > 0 {
+			last := &secs[len(secs)-1]
+			last.name += " · " + g.String()
+			last.idx = append(last.idx, idx...)
+			continue
+		}
+		secs = append(secs, section{g.String(), idx})
+	}
+	for _, sec := range secs {
+		idx := sec.idx
 		kids = append(kids,
-			layout.Rigid(kit.Text{Th: th, Text: g.String(), Bold: true, Color: th.Pal.Muted, Size: theme.SizeSmall + 1}.Layout),
-			vgap(2),
+			layout.Rigid(kit.Text{Th: th, Text: sec.name, Bold: true, Color: th.Pal.Muted, Size: theme.SizeSmall}.Layout),
 			layout.Rigid(func(gtx layout.Context) layout.Dimensions {
-				return grid(gtx, len(idx), 150, func(gtx layout.Context, j int) layout.Dimensions {
+				return grid(gtx, len(idx), 136, func(gtx layout.Context, j int) layout.Dimensions {
 					i := idx[j]
 					c := assess.CategoryAt(i)
 					role := kit.RoleNormal
 					if s.step == stepFraction && s.cat == i {
 						role = kit.RoleSelected
 					}
-					sub := "–"
+					sub := ""
 					if kg := p.Kg[c.Key]; kg > 0 {
 						sub = mass(a.cfg.Unit, kg, 2)
 					}
-					return kit.Button{Th: th, Click: &s.catBtns[i], Text: tallyName(c), Sub: sub, Hint: string(keyOfCategory(c.Key)), Role: role}.Layout(gtx)
+					return kit.Button{Th: th, Click: &s.catBtns[i], Text: tallyName(c), Sub: sub, Hint: string(keyOfCategory(c.Key)), Role: role, TextSize: theme.SizeLabel - 1}.Layout(gtx)
 				})
 			}),
-			vgap(6))
+			vgap(4))
 	}
 	return s.btnList.Layout(gtx, 1, func(gtx layout.Context, _ int) layout.Dimensions {
 		return layout.Flex{Axis: layout.Vertical}.Layout(gtx, kids...)
 	})
 }
 
+// buttonNames are the short names of the tally's buttons, where the
+// catalogue's name is too long for a button in gloves' reach.
+var buttonNames = map[string]string{
+	"pet_tinted": "PET tinted", "pet_colour_other": "PET other", "pet_opaque": "PET opaque",
+	"pet_thermoform": "PET trays", "other_resin": "Code 7", "closures": "Closures",
+	"labels": "Labels", "film": "Film, bags", "paper": "Paper", "liquid": "Liquid", "fines": "Fines, dirt",
+}
+
 // tallyName is a category's name on its button: "PET clear" rather than
 // "PET bottles, clear".
 func tallyName(c assess.Category) string {
+	if n, ok := buttonNames[c.Key]; ok {
+		return n
+	}
 	n := shortName(c)
 	if rest, ok := strings.CutPrefix(n, "PET bottles, "); ok {
 		return "PET " + rest

@@ -156,7 +156,7 @@ func (s *transferScreen) exportPane(gtx layout.Context, a *App) layout.Dimension
 		kids = append(kids, layout.Rigid(body(th, "Nothing new for this destination since the last export: no file written.")))
 	case ex.Has:
 		r := ex.Value
-		kids = append(kids, layout.Rigid(kit.Text{Th: th, Text: fmt.Sprintf("Wrote %d %s with %d records (%d bytes).", len(r.Files), desk.Plural(len(r.Files), "file", "files"), r.Events, r.Bytes), Bold: true, Color: th.Pal.Text}.Layout))
+		kids = append(kids, layout.Rigid(kit.Text{Th: th, Text: fmt.Sprintf("Wrote %s with %s (%d bytes).", desk.Plural(len(r.Files), "file", "files"), desk.Plural(r.Events, "record", "records"), r.Bytes), Bold: true, Color: th.Pal.Text}.Layout))
 		for _, f := range r.Files {
 			kids = append(kids, layout.Rigid(muted(th, f)))
 		}
@@ -228,7 +228,7 @@ func fileLine(th *theme.Theme, f transfer.FileReport) layout.Widget {
 	}
 	txt := fmt.Sprintf("%s: %d new, %d already here", name, f.New, f.Present)
 	if f.Conflicts > 0 {
-		txt += fmt.Sprintf(", %d %s to resolve", f.Conflicts, desk.Plural(f.Conflicts, "conflict", "conflicts"))
+		txt += ", " + desk.Plural(f.Conflicts, "conflict", "conflicts") + " to resolve"
 	}
 	if f.Replay {
 		txt += " (imported before: nothing to do)"

@@ -59,6 +59,7 @@ func (b Badge) Layout(gtx layout.Context) layout.Dimensions {
 	if word == "" {
 		word = map[BadgeKind]string{BadgePass: "PASS", BadgeFail: "FAIL", BadgeUndecided: "UNDECIDED"}[b.Kind]
 	}
+	gtx.Constraints.Min = image.Point{}
 	m := op.Record(gtx.Ops)
 	dims := layout.Inset{Top: 6, Bottom: 6, Left: 10, Right: 14}.Layout(gtx, func(gtx layout.Context) layout.Dimensions {
 		return layout.Flex{Alignment: layout.Middle}.Layout(gtx,

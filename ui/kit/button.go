@@ -36,6 +36,7 @@ type Button struct {
 	Role     Role
 	MinWidth unit.Dp
 	Disabled bool
+	TextSize float32 // sp at scale 1; 0 = body
 }
 
 // Layout draws the button and handles its input; read clicks with
@@ -76,10 +77,10 @@ func (b Button) Layout(gtx layout.Context) layout.Dimensions {
 			return layout.Center.Layout(gtx, func(gtx layout.Context) layout.Dimensions {
 				label := func(gtx layout.Context) layout.Dimensions {
 					if b.Sub == "" {
-						return Text{Th: b.Th, Text: b.Text, Color: fg, Bold: true, Alignment: text.Middle}.Layout(gtx)
+						return Text{Th: b.Th, Text: b.Text, Color: fg, Bold: true, Alignment: text.Middle, Size: b.TextSize}.Layout(gtx)
 					}
 					return layout.Flex{Axis: layout.Vertical, Alignment: layout.Middle}.Layout(gtx,
-						layout.Rigid(Text{Th: b.Th, Text: b.Text, Color: fg, Bold: true, Alignment: text.Middle}.Layout),
+						layout.Rigid(Text{Th: b.Th, Text: b.Text, Color: fg, Bold: true, Alignment: text.Middle, Size: b.TextSize}.Layout),
 						layout.Rigid(Text{Th: b.Th, Text: b.Sub, Color: fg, Size: theme.SizeSmall, Alignment: text.Middle}.Layout),
 					)
 				}
