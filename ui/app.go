@@ -205,13 +205,24 @@ func (a *App) layoutScreen(gtx layout.Context) ([]Action, layout.Dimensions) {
 func (a *App) globalKeys(gtx layout.Context) []Action {
 	var acts []Action
 	event.Op(gtx.Ops, a)
+	filters := globalFilters(a)
+	tally := a.screen == ScreenTally && !a.help && !a.tally.editing(gtx)
+	if tally {
+		// Keys typed before the tally took the focus (just after Ctrl+3)
+		// reach the root: hand them to the tally.
+		filters = append(filters, tallyRootFilters()...)
+	}
 	for {
-		ev, ok := gtx.Event(globalFilters(a)...)
+		ev, ok := gtx.Event(filters...)
 		if !ok {
 			break
 		}
 		e, ok := ev.(key.Event)
 		if !ok || e.State != key.Press {
+			continue
+		}
+		if tally && e.Modifiers&^key.ModShift == 0 && isTallyKey(e.Name) {
+			a.tally.early = append(a.tally.early, e)
 			continue
 		}
 		switch {

@@ -102,6 +102,7 @@ func (a *App) start() {
 				a.setBale(p.Bale)
 				a.tally.restore(p)
 				a.screen = ScreenTally
+				a.m.note = fmt.Sprintf("Pull %s was being typed when the app stopped: it is back as it was.", p.Label)
 			})
 			break
 		}
@@ -173,8 +174,7 @@ func computeOutcome(ctx context.Context, d *desk.Desk, bale record.EntityID) out
 func (a *App) goTo(s Screen) {
 	a.screen = s
 	a.help = false
-	if s == ScreenTransfer {
-		d := a.cfg.Desk
+	if d := a.cfg.Desk; s == ScreenTransfer && d != nil {
 		a.m.dests.Start(a.owner.do, &a.in, func(context.Context) ([]desk.Destination, error) { return d.Destinations() }, nil)
 	}
 	if s == ScreenTally {

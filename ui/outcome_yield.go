@@ -5,6 +5,7 @@ import (
 
 	"gioui.org/layout"
 
+	"baleassay/data/desk"
 	"baleassay/ui/kit"
 	"baleassay/ui/theme"
 	"baleassay/yield"
@@ -54,12 +55,12 @@ func yieldCard(gtx layout.Context, a *App, o outcome) layout.Dimensions {
 				layout.Flexed(1, kit.Text{Th: th, Text: f.spread, Color: th.Pal.Muted, Size: theme.SizeSmall}.Layout))
 		}))
 	}
-	kids = append(kids, vgap(4), layout.Rigid(muted(th, fmt.Sprintf("Band from %d Monte Carlo draws of the pulls and the line.", mc.Draws))))
-	flake := "clean flake: meets the flake spec at the estimate"
-	if !y.FlakePass {
-		flake = "clean flake: misses the flake spec at the estimate"
+	kids = append(kids, vgap(4), layout.Rigid(muted(th, fmt.Sprintf("P10–P90: the middle 80 %% of %s Monte Carlo draws of the pulls and the wash line.", desk.Num(float64(mc.Draws), 0)))))
+	if y.FlakePass {
+		kids = append(kids, layout.Rigid(body(th, "The clean flake meets the flake spec at the estimate.")))
+	} else {
+		kids = append(kids, layout.Rigid(kit.Problem{Th: th, Text: "The clean flake misses the flake spec at the estimate."}.Layout))
 	}
-	kids = append(kids, layout.Rigid(muted(th, flake)))
 	// glycolysis card
 	kids = append(kids, vgap(12), layout.Rigid(heading(th, fmt.Sprintf("Glycolysis with %s (%s)", g.Glycol.Name, g.Glycol.Key))))
 	card := []struct{ name, value string }{

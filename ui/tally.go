@@ -58,8 +58,9 @@ type tallyScreen struct {
 	taken    int64           // the pull's time, kept when correcting
 	corrects record.EntityID // a saved pull being corrected
 
-	focusFirst bool // move the focus to the step's control next frame
-	keyTag     bool // the tally's own key handler (its address is the tag)
+	focusFirst bool        // move the focus to the step's control next frame
+	early      []key.Event // tally keys that came before the tally had the focus
+	keyTag     bool        // the tally's own key handler (its address is the tag)
 
 	catBtns   []widget.Clickable
 	saveBtn   widget.Clickable
@@ -178,41 +179,19 @@ func (s *tallyScreen) update(gtx layout.Context, a *App) []Action {
 		}
 	}
 	event.Op(gtx.Ops, &s.keyTag)
+	keys := s.early
+	s.early = nil
 	for {
 		ev, ok := gtx.Event(tallyFilters(&s.keyTag)...)
 		if !ok {
 			break
 		}
-		e, ok := ev.(key.Event)
-		if !ok || e.State != key.Press {
-			continue
+		if e, ok := ev.(key.Event); ok && e.State == key.Press {
+			keys = append(keys, e)
 		}
-		switch s.step {
-		case stepPullMass:
-			if e.Name == key.NameReturn || e.Name == key.NameEnter {
-				s.confirmPullMass(gtx, u)
-			} else {
-				typeKey(s.pullMass, e.Name)
-			}
-			continue
-		case stepFraction:
-			if e.Name == key.NameReturn || e.Name == key.NameEnter {
-				s.addFraction(gtx, u)
-			} else {
-				typeKey(s.frac, e.Name)
-			}
-			continue
-		}
-		switch e.Name {
-		case key.NameReturn, key.NameEnter:
-			acts = append(acts, s.save(a, false)...)
-		case key.NameDeleteBackward:
-			s.undo()
-		default:
-			if i, ok := categoryOfKey(e.Name); ok {
-				s.pick(gtx, i)
-			}
-		}
+	}
+	for _, e := range keys {
+		acts = append(acts, s.key(gtx, a, e)...)
 	}
 	for i := range s.catBtns {
 		if s.catBtns[i].Clicked(gtx) {
@@ -247,6 +226,44 @@ func (s *tallyScreen) update(gtx layout.Context, a *App) []Action {
 }
 
 func (s *tallyScreen) focusTarget() event.Tag { return &s.keyTag }
+
+// editing reports whether one of the tally's editors has the focus (the
+// user clicked into a field): then keys are the editor's.
+func (s *tallyScreen) editing(gtx layout.Context) bool {
+	return gtx.Focused(&s.pullMass.Editor) || gtx.Focused(&s.frac.Editor)
+}
+
+// key handles one key of the tally's own.
+func (s *tallyScreen) key(gtx layout.Context, a *App, e key.Event) []Action {
+	u := a.cfg.Unit
+	switch s.step {
+	case stepPullMass:
+		if e.Name == key.NameReturn || e.Name == key.NameEnter {
+			s.confirmPullMass(gtx, u)
+		} else {
+			typeKey(s.pullMass, e.Name)
+		}
+		return nil
+	case stepFraction:
+		if e.Name == key.NameReturn || e.Name == key.NameEnter {
+			s.addFraction(gtx, u)
+		} else {
+			typeKey(s.frac, e.Name)
+		}
+		return nil
+	}
+	switch e.Name {
+	case key.NameReturn, key.NameEnter:
+		return s.save(a, false)
+	case key.NameDeleteBackward:
+		s.undo()
+	default:
+		if i, ok := categoryOfKey(e.Name); ok {
+			s.pick(gtx, i)
+		}
+	}
+	return nil
+}
 
 // typeKey types a key into a field the tally fills itself. The tally
 // keeps the keyboard focus through a whole pull and reads keys, not text:

@@ -54,17 +54,37 @@ func shortName(c assess.Category) string {
 
 // tallyFilters are the keys the tally reads while it holds the focus.
 func tallyFilters(tag event.Tag) []event.Filter {
-	fs := []event.Filter{
-		key.FocusFilter{Target: tag},
-		key.Filter{Focus: tag, Name: key.NameReturn},
-		key.Filter{Focus: tag, Name: key.NameEnter},
-		key.Filter{Focus: tag, Name: key.NameDeleteBackward},
-	}
-	for _, k := range tallyKeys {
-		fs = append(fs, key.Filter{Focus: tag, Name: k.Key, Optional: key.ModShift})
-	}
-	for _, n := range []key.Name{"0", "8", "9", ".", ",", "+"} {
+	fs := []event.Filter{key.FocusFilter{Target: tag}}
+	for _, n := range tallyKeyNames() {
 		fs = append(fs, key.Filter{Focus: tag, Name: n, Optional: key.ModShift})
+	}
+	return fs
+}
+
+// tallyKeyNames are the names of every key the tally reads.
+func tallyKeyNames() []key.Name {
+	ns := []key.Name{key.NameReturn, key.NameEnter, key.NameDeleteBackward, "0", "8", "9", ".", ",", "+"}
+	for _, k := range tallyKeys {
+		ns = append(ns, k.Key)
+	}
+	return ns
+}
+
+// isTallyKey reports whether the tally reads a key.
+func isTallyKey(n key.Name) bool {
+	for _, k := range tallyKeyNames() {
+		if k == n {
+			return true
+		}
+	}
+	return false
+}
+
+// tallyRootFilters are the tally's keys for the app's root handler.
+func tallyRootFilters() []event.Filter {
+	var fs []event.Filter
+	for _, n := range tallyKeyNames() {
+		fs = append(fs, key.Filter{Name: n, Optional: key.ModShift})
 	}
 	return fs
 }
