@@ -1,7 +1,6 @@
 package ui
 
 import (
-	"fmt"
 	"strconv"
 	"strings"
 
@@ -70,7 +69,7 @@ type tallyScreen struct {
 	correct   clicks
 	list      widget.List
 	btnList   widget.List
-	lastDraft string // the draft last sent, to send only changes
+	lastDraft draftKey // what the draft last sent held, to send only changes
 }
 
 func newTallyScreen() *tallyScreen {
@@ -87,7 +86,7 @@ func (s *tallyScreen) reset() {
 	s.pullMass.SetText("")
 	s.frac.SetText("")
 	s.pullMass.Problem, s.frac.Problem = "", ""
-	s.lastDraft = ""
+	s.lastDraft = draftKey{}
 	s.focusFirst = true
 }
 
@@ -104,7 +103,7 @@ func (s *tallyScreen) restore(p record.PullRecord) {
 		s.pullMass.SetText(strconv.FormatFloat(p.StatedKg, 'f', -1, 64))
 		s.step = stepPick
 	}
-	s.lastDraft = fmt.Sprint(p)
+	s.lastDraft = s.key2()
 }
 
 // record is the pull as typed so far, in kg.
@@ -117,6 +116,22 @@ func (s *tallyScreen) record(a *App, u desk.Unit) record.PullRecord {
 		p.Kg[assess.CategoryAt(e.cat).Key] += e.kg
 	}
 	return p
+}
+
+// draftKey identifies what a draft holds without building it: the typed
+// mass, the label and the fractions (appended or undone one at a time).
+type draftKey struct {
+	mass, label string
+	n           int
+	last        entry
+}
+
+func (s *tallyScreen) key2() draftKey {
+	k := draftKey{mass: s.pullMass.Text(), label: s.label, n: len(s.entries)}
+	if k.n > 0 {
+		k.last = s.entries[k.n-1]
+	}
+	return k
 }
 
 // nextLabel is P1, P2, … after the bale's saved pulls.
@@ -143,9 +158,9 @@ func (s *tallyScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimen
 		s.label = nextLabel(a.m.pulls.Value)
 	}
 	acts := s.update(gtx, a)
-	if p := s.record(a, a.cfg.Unit); s.corrects.IsZero() && (len(p.Kg) > 0 || p.StatedKg > 0) {
-		if d := fmt.Sprint(p); d != s.lastDraft {
-			s.lastDraft = d
+	if k := s.key2(); k != s.lastDraft && s.corrects.IsZero() {
+		s.lastDraft = k
+		if p := s.record(a, a.cfg.Unit); len(p.Kg) > 0 || p.StatedKg > 0 {
 			acts = append(acts, KeepDraft{Bale: a.m.bale, Pull: p})
 		}
 	}
