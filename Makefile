@@ -5,7 +5,7 @@ GO ?= go
 
 # Fuzz targets run briefly in every `make test` (their committed seeds run
 # in plain `go test` too): package:target pairs.
-FUZZ_TARGETS = ./assess:FuzzReadPulls ./yield:FuzzReadLine ./yield:FuzzParsePolyol ./data/record:FuzzDecodeEvent ./data/transfer:FuzzBundleDecode ./data/transfer:FuzzImportBundle ./data/transfer:FuzzVerifySign1
+FUZZ_TARGETS = ./assess:FuzzReadPulls ./yield:FuzzReadLine ./yield:FuzzParsePolyol ./yield:FuzzReadPriceSheet ./data/record:FuzzDecodeEvent ./data/transfer:FuzzBundleDecode ./data/transfer:FuzzImportBundle ./data/transfer:FuzzVerifySign1
 FUZZTIME ?= 8s
 
 deps:

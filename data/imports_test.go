@@ -31,7 +31,7 @@ var allowed = map[string][]string{
 	"data/geo":              {"data/record"},
 	"data/store":            {"assess", "data/record", "data/geo"},
 	"data/transfer":         {"data/record", "data/store"},
-	"data/demo":             {"assess", "data/record", "data/store"},
+	"data/demo":             {"assess", "yield", "data/record", "data/store"},
 	"data/internal/testkit": {"data/record"},
 	"data/desk":             {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo"},
 	"data/publish":          {"assess", "yield", "data/record", "data/store"},

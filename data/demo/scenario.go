@@ -29,6 +29,7 @@ type DemoOptions struct {
 // DemoSummary says what WriteDemo made.
 type DemoSummary struct {
 	Sites, Bales, Pulls, Events int
+	Measured                    int // measured batches (the lab's, of the demo plant)
 	ConflictSite                record.EntityID
 	DeletedBale                 record.EntityID
 	YardDevice, LabDevice       record.DeviceID
@@ -128,6 +129,7 @@ func WriteDemo(s *store.Store, o DemoOptions) (DemoSummary, error) {
 		siteHeads[i] = h
 		sum.Sites++
 	}
+	var truths []baleTruth
 	graders := []string{"A. Okafor", "M. Lindqvist", "R. Duarte"}
 	tag := 4100
 	for day := start; day.Before(end); day = day.AddDate(0, 0, 1) {
@@ -152,6 +154,7 @@ func WriteDemo(s *store.Store, o DemoOptions) (DemoSummary, error) {
 			}
 			sum.Bales++
 			comp := demoComposition(r, d.dirt)
+			truths = append(truths, baleTruth{id: bale, site: si, rx: rx, kg: round2(gross), share: comp})
 			for p, n := 0, 4+r.IntN(3); p < n; p++ {
 				at := rx.Add(time.Duration(20+10*p) * time.Minute)
 				pull := demoPull(r, comp, d.dirt)
@@ -187,6 +190,9 @@ func WriteDemo(s *store.Store, o DemoOptions) (DemoSummary, error) {
 	}
 	if _, err := add(record.Event{Entity: siteIDs[c], Kind: record.KindSite, Device: lab, Clock: ms(t2), Supersedes: []record.EventID{siteHeads[c]},
 		Site: &record.SiteRecord{Name: d.name + " (north gate)", Kind: d.kind, Lat: math.Round((d.lat+0.004)*1e5) / 1e5, Lon: d.lon, Notes: d.notes}}); err != nil {
+		return sum, err
+	}
+	if sum.Measured, err = demoMeasured(o.Seed, truths, end, lab, add, newID); err != nil {
 		return sum, err
 	}
 	note := fmt.Sprintf("seed %d, %d weeks to %s", o.Seed, o.Weeks, end.Format("2006-01-02"))

@@ -48,6 +48,17 @@
 //	hazards   HazardNotice: what to show when saved pulls hold a hazard
 //	summaries SummarizeRegion, SummarizeSite, SummarizeSites: shares across
 //	          bales, bales with hazards, with labels used twice, not assessed
+//	value     LoadPrices (a price sheet file, or the illustrative built-in
+//	          one), ValuePulls, ValueBale, ValueSite (every Monte Carlo draw
+//	          priced per tonne of bale, P10/P50/P90 on both routes),
+//	          ValueBales, ValueColumns and ValueCells (the value columns of
+//	          a bale export)
+//	measured  AddMeasured (a batch's flake, moisture, streams and reactor
+//	          figures, checked against the bales and the line), Measured,
+//	          RemoveMeasured
+//	calibrate Calibrate (every measured batch predicted with its line,
+//	          agreement per line and per site, proposed line ranges),
+//	          SaveCalibratedLine (a new version of the line)
 //	settings  Settings, Setting, SaveSetting (checked by the same reader the
 //	          audit or the yield uses; the name inside must match)
 //	transfer  Trust, TrustAdd (fingerprint, PEM or bundle), TrustRemove,
@@ -67,7 +78,9 @@
 // Results are plain structs of typed values; states are enums with
 // String() (AuditState, Refusal, Concern, Step, SettingKind, QueryKind,
 // Unit, Caution, FingerprintSource; assess.Verdict, assess.Bound,
-// assess.Method from the audit). Nothing needs a string compared.
+// assess.Method from the audit; yield.Route, yield.ObsKind,
+// yield.CoverageVerdict and record.Method from value and calibration).
+// Nothing needs a string compared.
 //
 // Errors wrap a sentinel of this package (ErrNotFound, ErrAmbiguous,
 // ErrWrongKind, ErrDeleted, ErrRefused, ErrNeedsConfirm, ErrNoPulls,

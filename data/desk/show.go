@@ -177,6 +177,8 @@ func Describe(e record.Event) string {
 		return t + ": " + strings.Join(parts, ", ")
 	case e.Setting != nil:
 		return fmt.Sprintf("%s %q (%d bytes of JSON)", settingKindOf(e.Setting.Kind), e.Setting.Name, len(e.Setting.Body))
+	case e.Measured != nil:
+		return DescribeMeasured(*e.Measured)
 	}
 	return "(empty)"
 }

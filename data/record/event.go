@@ -20,7 +20,7 @@ const (
 	KindSetting Kind = 4 // a spec or line profile that travels between devices
 )
 
-var kindNames = map[Kind]string{KindSite: "site", KindBale: "bale", KindPull: "pull", KindSetting: "setting"}
+var kindNames = map[Kind]string{KindSite: "site", KindBale: "bale", KindPull: "pull", KindSetting: "setting", KindMeasured: "measured"}
 
 func (k Kind) String() string {
 	if n, ok := kindNames[k]; ok {
@@ -39,7 +39,7 @@ func ParseKind(s string) (Kind, error) {
 			return k, nil
 		}
 	}
-	return 0, fmt.Errorf("%w %q (want site, bale, pull or setting)", ErrKind, s)
+	return 0, fmt.Errorf("%w %q (want site, bale, pull, setting or measured)", ErrKind, s)
 }
 
 // Event is one immutable change to one entity. Exactly one payload field
@@ -63,6 +63,8 @@ type Event struct {
 	// Demo marks an event of the invented demo scenario, or one saved in
 	// a demo store: a real store refuses to import it unless told to.
 	Demo bool `cbor:"11,keyasint,omitempty"`
+
+	Measured *MeasuredRecord `cbor:"12,keyasint,omitempty"` // KindMeasured (measured.go)
 }
 
 // SiteKind says what kind of place a site is.

@@ -108,7 +108,7 @@ func ValidateEventAt(e Event, now time.Time) ([]Warning, error) {
 		seen[s] = true
 	}
 	payloads := 0
-	for _, set := range []bool{e.Site != nil, e.Bale != nil, e.Pull != nil, e.Setting != nil} {
+	for _, set := range []bool{e.Site != nil, e.Bale != nil, e.Pull != nil, e.Setting != nil, e.Measured != nil} {
 		if set {
 			payloads++
 		}
@@ -132,6 +132,8 @@ func ValidateEventAt(e Event, now time.Time) ([]Warning, error) {
 		err = validatePull(*e.Pull)
 	case e.Kind == KindSetting && e.Setting != nil:
 		err = validateSetting(*e.Setting)
+	case e.Kind == KindMeasured && e.Measured != nil:
+		err = validateMeasured(*e.Measured)
 	default:
 		err = &FieldError{Field: "payload", Value: "kind " + e.Kind.String(), Err: ErrPayload}
 	}
