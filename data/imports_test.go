@@ -36,7 +36,7 @@ var allowed = map[string][]string{
 	"data/desk":             {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo"},
 	"data/publish":          {"assess", "yield", "data/record", "data/store"},
 	"cmd/bale":              {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "data/publish"},
-	"ui/...":                {"data/desk", "assess", "yield", "data/record", "data/geo", "ui/...", gio},
+	"ui/...":                {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "ui/...", gio},
 	"cmd/baleassay":         {"ui/...", "data/desk", gio},
 }
 

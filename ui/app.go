@@ -7,6 +7,7 @@
 package ui
 
 import (
+	"image"
 	"time"
 
 	"gioui.org/app"
@@ -186,6 +187,8 @@ func (a *App) Layout(gtx layout.Context) []Action {
 }
 
 func (a *App) layoutScreen(gtx layout.Context) ([]Action, layout.Dimensions) {
+	// children take their natural width unless they ask for more
+	gtx.Constraints.Min = image.Point{}
 	switch a.screen {
 	case ScreenSites:
 		return a.sites.Layout(gtx, a)

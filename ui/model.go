@@ -180,6 +180,16 @@ func (a *App) goTo(s Screen) {
 	if s == ScreenTally {
 		a.tally.focusFirst = true
 	}
+	if s == ScreenIntake && a.intake.site.IsZero() {
+		// receive at the site chosen on Sites, or the current bale's site
+		site := a.m.site
+		if row, ok := a.m.baleRow(); ok && site.IsZero() {
+			site = row.Bale.Site
+		}
+		if !site.IsZero() {
+			a.intake.setSite(site, a.m.siteName(site))
+		}
+	}
 }
 
 // applyData carries out the actions that read or write the store.

@@ -10,6 +10,7 @@ import (
 	"gioui.org/io/key"
 
 	"baleassay/data/desk"
+	"baleassay/ui/kit"
 	"baleassay/ui/theme"
 	"baleassay/ui/uitest"
 )
@@ -65,6 +66,16 @@ func TestScreensRender(t *testing.T) {
 				for _, s := range Screens() {
 					dr.a.Apply([]Action{GoTo{Screen: s}})
 					dr.frame()
+					if s == ScreenIntake {
+						// a loose bale typed in: the density and its warning
+						for _, f := range []struct {
+							f    *kit.Field
+							text string
+						}{{a.intake.gross, "150"}, {a.intake.l, "1.2"}, {a.intake.w, "0.8"}, {a.intake.h, "1.6"}, {a.intake.tag, "HM-0031"}} {
+							dr.focus(&f.f.Editor)
+							dr.typeText(f.text)
+						}
+					}
 					if s == ScreenTally {
 						// a pull half typed: its mass and one fraction
 						for _, c := range "24.6" {
