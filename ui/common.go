@@ -119,3 +119,21 @@ func errText(err error) string {
 	}
 	return string(r)
 }
+
+// submitted drains the fields' editor events and reports whether Enter
+// was pressed in any of them.
+func submitted(gtx layout.Context, fields ...*kit.Field) bool {
+	sub := false
+	for _, f := range fields {
+		for {
+			e, ok := f.Editor.Update(gtx)
+			if !ok {
+				break
+			}
+			if _, ok := e.(widget.SubmitEvent); ok {
+				sub = true
+			}
+		}
+	}
+	return sub
+}

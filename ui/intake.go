@@ -71,19 +71,7 @@ func (s *intakeScreen) read(u desk.Unit) (desk.BaleInput, bool) {
 func (s *intakeScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimensions) {
 	th := a.th
 	var acts []Action
-	submit := false
-	for _, f := range []*kit.Field{s.gross, s.l, s.w, s.h, s.tag, s.grader} {
-		for {
-			e, ok := f.Editor.Update(gtx)
-			if !ok {
-				break
-			}
-			if _, ok := e.(widget.SubmitEvent); ok {
-				submit = true
-			}
-		}
-	}
-	if s.saveBtn.Clicked(gtx) || submit {
+	if submitted(gtx, s.gross, s.l, s.w, s.h, s.tag, s.grader) || s.saveBtn.Clicked(gtx) {
 		if in, ok := s.read(a.cfg.Unit); ok && !s.site.IsZero() {
 			acts = append(acts, SaveBale{In: in})
 		}

@@ -38,16 +38,7 @@ func newSitesScreen() *sitesScreen {
 func (s *sitesScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimensions) {
 	th := a.th
 	var acts []Action
-	for {
-		e, ok := s.coords.Editor.Update(gtx)
-		if !ok {
-			break
-		}
-		if _, ok := e.(widget.SubmitEvent); ok {
-			acts = append(acts, s.find()...)
-		}
-	}
-	if s.findBtn.Clicked(gtx) {
+	if submitted(gtx, s.coords) || s.findBtn.Clicked(gtx) {
 		acts = append(acts, s.find()...)
 	}
 	if s.recvBtn.Clicked(gtx) && !a.m.site.IsZero() {

@@ -175,23 +175,11 @@ func (s *tallyScreen) update(gtx layout.Context, a *App) []Action {
 		s.focusFirst = false
 		gtx.Execute(key.FocusCmd{Tag: s.focusTarget()})
 	}
-	for {
-		e, ok := s.pullMass.Editor.Update(gtx)
-		if !ok {
-			break
-		}
-		if _, ok := e.(widget.SubmitEvent); ok {
-			s.confirmPullMass(gtx, u)
-		}
+	if submitted(gtx, s.pullMass) {
+		s.confirmPullMass(gtx, u)
 	}
-	for {
-		e, ok := s.frac.Editor.Update(gtx)
-		if !ok {
-			break
-		}
-		if _, ok := e.(widget.SubmitEvent); ok {
-			s.addFraction(gtx, u)
-		}
+	if submitted(gtx, s.frac) {
+		s.addFraction(gtx, u)
 	}
 	event.Op(gtx.Ops, &s.keyTag)
 	keys := s.early

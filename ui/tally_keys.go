@@ -100,7 +100,7 @@ func tallyShortcuts() []Shortcut {
 	var codes, letters []string
 	for _, k := range tallyKeys {
 		i, _ := assess.CategoryIndex(k.Cat)
-		s := string(k.Key) + " " + shortName(assess.CategoryAt(i))
+		s := string(k.Key) + " " + tallyName(assess.CategoryAt(i))
 		if k.Key >= "1" && k.Key <= "7" {
 			codes = append(codes, s)
 		} else {
@@ -108,8 +108,8 @@ func tallyShortcuts() []Shortcut {
 		}
 	}
 	out = append(out, Shortcut{"1 … 7", "resin codes: " + strings.Join(codes, ", "), "Tally pulls"})
-	for i := 0; i < len(letters); i += 6 {
-		j := min(i+6, len(letters))
+	for i := 0; i < len(letters); i += 9 {
+		j := min(i+9, len(letters))
 		out = append(out, Shortcut{"letters", strings.Join(letters[i:j], ", "), "Tally pulls"})
 	}
 	return out

@@ -48,30 +48,10 @@ func unknownSigner(rep transfer.ImportReport) (*transfer.UnknownSignerError, str
 func (s *transferScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimensions) {
 	th := a.th
 	var acts []Action
-	for _, f := range []*kit.Field{s.outDir, s.dest} {
-		for {
-			e, ok := f.Editor.Update(gtx)
-			if !ok {
-				break
-			}
-			if _, ok := e.(widget.SubmitEvent); ok {
-				acts = append(acts, s.export()...)
-			}
-		}
-	}
-	if s.exportBtn.Clicked(gtx) {
+	if submitted(gtx, s.outDir, s.dest) || s.exportBtn.Clicked(gtx) {
 		acts = append(acts, s.export()...)
 	}
-	for {
-		e, ok := s.inDir.Editor.Update(gtx)
-		if !ok {
-			break
-		}
-		if _, ok := e.(widget.SubmitEvent); ok {
-			acts = append(acts, s.imp()...)
-		}
-	}
-	if s.importBtn.Clicked(gtx) {
+	if submitted(gtx, s.inDir) || s.importBtn.Clicked(gtx) {
 		acts = append(acts, s.imp()...)
 	}
 	if s.stopBtn.Clicked(gtx) {
