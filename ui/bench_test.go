@@ -130,6 +130,18 @@ func BenchmarkPullToOutcome(b *testing.B) {
 				edit(i)
 			}
 		})
+		b.Run(fmt.Sprintf("%d-pulls/save+audit+YieldBale(reads-again)", n), func(b *testing.B) {
+			for i := 0; i < b.N; i++ {
+				edit(i)
+				if _, err := d.AuditBale(bale.String(), desk.AuditOptions{}); err != nil {
+					b.Fatal(err)
+				}
+				plan, _ := d.Plan("", "")
+				if _, _, err := d.YieldBale(context.Background(), bale.String(), plan, desk.YieldOptions{}, nil); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 		b.Run(fmt.Sprintf("%d-pulls/save+audit+yield", n), func(b *testing.B) {
 			for i := 0; i < b.N; i++ {
 				edit(i)

@@ -161,9 +161,10 @@ func computeOutcome(ctx context.Context, d *desk.Desk, bale record.EntityID) out
 	o := outcome{Bale: bale}
 	o.Audit, o.AuditErr = d.AuditBale(bale.String(), desk.AuditOptions{})
 	if o.AuditErr == nil {
+		// the pulls the audit read, so the store is read once
 		plan, err := d.Plan("", "")
 		if err == nil {
-			_, o.Yield, err = d.YieldBale(ctx, bale.String(), plan, desk.YieldOptions{}, nil)
+			o.Yield, err = d.YieldPulls(ctx, o.Audit.Input.Pulls, o.Audit.Record.GrossKg, plan, desk.YieldOptions{}, nil)
 		}
 		o.YieldErr = err
 	}

@@ -2,6 +2,7 @@ package ui
 
 import (
 	"fmt"
+	"image"
 	"strings"
 
 	"gioui.org/layout"
@@ -72,6 +73,13 @@ func columns(gtx layout.Context, th *theme.Theme, left, right layout.Widget) lay
 
 // columnsW is columns with the left pane's share of the width.
 func columnsW(gtx layout.Context, share float32, left, right layout.Widget) layout.Dimensions {
+	natural := func(w layout.Widget) layout.Widget {
+		return func(gtx layout.Context) layout.Dimensions {
+			gtx.Constraints.Min = image.Point{}
+			return w(gtx)
+		}
+	}
+	left, right = natural(left), natural(right)
 	if gtx.Constraints.Max.X < gtx.Dp(1000) {
 		return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
 			layout.Flexed(1, left), vgap(12), layout.Flexed(1, right))
@@ -109,7 +117,7 @@ func (s *sitesScreen) layoutSites(gtx layout.Context, a *App) layout.Dimensions 
 		vgap(8),
 		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
 			return layout.Flex{Alignment: layout.End}.Layout(gtx,
-				layout.Rigid(kit.FieldStyle{Th: th, F: s.coords, Label: "Nearest to (latitude, longitude in degrees)", Hint: "45.07, 4.71", Width: 240}.Layout),
+				layout.Rigid(kit.FieldStyle{Th: th, F: s.coords, Label: "Nearest to (latitude, longitude in degrees)", Hint: "e.g. 45.07, 4.71", Width: 240}.Layout),
 				layout.Rigid(layout.Spacer{Width: 8}.Layout),
 				layout.Rigid(func(gtx layout.Context) layout.Dimensions {
 					if s.coords.Problem != "" {

@@ -107,9 +107,9 @@ func (s *transferScreen) exportPane(gtx layout.Context, a *App) layout.Dimension
 		vgap(4),
 		layout.Rigid(muted(th, "Writes signed bundle files with what the destination has not had from this device.")),
 		vgap(8),
-		layout.Rigid(kit.FieldStyle{Th: th, F: s.outDir, Label: "Folder to write to", Hint: "/media/usb", Width: 360}.Layout),
+		layout.Rigid(kit.FieldStyle{Th: th, F: s.outDir, Label: "Folder to write to", Hint: "e.g. /media/usb", Width: 360}.Layout),
 		vgap(8),
-		layout.Rigid(kit.FieldStyle{Th: th, F: s.dest, Label: "For (destination name)", Hint: "lab", Width: 200}.Layout),
+		layout.Rigid(kit.FieldStyle{Th: th, F: s.dest, Label: "For (destination name)", Hint: "e.g. lab", Width: 200}.Layout),
 		vgap(8),
 	}
 	if ds := a.m.dests.Value; len(ds) > 0 {
@@ -153,7 +153,7 @@ func (s *transferScreen) importPane(gtx layout.Context, a *App, us *transfer.Unk
 		vgap(4),
 		layout.Rigid(muted(th, "Imports every .bale file of a folder; each file comes in whole or not at all.")),
 		vgap(8),
-		layout.Rigid(kit.FieldStyle{Th: th, F: s.inDir, Label: "Folder to read", Hint: "/media/usb", Width: 360}.Layout),
+		layout.Rigid(kit.FieldStyle{Th: th, F: s.inDir, Label: "Folder to read", Hint: "e.g. /media/usb", Width: 360}.Layout),
 		vgap(8),
 		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
 			if im.Busy {
@@ -184,7 +184,7 @@ func (s *transferScreen) importPane(gtx layout.Context, a *App, us *transfer.Unk
 			layout.Rigid(body(th, "Device "+us.Device)),
 			layout.Rigid(muted(th, "Check the fingerprint with the sender (by phone or in person) before you trust it.")),
 			vgap(6),
-			layout.Rigid(kit.FieldStyle{Th: th, F: s.trustName, Label: "Trust this sender as (name)", Hint: "tablet north", Width: 260}.Layout),
+			layout.Rigid(kit.FieldStyle{Th: th, F: s.trustName, Label: "Trust this sender as (name)", Hint: "e.g. tablet north", Width: 260}.Layout),
 			vgap(6),
 			layout.Rigid(kit.Button{Th: th, Click: &s.trustBtn, Text: "Trust this sender", Role: kit.RolePrimary}.Layout))
 		if t := a.m.trusted; t.Has && !t.Busy {
