@@ -3,6 +3,7 @@ module baleassay
 go 1.26
 
 require (
+	gioui.org v0.10.3
 	github.com/dhconnelly/rtreego v1.2.0
 	github.com/fxamacker/cbor/v2 v2.10.0
 	github.com/google/uuid v1.6.0
@@ -13,7 +14,6 @@ require (
 )
 
 require (
-	gioui.org v0.10.3 // indirect
 	gioui.org/shader v1.0.9 // indirect
 	github.com/go-text/typesetting v0.3.5 // indirect
 	github.com/godbus/dbus/v5 v5.2.2 // indirect
