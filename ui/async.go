@@ -51,6 +51,7 @@ type owner struct {
 	jobs chan func()
 	wg   sync.WaitGroup // jobs queued or running
 	done chan struct{}
+	once sync.Once
 }
 
 func newOwner() *owner {
@@ -74,9 +75,9 @@ func (o *owner) do(job func()) {
 // idle waits until every queued job has run.
 func (o *owner) idle() { o.wg.Wait() }
 
-// close stops the owner after the queued jobs.
+// close stops the owner after the queued jobs; later calls do nothing.
 func (o *owner) close() {
-	close(o.jobs)
+	o.once.Do(func() { close(o.jobs) })
 	<-o.done
 }
 

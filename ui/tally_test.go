@@ -127,3 +127,24 @@ func TestTallyUndoAndBadValue(t *testing.T) {
 		t.Fatalf("key 4 chose %s, want ldpe", c.Key)
 	}
 }
+
+// Half a pull typed, the app gone: a new app on the same store opens the
+// Tally on that bale with the pull as it was.
+func TestTallyDraftRestored(t *testing.T) {
+	d, bale := testDesk(t)
+	a, dr := newTestApp(t, d)
+	dr.press("3", key.ModShortcut)
+	dr.typePull("9.8", [2]string{"2", "0.5"})
+	dr.settle()
+	a.Close()
+	b := New(Config{Desk: d, Now: func() time.Time { return testNow }})
+	defer b.Close()
+	dr2 := newDriver(t, b, image.Pt(1280, 800))
+	waitFor(t, dr2, func() bool { return b.m.draft.Has && !b.m.draft.Busy })
+	dr2.settle()
+	s := b.tally
+	if b.Screen() != ScreenTally || b.m.bale != bale || s.step != stepPick || s.pullMass.Text() != "9.8" ||
+		len(s.entries) != 1 || assess.CategoryAt(s.entries[0].cat).Key != "hdpe" || s.entries[0].kg != 0.5 {
+		t.Fatalf("restored: screen %v, step %v, mass %q, entries %+v", b.Screen(), s.step, s.pullMass.Text(), s.entries)
+	}
+}
