@@ -111,3 +111,16 @@ func TestHelpOverlayRender(t *testing.T) {
 	dr.settle()
 	uitest.Match(t, "help-1280x800-normal", dr.render())
 }
+
+// The text at 150 % (the largest setting) on the tablet: the Tally and
+// the Outcome must still show their controls.
+func TestLargeTextRender(t *testing.T) {
+	d := demoDesk(t)
+	a, dr := demoApp(t, d, image.Pt(1280, 800), theme.HighContrast)
+	a.Apply([]Action{SetScale{Scale: 1.5}})
+	for _, s := range []Screen{ScreenTally, ScreenOutcome} {
+		a.Apply([]Action{GoTo{Screen: s}})
+		dr.settle()
+		uitest.Match(t, fmt.Sprintf("%s-1280x800-high-contrast-text150", s), dr.render())
+	}
+}

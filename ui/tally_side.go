@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"gioui.org/layout"
+	"gioui.org/unit"
 
 	"baleassay/assess"
 	"baleassay/data/desk"
@@ -51,13 +52,18 @@ func (s *tallyScreen) side(gtx layout.Context, a *App, p record.PullRecord) layo
 			if !s.corrects.IsZero() {
 				save = "Save correction"
 			}
-			return layout.Flex{}.Layout(gtx,
-				layout.Rigid(kit.Button{Th: th, Click: &s.saveBtn, Text: save, Hint: "Enter", Role: kit.RolePrimary, Disabled: !ready}.Layout),
-				layout.Rigid(kit.Gap(kit.SpacingDp)),
-				layout.Rigid(kit.Button{Th: th, Click: &s.undoBtn, Text: "Undo", Disabled: len(s.entries) == 0}.Layout),
-				layout.Rigid(kit.Gap(kit.SpacingDp)),
-				layout.Rigid(kit.Button{Th: th, Click: &s.dropBtn, Text: "Discard", Disabled: len(s.entries) == 0 && p.StatedKg == 0}.Layout),
-			)
+			saveW := kit.Button{Th: th, Click: &s.saveBtn, Text: save, Hint: "Enter", Role: kit.RolePrimary, Disabled: !ready}.Layout
+			undo := kit.Button{Th: th, Click: &s.undoBtn, Text: "Undo", Disabled: len(s.entries) == 0}.Layout
+			drop := kit.Button{Th: th, Click: &s.dropBtn, Text: "Discard", Disabled: len(s.entries) == 0 && p.StatedKg == 0}.Layout
+			if gtx.Constraints.Max.X < gtx.Dp(unit.Dp(380*th.Scale)) {
+				// narrow: the save button on a row of its own
+				return layout.Flex{Axis: layout.Vertical}.Layout(gtx, layout.Rigid(saveW), vgap(8),
+					layout.Rigid(func(gtx layout.Context) layout.Dimensions {
+						return layout.Flex{}.Layout(gtx, layout.Rigid(undo), layout.Rigid(kit.Gap(kit.SpacingDp)), layout.Rigid(drop))
+					}))
+			}
+			return layout.Flex{}.Layout(gtx, layout.Rigid(saveW), layout.Rigid(kit.Gap(kit.SpacingDp)),
+				layout.Rigid(undo), layout.Rigid(kit.Gap(kit.SpacingDp)), layout.Rigid(drop))
 		}),
 		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
 			var kids []layout.FlexChild

@@ -129,7 +129,7 @@ func (s *tallyScreen) buttons(gtx layout.Context, a *App, p record.PullRecord) l
 		kids = append(kids,
 			layout.Rigid(kit.Text{Th: th, Text: sec.name, Bold: true, Color: th.Pal.Muted, Size: theme.SizeSmall}.Layout),
 			layout.Rigid(func(gtx layout.Context) layout.Dimensions {
-				return grid(gtx, len(idx), 136, func(gtx layout.Context, j int) layout.Dimensions {
+				return grid(gtx, len(idx), unit.Dp(136*th.Scale), func(gtx layout.Context, j int) layout.Dimensions {
 					i := idx[j]
 					c := assess.CategoryAt(i)
 					role := kit.RoleNormal

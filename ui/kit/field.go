@@ -58,10 +58,11 @@ type FieldStyle struct {
 // Layout draws the field.
 func (s FieldStyle) Layout(gtx layout.Context) layout.Dimensions {
 	th := s.Th
-	width := gtx.Dp(s.Width)
-	if width == 0 {
-		width = gtx.Dp(180)
+	w := s.Width
+	if w == 0 {
+		w = 180
 	}
+	width := gtx.Dp(w * unit.Dp(th.Scale)) // wider with larger text
 	box := func(gtx layout.Context) layout.Dimensions {
 		gtx.Constraints = layout.Exact(image.Pt(width, gtx.Dp(TargetDp)))
 		sz := gtx.Constraints.Min
