@@ -55,7 +55,7 @@ func (s *tallyScreen) side(gtx layout.Context, a *App, p record.PullRecord) layo
 			saveW := kit.Button{Th: th, Click: &s.saveBtn, Text: save, Hint: "Enter", Role: kit.RolePrimary, Disabled: !ready}.Layout
 			undo := kit.Button{Th: th, Click: &s.undoBtn, Text: "Undo", Disabled: len(s.entries) == 0}.Layout
 			drop := kit.Button{Th: th, Click: &s.dropBtn, Text: "Discard", Disabled: len(s.entries) == 0 && p.StatedKg == 0}.Layout
-			if gtx.Constraints.Max.X < gtx.Dp(unit.Dp(380*th.Scale)) {
+			if gtx.Constraints.Max.X < gtx.Dp(unit.Dp(360*th.Scale)) {
 				// narrow: the save button on a row of its own
 				return layout.Flex{Axis: layout.Vertical}.Layout(gtx, layout.Rigid(saveW), vgap(8),
 					layout.Rigid(func(gtx layout.Context) layout.Dimensions {
