@@ -1,7 +1,7 @@
 # The two set-up commands of the README: `make run` and `make test`.
 GO ?= go
 
-.PHONY: run run-cli test deps check-imports bench fuzz-short
+.PHONY: run run-cli test deps check-imports bench bench-publish fuzz-short
 
 # Fuzz targets run briefly in every `make test` (their committed seeds run
 # in plain `go test` too): package:target pairs.
@@ -32,10 +32,12 @@ run-cli:
 	bin/bale yield testdata/demo-bale-0417.csv --bale-kg 548
 
 # All tests, with the import-direction check first (it also runs in go test).
+# scripts/pgtest.sh starts a throwaway PostgreSQL server for the publish
+# tests (or uses the one BALEASSAY_PG_DSN names) and stops it afterwards.
 test: deps check-imports
 	CGO_ENABLED=0 $(GO) build -o /dev/null ./cmd/bale
 	$(GO) vet ./...
-	$(GO) test -count=1 ./...
+	bash scripts/pgtest.sh run -- $(GO) test -count=1 ./...
 	$(MAKE) --no-print-directory fuzz-short
 
 fuzz-short:
@@ -52,3 +54,9 @@ check-imports:
 
 bench:
 	$(GO) test -run '^$$' -bench . -benchmem ./...
+
+# Publishing 1,000,000 events into PostgreSQL, against a plain COPY of the
+# same bytes (minutes; not part of make test).
+bench-publish:
+	BALE_PUBLISH_EVENTS=$${BALE_PUBLISH_EVENTS:-1000000} bash scripts/pgtest.sh run -- \
+		$(GO) test -run '^$$' -bench 'Publish' -benchtime 1x -timeout 60m -v ./data/publish/

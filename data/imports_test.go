@@ -33,18 +33,23 @@ var allowed = map[string][]string{
 	"data/transfer":         {"data/record", "data/store"},
 	"data/demo":             {"assess", "yield", "data/record", "data/store"},
 	"data/internal/testkit": {"data/record"},
-	"data/desk":             {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo"},
+	"data/desk":             {"assess", "yield", "data/record", "data/geo", "data/store", "data/transfer", "data/demo", "data/publish"},
 	"data/publish":          {"assess", "yield", "data/record", "data/store"},
-	"cmd/bale":              {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "data/publish"},
+	"data/report":           {"data/desk", "assess", "yield", "data/record", "data/geo"},
+	"data/publish/pgtest":   {},
+	"cmd/bale":              {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "data/publish", "data/report"},
 	"ui/...":                {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "ui/...", gio},
 	"cmd/baleassay":         {"ui/...", "data/desk", gio},
 }
 
 // testOnly are extra imports some packages' tests need.
 var testOnly = map[string][]string{
-	"cmd/bale":      {"data/store"},
+	"cmd/bale":      {"data/store", "data/publish/pgtest"},
 	"data/transfer": {"assess"},
 	"data/demo":     {"data/geo"},
+	"data/report":   {"data/demo"},
+	"data/publish":  {"data/demo", "data/geo", "data/publish/pgtest"},
+	"data/desk":     {"data/publish/pgtest"},
 }
 
 func TestImportAllowList(t *testing.T) {

@@ -13,6 +13,12 @@ packages+=(pkg-config libwayland-dev libx11-dev libx11-xcb-dev libxkbcommon-dev 
   libxcursor-dev libxfixes-dev libegl-dev libgles2 libgl1-mesa-dri libvulkan-dev mesa-vulkan-drivers
   xvfb xdotool x11-utils imagemagick)
 
+# PostgreSQL with PostGIS: the server the publish tests start (scripts/pgtest.sh).
+packages+=(postgresql postgresql-15-postgis-3)
+
+# Chromium: the headless browser the HTML report test renders with.
+packages+=(chromium)
+
 missing=()
 for p in "${packages[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
@@ -29,5 +35,5 @@ else
   exit 1
 fi
 echo "baleassay: installing ${missing[*]}" >&2
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" update -q
-DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 install -y -q --no-install-recommends "${missing[@]}"
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 update -q
+DEBIAN_FRONTEND=noninteractive "${apt[@]}" -o DPkg::Lock::Timeout=600 install -y -q "${missing[@]}"

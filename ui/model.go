@@ -34,7 +34,7 @@ type model struct {
 	draft    Latest[struct{}]
 	restored *record.PullRecord // a draft found at start, for the tally
 
-	dests    Latest[[]desk.Destination]
+	dests    Latest[[]desk.ExportDest]
 	exported Latest[desk.ExportResult]
 	imported Latest[transfer.ImportReport]
 	progress desk.Progress
@@ -176,7 +176,7 @@ func (a *App) goTo(s Screen) {
 	a.screen = s
 	a.help = false
 	if d := a.cfg.Desk; s == ScreenTransfer && d != nil {
-		a.m.dests.Start(a.owner.do, &a.in, func(context.Context) ([]desk.Destination, error) { return d.Destinations() }, nil)
+		a.m.dests.Start(a.owner.do, &a.in, func(context.Context) ([]desk.ExportDest, error) { return d.Destinations() }, nil)
 	}
 	if s == ScreenTally {
 		a.tally.focusFirst = true
@@ -253,7 +253,7 @@ func (a *App) applyData(act Action) {
 		a.m.exported.Start(a.owner.do, &a.in, func(context.Context) (desk.ExportResult, error) {
 			return d.Export(act.Dir, act.Dest)
 		}, func() {
-			a.m.dests.Start(a.owner.do, &a.in, func(context.Context) ([]desk.Destination, error) { return d.Destinations() }, nil)
+			a.m.dests.Start(a.owner.do, &a.in, func(context.Context) ([]desk.ExportDest, error) { return d.Destinations() }, nil)
 		})
 	case ImportFrom:
 		a.m.progress = desk.Progress{}

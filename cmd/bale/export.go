@@ -13,13 +13,18 @@ import (
 func init() {
 	register(command{
 		name:    "export",
-		usage:   "--to PATH [--since-last DEST | --all] [--part-mb N] [--store DIR]",
-		summary: "write this store's records as signed bundle files (to carry on a USB stick)",
+		usage:   "--to PATH [--since-last DEST | --all] [--part-mb N] [--store DIR] | " + exportFormatsUsage,
+		summary: "write this store's records as signed bundle files (to carry on a USB stick), or as CSV or GeoJSON for other tools",
 		run:     runExport,
 	})
 }
 
 func runExport(args []string, stdout, stderr io.Writer) error {
+	if len(args) > 0 {
+		if run, ok := exportFormats[args[0]]; ok {
+			return run(args[1:], stdout)
+		}
+	}
 	fs := newFlags("export")
 	store := storeFlag(fs)
 	to := fs.String("to", "", "bundle `PATH`: a file, or an existing folder for bale-<device>-<seq>.bale names")

@@ -20,8 +20,8 @@ import (
 // folder. It is local to this device: it never travels in a bundle.
 const destinationsFile = "destinations.json"
 
-// Destination is a remembered export target.
-type Destination struct {
+// ExportDest is a remembered export target.
+type ExportDest struct {
 	Name   string `json:"name"`    // the destination's name ("lab")
 	Dir    string `json:"dir"`     // the folder last written to
 	LastMs int64  `json:"last_ms"` // when, Unix ms
@@ -34,7 +34,7 @@ type ExportResult struct {
 }
 
 // Destinations lists the remembered destinations, the latest used first.
-func (d *Desk) Destinations() ([]Destination, error) {
+func (d *Desk) Destinations() ([]ExportDest, error) {
 	raw, err := os.ReadFile(filepath.Join(d.Dir(), destinationsFile))
 	if errors.Is(err, os.ErrNotExist) {
 		return nil, nil
@@ -42,7 +42,7 @@ func (d *Desk) Destinations() ([]Destination, error) {
 	if err != nil {
 		return nil, err
 	}
-	var out []Destination
+	var out []ExportDest
 	if err := json.Unmarshal(raw, &out); err != nil {
 		return nil, fmt.Errorf("the list of export destinations %s is damaged (%v): delete it and export again", filepath.Join(d.Dir(), destinationsFile), err)
 	}
@@ -73,21 +73,21 @@ func (d *Desk) Export(dir, dest string) (ExportResult, error) {
 		}
 		return ExportResult{}, err
 	}
-	if err := d.remember(Destination{Name: dest, Dir: dir, LastMs: d.now().UnixMilli()}); err != nil {
+	if err := d.remember(ExportDest{Name: dest, Dir: dir, LastMs: d.now().UnixMilli()}); err != nil {
 		return ExportResult{ExportResult: res, Signer: key.Fingerprint()}, err
 	}
 	return ExportResult{ExportResult: res, Signer: key.Fingerprint()}, nil
 }
 
 // remember adds or updates a destination, written atomically.
-func (d *Desk) remember(dst Destination) error {
+func (d *Desk) remember(dst ExportDest) error {
 	d.tmu.Lock()
 	defer d.tmu.Unlock()
 	have, err := d.Destinations()
 	if err != nil {
 		have = nil // a damaged list is replaced by a good one
 	}
-	out := []Destination{dst}
+	out := []ExportDest{dst}
 	for _, h := range have {
 		if h.Name != dst.Name {
 			out = append(out, h)

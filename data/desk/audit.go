@@ -2,7 +2,6 @@ package desk
 
 import (
 	"fmt"
-	"sort"
 	"time"
 
 	"baleassay/assess"
@@ -143,34 +142,11 @@ func (d *Desk) summarize(b record.BaleRecord, pulls []store.PullView) AuditSumma
 	return sum
 }
 
-// auditOf builds the audit of a bale from its pulls. Pulls that share a
-// label (added on two devices at once) are kept apart by their ids and
-// named in clash: the audit is never dropped.
+// auditOf builds the audit of a bale from its pulls; pulls that share a
+// label are kept apart and named in clash (store.AuditInput, which
+// publish uses too).
 func auditOf(b record.BaleRecord, pulls []store.PullView) (assess.Audit, []string, error) {
-	a := assess.Audit{BaleKg: b.GrossKg}
-	count := map[string]int{}
-	for _, p := range pulls {
-		count[p.Pull.Label]++
-	}
-	var clash []string
-	for l, n := range count {
-		if n > 1 {
-			clash = append(clash, l)
-		}
-	}
-	sort.Strings(clash)
-	for _, p := range pulls {
-		ap, err := record.AssessPull(p.Pull)
-		if err != nil {
-			return a, clash, err
-		}
-		if count[p.Pull.Label] > 1 {
-			s := p.ID.String()
-			ap.Label = fmt.Sprintf("%s (%s)", p.Pull.Label, s[len(s)-8:])
-		}
-		a.Pulls = append(a.Pulls, ap)
-	}
-	return a, clash, nil
+	return store.AuditInput(b, pulls)
 }
 
 // LoadSpec finds a spec by name (a stored spec wins over a built-in one of

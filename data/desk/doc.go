@@ -65,6 +65,10 @@
 //	          Import (demo records refused unless ImportOptions.AllowDemo)
 //	demo      MakeDemo (refuses a folder of real records; replaces a demo
 //	          store only with Force)
+//	lab       ImportPaths (folders of bundles: a summary per device, gaps,
+//	          every refusal); ReportBale, ReportSites (what data/report
+//	          renders as HTML); ExportCSV (bales, pulls, sites), ExportGeoJSON;
+//	          WriteFile (synced, never over an existing file unless forced)
 //	files     ReadPulls: the pulls CSV from any reader (stdin too), BOM accepted,
 //	          UTF-16, semicolons and decimal commas refused with the fix, "did
 //	          you mean" for keys, kg or lb, optional weighed and taken columns
