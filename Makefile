@@ -1,7 +1,7 @@
 # The two set-up commands of the README: `make run` and `make test`.
 GO ?= go
 
-.PHONY: run test deps check-imports bench bench-publish fuzz-short
+.PHONY: run run-cli test deps check-imports bench bench-publish fuzz-short
 
 # Fuzz targets run briefly in every `make test` (their committed seeds run
 # in plain `go test` too): package:target pairs.
@@ -11,10 +11,21 @@ FUZZTIME ?= 8s
 deps:
 	@bash scripts/deps.sh
 
-# The main job on the built-in demo scenario.
-# The demo bale's audit against the glycolysis-feed spec, then what the
-# wash line and the glycol reactor make of it.
-run:
+# The main job on the built-in demo scenario: the field app on the demo
+# store when there is a display; without one, the CLI demo: the demo
+# bale's audit against the glycolysis-feed spec, then what the wash line
+# and the glycol reactor make of it.
+run: deps
+	$(GO) build -o bin/bale ./cmd/bale
+	$(GO) build -o bin/baleassay ./cmd/baleassay
+	@if [ -n "$$DISPLAY$$WAYLAND_DISPLAY" ]; then \
+		echo "opening the field app on the demo store"; \
+		exec bin/baleassay --demo; \
+	fi; \
+	echo "no display (neither DISPLAY nor WAYLAND_DISPLAY is set): running the CLI demo instead"; echo; \
+	$(MAKE) --no-print-directory run-cli
+
+run-cli:
 	$(GO) build -o bin/bale ./cmd/bale
 	bin/bale assess testdata/demo-bale-0417.csv --bale-kg 548
 	@echo; echo "=== what the wash line and the glycolysis reactor make of it ==="; echo

@@ -38,7 +38,7 @@ var allowed = map[string][]string{
 	"data/report":           {"data/desk", "assess", "yield", "data/record", "data/geo"},
 	"data/publish/pgtest":   {},
 	"cmd/bale":              {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "data/publish", "data/report"},
-	"ui/...":                {"data/desk", "assess", "yield", "data/record", "data/geo", "ui/...", gio},
+	"ui/...":                {"data/desk", "assess", "yield", "data/record", "data/geo", "data/transfer", "ui/...", gio},
 	"cmd/baleassay":         {"ui/...", "data/desk", gio},
 }
 

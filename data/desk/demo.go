@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"time"
 
 	"baleassay/data/demo"
 	"baleassay/data/record"
@@ -18,6 +19,9 @@ type DemoOptions struct {
 	Weeks int    // 1 to 52
 	Seed  uint64
 	Force bool // replace an existing demo store
+	// End is the scenario's last day (today when zero); tests and
+	// reference images fix it.
+	End time.Time
 }
 
 // MakeDemo writes the invented demo scenario into a store of its own. A
@@ -66,7 +70,7 @@ func MakeDemo(o DemoOptions) (string, demo.DemoSummary, error) {
 	for _, name := range []string{"yard tablet", "lab laptop"} {
 		keys[name] = demoKey(name, o.Seed)
 	}
-	sum, err = demo.WriteDemo(s, demo.DemoOptions{Weeks: o.Weeks, Seed: o.Seed,
+	sum, err = demo.WriteDemo(s, demo.DemoOptions{Weeks: o.Weeks, Seed: o.Seed, End: o.End,
 		Device: func(name string) record.DeviceID { return demoKey(name, o.Seed).DeviceID() }})
 	if err != nil {
 		return dir, sum, fmt.Errorf("the demo scenario was not written: %w", err)
