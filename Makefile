@@ -34,7 +34,7 @@ run-cli:
 # All tests, with the import-direction check first (it also runs in go test).
 # scripts/pgtest.sh starts a throwaway PostgreSQL server for the publish
 # tests (or uses the one BALEASSAY_PG_DSN names) and stops it afterwards.
-test: deps check-imports
+test: deps check-tree check-imports
 	CGO_ENABLED=0 $(GO) build -o /dev/null ./cmd/bale
 	$(GO) vet ./...
 	bash scripts/pgtest.sh run -- $(GO) test -count=1 ./...
@@ -46,6 +46,11 @@ fuzz-short:
 		echo "fuzz $$name ($$pkg) for $(FUZZTIME)"; \
 		$(GO) test -run '^$$' -fuzz "^$$name\$$" -fuzztime $(FUZZTIME) $$pkg || exit 1; \
 	done
+
+# No merge left its conflict markers in a tracked file.
+check-tree:
+	@if git grep -n -I -E '^(<<<<<<<|>>>>>>>)( |$$)' -- . >/dev/null 2>&1; then \
+		echo "conflict markers left in:"; git grep -n -I -E '^(<<<<<<<|>>>>>>>)( |$$)' -- .; exit 1; fi
 
 # Every package imports only what data/imports_test.go allows it
 # (domain packages never import Gio).
