@@ -19,8 +19,8 @@ const (
 
 // Errors of ReadFileLimited.
 var (
-	ErrNotRegular   = errors.New("assess: not a regular file")
-	ErrFileTooLarge = errors.New("assess: file is larger than the limit")
+	ErrNotRegular   = errors.New("not a regular file")
+	ErrFileTooLarge = errors.New("file is larger than the limit")
 )
 
 // OpenRegular opens path for reading only if it is a regular file,

@@ -10,8 +10,8 @@ import (
 
 // Errors of CheckJSON.
 var (
-	ErrDuplicateKey = errors.New("assess: a key appears twice in one JSON object")
-	ErrControlText  = errors.New("assess: text holds a control character")
+	ErrDuplicateKey = errors.New("a key appears twice in one JSON object")
+	ErrControlText  = errors.New("text holds a control character")
 )
 
 // CheckJSON refuses what encoding/json reads without complaint but a

@@ -9,7 +9,7 @@ import (
 )
 
 // ErrCalibration marks measurements the calibration cannot use.
-var ErrCalibration = errors.New("yield: cannot calibrate")
+var ErrCalibration = errors.New("cannot calibrate")
 
 // Measurement is one measured batch prepared for calibration: its
 // composition and what was weighed of it.

@@ -45,7 +45,7 @@ type Plan struct {
 func DefaultPlan() Plan {
 	m, err := Compile(BuiltinLine())
 	if err != nil {
-		panic("yield: built-in line does not compile: " + err.Error())
+		panic("built-in line does not compile: " + err.Error())
 	}
 	spec := BuiltinFlakeSpec()
 	return Plan{Line: m, Spec: &spec, Recipe: DefaultRecipe(1, DefaultGlycol, DefaultGlycolRatio)}

@@ -51,7 +51,7 @@ var flakeItemIdx = func() (out [numFlakeItems][]int) {
 		for _, k := range keys {
 			i, ok := ComponentIndex(k)
 			if !ok {
-				panic("yield: flake item member " + k + " not in the catalogue")
+				panic("flake item member " + k + " not in the catalogue")
 			}
 			out[it] = append(out[it], i)
 		}

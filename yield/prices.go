@@ -13,7 +13,7 @@ import (
 )
 
 // ErrBadPrices marks an invalid price sheet.
-var ErrBadPrices = errors.New("yield: invalid price sheet")
+var ErrBadPrices = errors.New("invalid price sheet")
 
 // Route is what the plant sells from a bale.
 type Route uint8
@@ -261,7 +261,7 @@ func BuiltinPriceSheet() PriceSheet {
 		Hydroxyl: &HydroxylWindow{Min: 200, Max: 550, DeductionPerT: 300},
 	}
 	if err := p.Validate(); err != nil {
-		panic("yield: built-in price sheet: " + err.Error())
+		panic("built-in price sheet: " + err.Error())
 	}
 	return p
 }

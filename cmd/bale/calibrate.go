@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"strings"
 	"text/tabwriter"
 
 	"baleassay/data/desk"
@@ -372,7 +371,7 @@ func calibrationOut(rep desk.CalibrationReport) calibrationJSON {
 			}
 			l.Proposal = pj
 		} else if lr.ProposalErr != nil {
-			l.NoProposal = strings.TrimPrefix(lr.ProposalErr.Error(), "yield: ")
+			l.NoProposal = lr.ProposalErr.Error()
 		}
 		out.Lines = append(out.Lines, l)
 	}

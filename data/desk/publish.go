@@ -2,7 +2,6 @@ package desk
 
 import (
 	"context"
-	"strings"
 
 	"baleassay/data/publish"
 )
@@ -18,29 +17,10 @@ import (
 func (d *Desk) Publish(ctx context.Context, dsn string, opt publish.Options) (publish.Target, publish.Report, error) {
 	conn, target, err := publish.Connect(ctx, dsn)
 	if err != nil {
-		return target, publish.Report{}, plainError(err)
+		return target, publish.Report{}, err
 	}
 	defer conn.Close(context.WithoutCancel(ctx))
 	rep, err := publish.Publish(ctx, conn, d.st, opt)
-	if err != nil {
-		return target, rep, plainError(err)
-	}
-	return target, rep, nil
+	return target, rep, err
 }
 
-// plainError drops the "publish: " a package puts before its messages;
-// errors.Is and errors.As still see the wrapped error.
-func plainError(err error) error {
-	if m, ok := strings.CutPrefix(err.Error(), "publish: "); ok {
-		return &plain{msg: m, err: err}
-	}
-	return err
-}
-
-type plain struct {
-	msg string
-	err error
-}
-
-func (e *plain) Error() string { return e.msg }
-func (e *plain) Unwrap() error { return e.err }

@@ -173,7 +173,7 @@ func errText(err error) string {
 	if err == nil {
 		return ""
 	}
-	return strings.TrimPrefix(err.Error(), "yield: ")
+	return err.Error()
 }
 
 // ValueColumns are the header cells of the value columns of a bale

@@ -434,4 +434,4 @@ func boxAABB(south, west, north, east float64) (lo, hi [3]float64) {
 }
 
 // ErrBadQuery is the sentinel of a query with invalid arguments.
-var ErrBadQuery = errors.New("data: invalid query")
+var ErrBadQuery = errors.New("invalid query")

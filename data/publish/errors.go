@@ -7,14 +7,14 @@ import (
 
 // Sentinel errors; test with errors.Is.
 var (
-	ErrDSN          = errors.New("publish: cannot read the database address")
-	ErrConnect      = errors.New("publish: cannot connect to the database")
-	ErrSchemaNewer  = errors.New("publish: the database schema is newer than this program")
-	ErrSchemaName   = errors.New("publish: invalid schema name")
-	ErrNoPostGIS    = errors.New("publish: PostGIS is required but not available")
-	ErrKindMismatch = errors.New("publish: an event's kind differs from its entity's kind in the database")
-	ErrCorrupt      = errors.New("publish: a stored event does not match its id")
-	ErrBatchSize    = errors.New("publish: batch size must be at least 1")
+	ErrDSN          = errors.New("cannot read the database address")
+	ErrConnect      = errors.New("cannot connect to the database")
+	ErrSchemaNewer  = errors.New("the database schema is newer than this program")
+	ErrSchemaName   = errors.New("invalid schema name")
+	ErrNoPostGIS    = errors.New("PostGIS is required but not available")
+	ErrKindMismatch = errors.New("an event's kind differs from its entity's kind in the database")
+	ErrCorrupt      = errors.New("a stored event does not match its id")
+	ErrBatchSize    = errors.New("batch size must be at least 1")
 )
 
 // EventError locates a failure at one event of the store.

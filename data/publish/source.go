@@ -28,7 +28,7 @@ type item struct {
 	raw []byte
 }
 
-var errBatchFull = errors.New("publish: batch full")
+var errBatchFull = errors.New("batch full")
 
 // readBatch reads up to n events after afterSeq. The bytes are copied into
 // one buffer per batch.

@@ -146,7 +146,7 @@ var (
 )
 
 // ErrMeasured marks a measured value outside its physical range.
-var ErrMeasured = errors.New("data: measured value outside its physical range")
+var ErrMeasured = errors.New("measured value outside its physical range")
 
 func measuredErr(field string, x float64, format string, args ...any) error {
 	return &FieldError{Field: field, Value: fnum(x), Err: fmt.Errorf("%w: "+format, append([]any{ErrMeasured}, args...)...)}

@@ -202,7 +202,7 @@ func decodeHeader(b []byte, off int) (BundleHeader, error) {
 	h.Count, h.Part, h.Parts = w.Count, uint64(w.Part[0]), uint64(w.Part[1])
 	canon, err := encodeHeader(h)
 	if err != nil {
-		return h, fmt.Errorf("data: re-encoding header: %w", err)
+		return h, fmt.Errorf("re-encoding header: %w", err)
 	}
 	if string(canon) != string(b) {
 		return h, bundleErr(ErrBundleNonCanon, "header", off, "header does not re-encode to the same bytes (RFC 8949 §4.2)")

@@ -76,7 +76,7 @@ func LoadOrCreateDeviceKey(dir string) (key *DeviceKey, created bool, err error)
 	}
 	seed := make([]byte, ed25519.SeedSize)
 	if _, err := rand.Read(seed); err != nil {
-		return nil, false, fmt.Errorf("data: no randomness for a device key: %w", err)
+		return nil, false, fmt.Errorf("no randomness for a device key: %w", err)
 	}
 	key, _ = NewDeviceKeyFromSeed(seed)
 	der, err := x509.MarshalPKCS8PrivateKey(key.priv)
@@ -94,17 +94,17 @@ func LoadOrCreateDeviceKey(dir string) (key *DeviceKey, created bool, err error)
 		return key, false, err
 	}
 	if err != nil {
-		return nil, false, fmt.Errorf("data: creating device key: %w", err)
+		return nil, false, fmt.Errorf("creating device key: %w", err)
 	}
 	if _, err := f.Write(block); err != nil {
 		f.Close()
 		os.Remove(path)
-		return nil, false, fmt.Errorf("data: writing device key: %w", err)
+		return nil, false, fmt.Errorf("writing device key: %w", err)
 	}
 	if err := f.Sync(); err != nil {
 		f.Close()
 		os.Remove(path)
-		return nil, false, fmt.Errorf("data: syncing device key: %w", err)
+		return nil, false, fmt.Errorf("syncing device key: %w", err)
 	}
 	if err := f.Close(); err != nil {
 		return nil, false, err

@@ -49,7 +49,7 @@ type ExportResult struct {
 var destName = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$`)
 
 // ErrDestName refuses a destination name that is not a short word.
-var ErrDestName = errors.New("data: destination name must be 1–64 letters, digits, '.', '_' or '-'")
+var ErrDestName = errors.New("destination name must be 1–64 letters, digits, '.', '_' or '-'")
 
 // Export writes the store's events as signed bundles to path. If path is
 // an existing folder (or ends in a path separator), files are named
@@ -89,7 +89,7 @@ func Export(s *store.Store, key *DeviceKey, path string, opt ExportOptions) (Exp
 			return res, err
 		}
 		if len(v) != 0 && len(v) != 8 {
-			return res, fmt.Errorf("data: the store's export mark for %q is damaged", opt.SinceLast)
+			return res, fmt.Errorf("the store's export mark for %q is damaged", opt.SinceLast)
 		}
 		after = beU64(v)
 	}
@@ -106,7 +106,7 @@ func Export(s *store.Store, key *DeviceKey, path string, opt ExportOptions) (Exp
 		return res, err
 	}
 	if len(seqRaw) != 0 && len(seqRaw) != 8 || len(prev) != 0 && len(prev) != 32 {
-		return res, fmt.Errorf("data: the store's record of its last bundle (%s, %s) is damaged; exporting now would reuse bundle numbers", metaOutSeq, metaOutHash)
+		return res, fmt.Errorf("the store's record of its last bundle (%s, %s) is damaged; exporting now would reuse bundle numbers", metaOutSeq, metaOutHash)
 	}
 	seq := beU64(seqRaw)
 	folder := isFolderTarget(path)
@@ -165,7 +165,7 @@ func Export(s *store.Store, key *DeviceKey, path string, opt ExportOptions) (Exp
 		}
 		if _, err := s.ApplyRaw(nil, meta); err != nil {
 			os.Remove(name)
-			return res, fmt.Errorf("data: %s was written but could not be recorded in the store, so it was removed again: %w", name, err)
+			return res, fmt.Errorf("%s was written but could not be recorded in the store, so it was removed again: %w", name, err)
 		}
 		prev = sum[:]
 		res.Files = append(res.Files, name)

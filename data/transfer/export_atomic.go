@@ -24,7 +24,7 @@ var staleAfter = 10 * time.Second
 
 // ErrTargetExists refuses to write over an existing file. It wraps
 // fs.ErrExist.
-var ErrTargetExists = fmt.Errorf("data: file exists and is not replaced: %w", fs.ErrExist)
+var ErrTargetExists = fmt.Errorf("file exists and is not replaced: %w", fs.ErrExist)
 
 // WriteFileAtomic writes b to path so that path holds either its old
 // content or all of b, never a part: it writes a temporary file in the
@@ -49,7 +49,7 @@ func writeFile(path string, b []byte, perm os.FileMode, replace bool) (err error
 	dir := filepath.Dir(path)
 	f, err := os.CreateTemp(dir, tempPrefix+"*"+tempSuffix)
 	if err != nil {
-		return fmt.Errorf("data: cannot write in %s: %w", dir, err)
+		return fmt.Errorf("cannot write in %s: %w", dir, err)
 	}
 	lockTemp(f) // held until f is closed: CleanStaleTemps leaves it alone
 	tmp := f.Name()
@@ -63,18 +63,18 @@ func writeFile(path string, b []byte, perm os.FileMode, replace bool) (err error
 		}
 	}()
 	if err = f.Chmod(perm); err != nil {
-		return fmt.Errorf("data: %s: %w", tmp, err)
+		return fmt.Errorf("%s: %w", tmp, err)
 	}
 	if _, err = f.Write(b); err != nil {
-		return fmt.Errorf("data: writing %s: %w", tmp, err)
+		return fmt.Errorf("writing %s: %w", tmp, err)
 	}
 	if err = f.Sync(); err != nil {
-		return fmt.Errorf("data: syncing %s: %w", tmp, err)
+		return fmt.Errorf("syncing %s: %w", tmp, err)
 	}
 	if closeBeforeRename {
 		closed = true
 		if err = f.Close(); err != nil {
-			return fmt.Errorf("data: closing %s: %w", tmp, err)
+			return fmt.Errorf("closing %s: %w", tmp, err)
 		}
 	}
 	if replace {
@@ -86,12 +86,12 @@ func writeFile(path string, b []byte, perm os.FileMode, replace bool) (err error
 		return fmt.Errorf("%w: %s", ErrTargetExists, path)
 	}
 	if err != nil {
-		return fmt.Errorf("data: renaming into %s: %w", path, err)
+		return fmt.Errorf("renaming into %s: %w", path, err)
 	}
 	if !closed {
 		closed = true
 		if err = f.Close(); err != nil {
-			return fmt.Errorf("data: closing %s: %w", path, err)
+			return fmt.Errorf("closing %s: %w", path, err)
 		}
 	}
 	return syncDir(dir)
@@ -141,11 +141,11 @@ func CleanStaleTemps(dir string) int {
 func syncDir(dir string) error {
 	d, err := os.Open(dir)
 	if err != nil {
-		return fmt.Errorf("data: opening folder %s to sync: %w", dir, err)
+		return fmt.Errorf("opening folder %s to sync: %w", dir, err)
 	}
 	defer d.Close()
 	if err := d.Sync(); err != nil {
-		return fmt.Errorf("data: syncing folder %s: %w", dir, err)
+		return fmt.Errorf("syncing folder %s: %w", dir, err)
 	}
 	return nil
 }

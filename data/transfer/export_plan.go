@@ -52,7 +52,7 @@ func planExport(s *store.Store, self record.DeviceID, after uint64, limit int) (
 	err := s.ForEachRawSince(after, func(n uint64, id record.EventID, raw []byte) error {
 		dev, ok := record.AuthorOf(raw)
 		if !ok {
-			return fmt.Errorf("data: the stored event %s (insertion %d) is damaged: its author cannot be read", id.Short(), n)
+			return fmt.Errorf("the stored event %s (insertion %d) is damaged: its author cannot be read", id.Short(), n)
 		}
 		if dev != self {
 			need[id] = dev

@@ -14,7 +14,7 @@ import (
 // refuses it (ErrDeviceKey).
 func OpenStore(dir string, o store.Options) (*store.Store, *DeviceKey, error) {
 	if err := os.MkdirAll(dir, 0o700); err != nil {
-		return nil, nil, fmt.Errorf("data: create store folder: %w", err)
+		return nil, nil, fmt.Errorf("create store folder: %w", err)
 	}
 	key, _, err := LoadOrCreateDeviceKey(dir)
 	if err != nil {

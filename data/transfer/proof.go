@@ -134,7 +134,7 @@ func statement(dev record.DeviceID, ids []record.EventID) []byte {
 // matter).
 func NewAuthorProof(key *DeviceKey, ids []record.EventID) ([]byte, error) {
 	if len(ids) == 0 {
-		return nil, errors.New("data: an authorship proof lists at least one event")
+		return nil, errors.New("an authorship proof lists at least one event")
 	}
 	s := slices.Clone(ids)
 	slices.SortFunc(s, func(a, b record.EventID) int { return bytes.Compare(a[:], b[:]) })

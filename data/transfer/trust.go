@@ -48,7 +48,7 @@ type TrustList struct {
 // ErrUnsafePermissions refuses a trust list, key or store folder that
 // other users could change: whoever can write it decides whose bundles
 // this device imports.
-var ErrUnsafePermissions = errors.New("data: other users can change this file or folder")
+var ErrUnsafePermissions = errors.New("other users can change this file or folder")
 
 // LoadTrust reads dir/trust.json; a missing file is an empty list. The
 // store folder and the file must not be writable by group or others
