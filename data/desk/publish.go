@@ -23,4 +23,3 @@ func (d *Desk) Publish(ctx context.Context, dsn string, opt publish.Options) (pu
 	rep, err := publish.Publish(ctx, conn, d.st, opt)
 	return target, rep, err
 }
-
