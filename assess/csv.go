@@ -215,7 +215,7 @@ func parseRow(cr *csv.Reader, rec []string, cols []column, name string) (Pull, e
 		case math.IsNaN(v) || math.IsInf(v, 0):
 			return Pull{}, cerr(fmt.Sprintf("mass %s is not a finite number; write kilograms, e.g. 1.25", excerpt(cell)), ErrNonFiniteMass)
 		case v < 0:
-			return Pull{}, cerr(fmt.Sprintf("mass %g kg is negative; masses are 0 or more", v), ErrNegativeMass)
+			return Pull{}, cerr(fmt.Sprintf("mass %s kg is negative; masses are 0 or more", Plain(v)), ErrNegativeMass)
 		}
 		p.Kg[c.cat] = v
 	}

@@ -89,11 +89,11 @@ func (s Spec) Validate() error {
 			return bad("limit %d (%s): bounds are mass fractions from 0 to 1; write fractions: 0.005 for 0.5 %%", i+1, l.Item)
 		}
 		if l.Max != nil && *l.Max > MaxContaminantLimit && !isTarget(l.Item) && !l.AllowLargeMax {
-			return bad("limit %d (%s): max %g is %g %% of the bale, above %g %% for a contaminant; write fractions: 0.005 for 0.5 %%; if %g %% is meant, add \"allow_large_max\": true to the limit",
-				i+1, l.Item, *l.Max, 100**l.Max, 100*MaxContaminantLimit, 100**l.Max)
+			return bad("limit %d (%s): max %s is %s %% of the bale, above %s %% for a contaminant; write fractions: 0.005 for 0.5 %%; if %s %% is meant, add \"allow_large_max\": true to the limit",
+				i+1, l.Item, Plain(*l.Max), Plain(100**l.Max), Plain(100*MaxContaminantLimit), Plain(100**l.Max))
 		}
 		if l.Min != nil && l.Max != nil && *l.Min > *l.Max {
-			return bad("limit %d (%s): min %g is above max %g", i+1, l.Item, *l.Min, *l.Max)
+			return bad("limit %d (%s): min %s is above max %s", i+1, l.Item, Plain(*l.Min), Plain(*l.Max))
 		}
 	}
 	for _, z := range s.ZeroTolerance {
@@ -108,7 +108,7 @@ func (s Spec) Validate() error {
 		}
 		names[g.Name] = true
 		if math.IsNaN(g.MinPET) || g.MinPET < 0 || g.MinPET > 1 {
-			return bad("grade %q: min_pet %g is not a fraction from 0 to 1", g.Name, g.MinPET)
+			return bad("grade %q: min_pet %s is not a fraction from 0 to 1", g.Name, Plain(g.MinPET))
 		}
 	}
 	return nil

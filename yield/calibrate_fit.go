@@ -107,7 +107,7 @@ func (f *fit) state(theta []float64, withJac bool) (fitState, error) {
 		case errD == nil:
 			pu, span = pred, h
 		default:
-			return fitState{}, fmt.Errorf("%w: the line does not run near %s = %g: %w", ErrCalibration, f.refs[j], theta[j], errU)
+			return fitState{}, fmt.Errorf("%w: the line does not run near %s = %s: %w", ErrCalibration, f.refs[j], assess.Plain(theta[j]), errU)
 		}
 		for i := range f.ms {
 			for a := range pu[i] {

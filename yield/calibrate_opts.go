@@ -84,7 +84,7 @@ func (o CalibrateOptions) check() error {
 		}
 	}
 	if o.ScaleRelSD > 0.5 {
-		return fieldErr("calibration", "scale_rel_sd", ErrOutOfRange, "%g: give the relative error as a fraction (0.005 for half a per cent)", o.ScaleRelSD)
+		return fieldErr("calibration", "scale_rel_sd", ErrOutOfRange, "%s: give the relative error as a fraction (0.005 for half a per cent)", assess.Plain(o.ScaleRelSD))
 	}
 	return nil
 }

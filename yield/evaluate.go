@@ -221,7 +221,7 @@ func lineWarnings(labels []string, comp []float64, bal Balance) []string {
 		w = append(w, fmt.Sprintf("hazards were found in pulls %s: the bale must be sorted by hand before it goes on the line; the model assumes only what the line profile removes", strings.Join(labels, ", ")))
 	}
 	if bal.Flake[hz] > 0 {
-		w = append(w, fmt.Sprintf("%.3g kg of hazard items reach the flake: this line profile does not remove them; add a sort stage with removal hazard = 1", bal.Flake[hz]))
+		w = append(w, fmt.Sprintf("%s kg of hazard items reach the flake: this line profile does not remove them; add a sort stage with removal hazard = 1", assess.Sig(bal.Flake[hz], 3)))
 	}
 	al, _ := assess.CategoryIndex("aluminium")
 	if comp[al] > 0 {

@@ -111,7 +111,7 @@ func (s FlakeSpec) Validate() error {
 			return err
 		}
 		if (FlakeItem(it) == ItemMoisture || FlakeItem(it) == ItemFines) && *l > 100 {
-			return fieldErr("flake spec "+s.Name, FlakeItem(it).String(), ErrOutOfRange, "%g is above 100 %%; give a percentage", *l)
+			return fieldErr("flake spec "+s.Name, FlakeItem(it).String(), ErrOutOfRange, "%s is above 100 %%; give a percentage", assess.Plain(*l))
 		}
 	}
 	if !any {

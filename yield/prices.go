@@ -1,6 +1,7 @@
 package yield
 
 import (
+	"baleassay/assess"
 	"bytes"
 	"encoding/json"
 	"errors"
@@ -159,7 +160,7 @@ func (p *PriceSheet) Validate() error {
 			}
 		}
 		if h.Max <= h.Min {
-			return fieldErr(where, "hydroxyl_value", ErrBadPrices, "max %g is not above min %g (mg KOH/g)", h.Max, h.Min)
+			return fieldErr(where, "hydroxyl_value", ErrBadPrices, "max %s is not above min %s (mg KOH/g)", assess.Plain(h.Max), assess.Plain(h.Min))
 		}
 		if err := checkMoney(where, "hydroxyl_value.deduction_per_t", h.DeductionPerT, true); err != nil {
 			return err
@@ -173,10 +174,10 @@ func checkMoney(where, field string, v float64, cost bool) error {
 		return fieldErr(where, field, ErrBadNumber, "%v is not a number", v)
 	}
 	if cost && v < 0 {
-		return fieldErr(where, field, ErrOutOfRange, "%g: a cost or deduction is not negative; give it as a positive amount per tonne", v)
+		return fieldErr(where, field, ErrOutOfRange, "%s: a cost or deduction is not negative; give it as a positive amount per tonne", assess.Plain(v))
 	}
 	if v > maxPricePerT || v < -maxPricePerT {
-		return fieldErr(where, field, ErrOutOfRange, "%g per tonne is beyond any market; check the decimal point", v)
+		return fieldErr(where, field, ErrOutOfRange, "%s per tonne is beyond any market; check the decimal point", assess.Plain(v))
 	}
 	return nil
 }

@@ -9,6 +9,7 @@ import (
 	"os"
 	"text/tabwriter"
 
+	"baleassay/assess"
 	"baleassay/data/desk"
 	"baleassay/yield"
 )
@@ -119,7 +120,7 @@ func num3(x float64) string {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
 		return "–"
 	}
-	return fmt.Sprintf("%.4g", x)
+	return assess.Sig(x, 4)
 }
 
 func quantityUnit(q yield.Observable) string {
@@ -181,8 +182,8 @@ func printCalibration(w io.Writer, rep desk.CalibrationReport) {
 			if e.Informed < 0.05 {
 				continue
 			}
-			fmt.Fprintf(tw, "    %s\t[%.4g, %.4g]\t%.4g ± %.2g\t%s\t[%.4g, %.4g]\t\n", e.Ref.Label(lr.Current), e.Prior.Lo, e.Prior.Hi, e.Mean, e.SD,
-				pctOf(e.Informed), e.Proposed.Lo, e.Proposed.Hi)
+			fmt.Fprintf(tw, "    %s\t[%s, %s]\t%s ± %s\t%s\t[%s, %s]\t\n", e.Ref.Label(lr.Current), assess.Sig(e.Prior.Lo, 4), assess.Sig(e.Prior.Hi, 4), assess.Sig(e.Mean, 4), assess.Sig(e.SD, 2),
+				pctOf(e.Informed), assess.Sig(e.Proposed.Lo, 4), assess.Sig(e.Proposed.Hi, 4))
 		}
 		tw.Flush()
 		left := 0

@@ -45,7 +45,7 @@ func runLoad(args []string, stdout, stderr io.Writer) error {
 		return usagef("name the audited bales: stored bales (tag or id), or pulls files as FILE:KG")
 	}
 	if !(*conf > 0 && *conf < 1) {
-		return usagef("--confidence %g: give a level between 0 and 1, e.g. 0.90", *conf)
+		return usagef("--confidence %s: give a level between 0 and 1, e.g. 0.90", assess.Plain(*conf))
 	}
 	if *bales < 0 || math.IsNaN(*loadKg) || *loadKg < 0 || !(*baleCost > 0) {
 		return usagef("--bales, --load-kg and --bale-cost take numbers of 0 or more (--bale-cost above 0)")
@@ -132,7 +132,7 @@ func printLoad(w io.Writer, la desk.LoadAudit) {
 		if a.CostPulls != nil {
 			parts = append(parts, fmt.Sprintf("%d more pulls (%d per bale)", *a.MorePulls, *a.PullsPerBale))
 		}
-		fmt.Fprintf(w, "  Effort, with a bale counted as %g pulls besides its own: %s.\n", a.BaleCost, strings.Join(parts, "; "))
+		fmt.Fprintf(w, "  Effort, with a bale counted as %s pulls besides its own: %s.\n", assess.Plain(a.BaleCost), strings.Join(parts, "; "))
 	}
 	for _, n := range r.Notes {
 		fmt.Fprintf(w, "Note: %s\n", n)

@@ -88,7 +88,7 @@ func (f *shareFlag) String() string {
 		return ""
 	}
 	if f.p.Varies() {
-		return fmt.Sprintf("%g:%g", f.p.Lo, f.p.Hi)
+		return fmt.Sprintf("%s:%s", assess.Plain(f.p.Lo), assess.Plain(f.p.Hi))
 	}
 	return fmt.Sprint(f.p.Lo)
 }

@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"time"
 
+	"baleassay/assess"
 	"baleassay/yield"
 )
 
@@ -206,7 +207,7 @@ func validateMeasured(m MeasuredRecord) error {
 			return &FieldError{Field: "measured.moisture_pct", Value: fnum(*p), Err: ErrNonFinite}
 		}
 		if *p < 0 || *p > MaxFlakeMoisturePct {
-			return measuredErr("measured.moisture_pct", *p, "give the flake's moisture in %% of the wet flake, 0 to %g", MaxFlakeMoisturePct)
+			return measuredErr("measured.moisture_pct", *p, "give the flake's moisture in %% of the wet flake, 0 to %s", assess.Plain(MaxFlakeMoisturePct))
 		}
 	}
 	if len(m.StreamsKg) > maxStreams {
@@ -238,7 +239,7 @@ func validateReactor(r ReactorRecord, batchFlakeKg float64) error {
 		return &FieldError{Field: "measured.reactor.glycol", Value: r.Glycol, Err: fmt.Errorf("%w: %w", ErrInvalid, err)}
 	}
 	if err := checkMassOr("measured.reactor.glycol_kg", r.GlycolKg, true, MaxGlycolRatio*r.FlakeKg,
-		"more than %g times the flake charged; check the unit (kg)", MaxGlycolRatio); err != nil {
+		"more than %s times the flake charged; check the unit (kg)", assess.Plain(MaxGlycolRatio)); err != nil {
 		return err
 	}
 	if math.IsNaN(r.StripEG) || r.StripEG < 0 || r.StripEG > 1 {
