@@ -10,7 +10,6 @@ import (
 	"strings"
 	"text/tabwriter"
 
-	"baleassay/assess"
 	"baleassay/data/desk"
 	"baleassay/yield"
 )
@@ -171,7 +170,7 @@ func runValue(args []string, stdout, stderr io.Writer) error {
 	if !flagSet(fs, "bale-kg") || !(a.baleKg > 0) || math.IsInf(a.baleKg, 0) {
 		return usagef("--bale-kg is required with a pulls file: the bale's gross mass in kg, above 0")
 	}
-	pulls, err := assess.ReadPullsFile(pos[0])
+	pulls, err := desk.ReadPullsFile(pos[0], 0)
 	if err != nil {
 		return err
 	}

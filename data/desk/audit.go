@@ -214,11 +214,10 @@ func (d *Desk) AuditBale(text string, opt AuditOptions) (Audit, error) {
 // AuditPulls assesses pulls read from a file; baleKg 0 means the bale's
 // mass is not known. It may be called on a nil *Desk (no store open).
 func (d *Desk) AuditPulls(pulls []assess.Pull, baleKg float64, opt AuditOptions) (Audit, error) {
-	a := assess.Audit{Pulls: pulls, BaleKg: baleKg}
-	if s := a.SampledKg(); baleKg > 0 && baleKg < s*(1-1e-9) {
-		return Audit{}, fmt.Errorf("%w: the bale's %s kg is less than the %s kg sampled; check the bale's mass or the pull masses", ErrUsage, Num(baleKg, 3), Num(s, 3))
+	if err := checkBaleKg(pulls, baleKg, false); err != nil {
+		return Audit{}, err
 	}
-	return d.audit(a, opt)
+	return d.audit(assess.Audit{Pulls: pulls, BaleKg: baleKg}, opt)
 }
 
 func (d *Desk) audit(a assess.Audit, opt AuditOptions) (Audit, error) {

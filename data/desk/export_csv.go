@@ -193,7 +193,7 @@ func (d *Desk) writePulls(cw *csv.Writer, points []BalePoint) (int, error) {
 	for _, c := range cats {
 		header = append(header, c.Key+"_pieces")
 	}
-	header = append(header, "conflicted")
+	header = append(header, "total_pieces", "conflicted")
 	if err := cw.Write(header); err != nil {
 		return 0, err
 	}
@@ -219,7 +219,7 @@ func (d *Desk) writePulls(cw *csv.Writer, points []BalePoint) (int, error) {
 					rec = append(rec, "")
 				}
 			}
-			rec = append(rec, fbool(pv.Conflicted))
+			rec = append(rec, fpos(float64(pr.TotalPieces), 0), fbool(pv.Conflicted))
 			if err := cw.Write(rec); err != nil {
 				return n, err
 			}

@@ -347,14 +347,20 @@ func TestExportCSVBalesRoundTrip(t *testing.T) {
 func TestExportCSVPullsRoundTrip(t *testing.T) {
 	d := demoScenario(t)
 	r := DateRange{From: time.Date(2026, 11, 9, 0, 0, 0, 0, time.UTC), Until: time.Date(2026, 11, 16, 0, 0, 0, 0, time.UTC)}
-	header, readers := readBack(t, exportCSV(t, d, TablePulls, ExportOptions{Range: r}))
-	if want := 9 + 2*assess.NumCategories() + 1; len(header) != want {
-		t.Fatalf("%d columns, want %d", len(header), want)
-	}
 	rows, err := d.Bales(BaleFilter{Range: r})
-	if err != nil {
+	if err != nil || len(rows) == 0 {
+		t.Fatalf("%d bales in the week: %v", len(rows), err)
+	}
+	// One pull with its pieces examined (an invented count).
+	counted := record.PullRecord{Label: "PX", Kg: map[string]float64{"pet_clear": 18.2, "pvc": 0.3}, Pieces: map[string]int64{"pvc": 7}, TotalPieces: 611}
+	if _, _, err := d.AddPulls(rows[0].ID.String(), []record.PullRecord{counted}, SaveOptions{Confirm: true}); err != nil {
 		t.Fatal(err)
 	}
+	header, readers := readBack(t, exportCSV(t, d, TablePulls, ExportOptions{Range: r}))
+	if want := 9 + 2*assess.NumCategories() + 2; len(header) != want {
+		t.Fatalf("%d columns, want %d", len(header), want)
+	}
+	totals := 0
 	exp := map[string]map[string]want{}
 	for _, b := range rows {
 		_, ps, err := d.Pulls(b.ID.String())
@@ -368,6 +374,11 @@ func TestExportCSVPullsRoundTrip(t *testing.T) {
 			if p.Pull.StatedKg != 0 {
 				w["weighed_kg"] = wn(p.Pull.StatedKg, KgDigits)
 			}
+			w["total_pieces"] = none
+			if p.Pull.TotalPieces != 0 {
+				w["total_pieces"] = wn(float64(p.Pull.TotalPieces), 0)
+				totals++
+			}
 			for _, c := range assess.Categories() {
 				w[c.Key+"_kg"] = wn(p.Pull.Kg[c.Key], KgDigits)
 				w[c.Key+"_pieces"] = none
@@ -377,6 +388,9 @@ func TestExportCSVPullsRoundTrip(t *testing.T) {
 			}
 			exp[p.ID.String()] = w
 		}
+	}
+	if totals != 1 {
+		t.Fatalf("%d pulls with pieces examined, want the one added", totals)
 	}
 	compare(t, header, readers, "pull_id", exp)
 }

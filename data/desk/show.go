@@ -177,6 +177,9 @@ func Describe(e record.Event) string {
 		if p.StatedKg > 0 {
 			t += fmt.Sprintf(" of %s kg weighed", Num(p.StatedKg, 3))
 		}
+		if p.TotalPieces > 0 {
+			t += ", " + Plural(int(p.TotalPieces), "piece", "pieces") + " examined"
+		}
 		return t + ": " + strings.Join(parts, ", ")
 	case e.Setting != nil:
 		return fmt.Sprintf("%s %q (%d bytes of JSON)", settingKindOf(e.Setting.Kind), e.Setting.Name, len(e.Setting.Body))

@@ -51,8 +51,8 @@ func (v BaleValue) Headline() yield.RouteValue { return v.Value.Of(v.Value.Headl
 // the yield is priced by the sheet (yield.Value). It may be called on a
 // nil *Desk.
 func (d *Desk) ValuePulls(ctx context.Context, pulls []assess.Pull, baleKg float64, plan yield.Plan, opt ValueOptions, progress func(Progress)) (BaleValue, error) {
-	if s := (assess.Audit{Pulls: pulls}).SampledKg(); baleKg < s*(1-1e-9) {
-		return BaleValue{}, fmt.Errorf("%w: the bale's %s kg is less than the %s kg sampled; check the bale's mass or the pull masses", ErrUsage, Num(baleKg, 3), Num(s, 3))
+	if err := checkBaleKg(pulls, baleKg, true); err != nil {
+		return BaleValue{}, err
 	}
 	var cb func(done, of int)
 	if progress != nil {

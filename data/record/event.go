@@ -137,14 +137,27 @@ func (b BaleRecord) DensityKgM3() float64 {
 
 // PullRecord is one grab sample, sorted and weighed. Kg and Pieces are
 // keyed by the category keys of package assess. StatedKg is the pull's
-// mass as weighed before sorting, 0 when not weighed.
+// mass as weighed before sorting, 0 when not weighed. TotalPieces is the
+// number of pieces examined in the pull, all categories together (the
+// denominator of a piece share, assess.Pull.TotalPieces), 0 when not
+// counted.
 type PullRecord struct {
-	Bale     EntityID           `cbor:"1,keyasint"`
-	Label    string             `cbor:"2,keyasint"`
-	TakenMs  int64              `cbor:"3,keyasint,omitempty"`
-	Kg       map[string]float64 `cbor:"4,keyasint"`
-	Pieces   map[string]int64   `cbor:"5,keyasint,omitempty"`
-	StatedKg float64            `cbor:"6,keyasint,omitempty"`
+	Bale        EntityID           `cbor:"1,keyasint"`
+	Label       string             `cbor:"2,keyasint"`
+	TakenMs     int64              `cbor:"3,keyasint,omitempty"`
+	Kg          map[string]float64 `cbor:"4,keyasint"`
+	Pieces      map[string]int64   `cbor:"5,keyasint,omitempty"`
+	StatedKg    float64            `cbor:"6,keyasint,omitempty"`
+	TotalPieces int64              `cbor:"7,keyasint,omitempty"`
+}
+
+// CountedPieces is the sum of the per-category piece counts.
+func (p PullRecord) CountedPieces() int64 {
+	var n int64
+	for _, c := range p.Pieces {
+		n += c
+	}
+	return n
 }
 
 // PartsKg is the sum of the sorted parts.

@@ -62,6 +62,12 @@ func checkDate(field string, ms int64) error {
 	return nil
 }
 
+// ValidateGrossKg holds a bale's gross mass to the rule of a save: finite,
+// above 0, at most MaxBaleKg (for a mass given beside a pulls file).
+func ValidateGrossKg(kg float64) error {
+	return checkKg("bale.gross_kg", kg, true, ErrNonFinite, ErrNotPositive)
+}
+
 // checkKg refuses a mass that is not finite, negative or above MaxBaleKg.
 // positive also refuses zero. nonFinite and negative are the sentinels
 // the caller's rule uses (pull parts use package assess's).
@@ -73,7 +79,7 @@ func checkKg(field string, x float64, positive bool, nonFinite, negative error) 
 		return &FieldError{Field: field, Value: fnum(x), Err: negative}
 	case x > MaxBaleKg:
 		return &FieldError{Field: field, Value: fnum(x),
-			Err: fmt.Errorf("%w: above %g kg, more than any bale weighs; check the unit (kg)", ErrOutOfRange, MaxBaleKg)}
+			Err: fmt.Errorf("%w: above %s kg, more than any bale weighs; check the unit (kg)", ErrOutOfRange, assess.Plain(MaxBaleKg))}
 	}
 	return nil
 }

@@ -143,7 +143,9 @@ func ValidateEventAt(e Event, now time.Time) ([]Warning, error) {
 	return append(w, ww...), nil
 }
 
-func fnum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+// fnum writes a number for a message: plain decimals, never an
+// exponent (assess.Plain).
+func fnum(x float64) string { return assess.Plain(x) }
 
 // checkFinite returns a FieldError for NaN or ±Inf.
 func checkFinite(field string, x float64) error {
@@ -235,7 +237,7 @@ func validateBale(b BaleRecord) ([]Warning, error) {
 			return nil, &FieldError{Field: d.name, Value: fnum(d.v), Err: ErrNegative}
 		}
 		if d.v > MaxBaleDimM {
-			return nil, &FieldError{Field: d.name, Value: fnum(d.v), Err: fmt.Errorf("%w: above %g m; give metres, not centimetres", ErrOutOfRange, MaxBaleDimM)}
+			return nil, &FieldError{Field: d.name, Value: fnum(d.v), Err: fmt.Errorf("%w: above %s m; give metres, not centimetres", ErrOutOfRange, assess.Plain(MaxBaleDimM))}
 		}
 		if d.v == 0 {
 			zero++
@@ -293,6 +295,19 @@ func assessPull(p PullRecord, kgKeys []string) (assess.Pull, error) {
 			return ap, &FieldError{Field: "pull.pieces." + k, Err: err}
 		}
 	}
+	if n := p.TotalPieces; n != 0 {
+		v := strconv.FormatInt(n, 10)
+		switch counted := p.CountedPieces(); {
+		case n < 0:
+			return ap, &FieldError{Field: "pull.total_count", Value: v, Err: assess.ErrNegativeCount}
+		case n > MaxPieces:
+			return ap, &FieldError{Field: "pull.total_count", Value: v, Err: fmt.Errorf("%w: above %d pieces", ErrOutOfRange, MaxPieces)}
+		case n < counted:
+			return ap, &FieldError{Field: "pull.total_count", Value: v,
+				Err: fmt.Errorf("%w: the categories count %d; the total counts every piece of the pull", assess.ErrBadTotal, counted)}
+		}
+		ap.TotalPieces = int(n)
+	}
 	return ap, nil
 }
 
@@ -300,6 +315,16 @@ func validatePull(p PullRecord) error {
 	if p.Bale.IsZero() {
 		return &FieldError{Field: "pull.bale", Err: ErrMissingID}
 	}
+	return ValidatePullValues(p)
+}
+
+// ValidatePullValues holds a pull's own values to the rules of a save:
+// its label and date, known categories, every mass finite, at least 0,
+// each part and their sum at most MaxBaleKg, a total above 0, the piece
+// counts and the pieces examined, the parts against the weighed mass.
+// Everything but the bale it belongs to, so that pulls read from a file
+// for an audit without a store meet the same bounds as stored ones.
+func ValidatePullValues(p PullRecord) error {
 	if err := checkText("pull.label", p.Label, maxNameRunes, true); err != nil {
 		return err
 	}
@@ -321,7 +346,7 @@ func validatePull(p PullRecord) error {
 	// finite; the sum itself is held to the same bound.
 	if parts := partsKg(p, kgKeys); parts > MaxBaleKg {
 		return &FieldError{Field: "pull.kg", Value: fmt.Sprintf("parts total %s kg", fnum(parts)),
-			Err: fmt.Errorf("%w: a pull weighs at most %g kg, the most a bale weighs", ErrOutOfRange, MaxBaleKg)}
+			Err: fmt.Errorf("%w: a pull weighs at most %s kg, the most a bale weighs", ErrOutOfRange, assess.Plain(MaxBaleKg))}
 	}
 	if err := checkKg("pull.stated_kg", p.StatedKg, false, ErrNonFinite, ErrNegative); err != nil {
 		return err

@@ -100,6 +100,7 @@ func TestCDDLMatchesCode(t *testing.T) {
 		{"clock-ms", strconv.FormatInt(record.MinTimeMs, 10) + ".." + strconv.FormatInt(record.MaxTimeMs-1, 10)},
 		{"date-ms", strconv.FormatInt(record.MinDateMs, 10) + ".." + strconv.FormatInt(record.MaxTimeMs-1, 10)},
 		{"pull", "0.." + strconv.Itoa(record.MaxPieces)},
+		{"pull", "7 => 1.." + strconv.Itoa(record.MaxPieces) + ","},
 		{"measured", "[1*" + strconv.Itoa(record.MaxBatchBales) + " entity-id]"},
 		{"measured", "0.0.." + strconv.FormatFloat(record.MaxFlakeMoisturePct, 'f', 1, 64)},
 		{"bundle-body", "at most " + strconv.Itoa(MaxBundleProofs)},
