@@ -51,7 +51,7 @@ func parseFlags(args []string, stderr io.Writer) (options, error) {
 		return o, errors.New("give either --store DIR or --demo, not both")
 	}
 	if o.scale < 0.5 || o.scale > 3 {
-		return o, fmt.Errorf("--scale %g: give a text scale from 0.5 to 3", o.scale)
+		return o, fmt.Errorf("--scale %s: give a text scale from 0.5 to 3", strconv.FormatFloat(o.scale, 'f', -1, 64))
 	}
 	w, h, ok := strings.Cut(*size, "x")
 	o.w, _ = strconv.Atoi(w)
