@@ -50,17 +50,25 @@ func TestWriteFileNeverReplacesWithoutForce(t *testing.T) {
 	}
 }
 
-// TestPlaceRaceLoses checks the last step alone: a file that appears
-// between the check and the link is not replaced.
-func TestPlaceRaceLoses(t *testing.T) {
+// TestWriteFileRaceLoses: a file that appears while the bytes are being
+// written (after the check) is not replaced: the last step refuses it.
+func TestWriteFileRaceLoses(t *testing.T) {
 	dir := t.TempDir()
-	tmp, dst := filepath.Join(dir, ".tmp"), filepath.Join(dir, "out.html")
-	os.WriteFile(tmp, []byte("new"), 0o644)
-	os.WriteFile(dst, []byte("theirs"), 0o644)
-	if err := place(tmp, dst, false); !errors.Is(err, ErrExists) {
-		t.Fatalf("place over an existing file: %v", err)
+	dst := filepath.Join(dir, "out.html")
+	err := WriteFile(dst, false, func(w io.Writer) error {
+		if err := os.WriteFile(dst, []byte("theirs"), 0o644); err != nil {
+			return err
+		}
+		_, err := io.WriteString(w, "new")
+		return err
+	})
+	if !errors.Is(err, ErrExists) {
+		t.Fatalf("a file made during the write: %v", err)
 	}
 	if b, _ := os.ReadFile(dst); string(b) != "theirs" {
 		t.Fatalf("existing file replaced: %q", b)
+	}
+	if ents, _ := os.ReadDir(dir); len(ents) != 1 {
+		t.Fatalf("temporary files left: %v", ents)
 	}
 }

@@ -1,8 +1,10 @@
 package transfer
 
 import (
+	"bufio"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -45,7 +47,36 @@ func WriteFileNew(path string, b []byte, perm os.FileMode) error {
 	return writeFile(path, b, perm, false)
 }
 
-func writeFile(path string, b []byte, perm os.FileMode, replace bool) (err error) {
+// WriteStream is WriteFileAtomic (replace) or WriteFileNew (not replace)
+// with the bytes written by write through a buffer, so that a large
+// export or report never sits in memory whole. When write fails nothing
+// appears at path and write's error is returned as it is.
+func WriteStream(path string, perm os.FileMode, replace bool, write func(w io.Writer) error) error {
+	return writeWith(path, perm, replace, func(f *os.File, tmp string) error {
+		bw := bufio.NewWriterSize(f, 1<<16)
+		if err := write(bw); err != nil {
+			return err
+		}
+		if err := bw.Flush(); err != nil {
+			return fmt.Errorf("writing %s: %w", tmp, err)
+		}
+		return nil
+	})
+}
+
+func writeFile(path string, b []byte, perm os.FileMode, replace bool) error {
+	return writeWith(path, perm, replace, func(f *os.File, tmp string) error {
+		if _, err := f.Write(b); err != nil {
+			return fmt.Errorf("writing %s: %w", tmp, err)
+		}
+		return nil
+	})
+}
+
+// writeWith writes a temporary file in path's folder through fill,
+// syncs it and puts it in place (replacing path or never), then syncs
+// the folder.
+func writeWith(path string, perm os.FileMode, replace bool, fill func(f *os.File, tmp string) error) (err error) {
 	dir := filepath.Dir(path)
 	f, err := os.CreateTemp(dir, tempPrefix+"*"+tempSuffix)
 	if err != nil {
@@ -65,8 +96,8 @@ func writeFile(path string, b []byte, perm os.FileMode, replace bool) (err error
 	if err = f.Chmod(perm); err != nil {
 		return fmt.Errorf("%s: %w", tmp, err)
 	}
-	if _, err = f.Write(b); err != nil {
-		return fmt.Errorf("writing %s: %w", tmp, err)
+	if err = fill(f, tmp); err != nil {
+		return err
 	}
 	if err = f.Sync(); err != nil {
 		return fmt.Errorf("syncing %s: %w", tmp, err)

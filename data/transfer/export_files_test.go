@@ -3,6 +3,7 @@ package transfer
 import (
 	"bytes"
 	"errors"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -114,5 +115,36 @@ func TestExportCleansStaleTemps(t *testing.T) {
 	}
 	if _, err := os.Stat(live.Name()); err != nil {
 		t.Fatalf("a live writer's temp was removed: %v", err)
+	}
+}
+
+// WriteStream writes through a buffer as WriteFileNew writes a slice: a
+// failed writer leaves nothing, an existing file is never replaced
+// without replace, and is with it.
+func TestWriteStream(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "pulls.csv")
+	boom := errors.New("boom")
+	if err := WriteStream(path, 0o644, false, func(w io.Writer) error { io.WriteString(w, "half"); return boom }); !errors.Is(err, boom) {
+		t.Fatalf("failed writer: %v", err)
+	}
+	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
+		t.Fatalf("a failed write left %v", ents)
+	}
+	big := strings.Repeat("pull,pet_clear\n", 10_000) // beyond one buffer
+	if err := WriteStream(path, 0o644, false, func(w io.Writer) error { _, err := io.WriteString(w, big); return err }); err != nil {
+		t.Fatal(err)
+	}
+	if b, _ := os.ReadFile(path); string(b) != big {
+		t.Fatalf("wrote %d bytes, want %d", len(b), len(big))
+	}
+	if err := WriteStream(path, 0o644, false, func(w io.Writer) error { return nil }); !errors.Is(err, ErrTargetExists) {
+		t.Fatalf("over an existing file: %v", err)
+	}
+	if err := WriteStream(path, 0o644, true, func(w io.Writer) error { _, err := io.WriteString(w, "new"); return err }); err != nil {
+		t.Fatal(err)
+	}
+	if b, _ := os.ReadFile(path); string(b) != "new" {
+		t.Fatalf("replace: file holds %q", b)
 	}
 }
