@@ -117,3 +117,41 @@ func TestCDDLMatchesCode(t *testing.T) {
 		t.Errorf("category-key %v, catalogue %v", cats, assess.CategoryKeys())
 	}
 }
+
+// TestCDDLNamesMatchInspect holds the field names bale inspect prints to
+// bundle.cddl: every integer key of a rule is named, and its name is the
+// one the rule's comment gives ("3 => kg, ; gross_kg: ...") or, for a
+// payload, the rule it points to ("7 => site").
+func TestCDDLNamesMatchInspect(t *testing.T) {
+	b, err := os.ReadFile("bundle.cddl")
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := string(b)
+	rules := NamedRules()
+	if len(rules) != 10 {
+		t.Fatalf("%d named rules, want 10", len(rules))
+	}
+	for rule, names := range rules {
+		text := cddlRule(t, src, rule)
+		if rule == "event" {
+			text += cddlRule(t, src, "live") + cddlRule(t, src, "tombstone")
+		}
+		keys := cddlKeys(text)
+		if len(keys) != len(names) {
+			t.Errorf("%s: CDDL keys %v, named %v", rule, keys, names)
+		}
+		for _, k := range keys {
+			name, ok := names[uint64(k)]
+			if !ok {
+				t.Errorf("%s: key %d has no name", rule, k)
+				continue
+			}
+			commented := regexp.MustCompile(`(?m)^\s*\??\s*` + strconv.Itoa(k) + ` =>[^;\n]*;\s*` + regexp.QuoteMeta(name) + `(:|$)`)
+			payload := regexp.MustCompile(`(^|[\s(,])` + strconv.Itoa(k) + ` => ` + regexp.QuoteMeta(name) + `\b`)
+			if !commented.MatchString(text) && !payload.MatchString(text) {
+				t.Errorf("%s: key %d is named %q, which bundle.cddl does not give it", rule, k, name)
+			}
+		}
+	}
+}

@@ -1,6 +1,7 @@
 package transfer
 
 import (
+	"baleassay/data/record"
 	"errors"
 	"fmt"
 )
@@ -105,7 +106,12 @@ type EventRefusedError struct {
 }
 
 func (e *EventRefusedError) Error() string {
-	return fmt.Sprintf("%v: events[%d] (id %.16s…): %v", ErrBundleEvent, e.Index, e.ID, e.Err)
+	cause := e.Err
+	var ee *record.EventError
+	if errors.As(cause, &ee) { // its index and id are said here already
+		cause = ee.Err
+	}
+	return fmt.Sprintf("%v: event %d of the bundle (id %.16s…): %v", ErrBundleEvent, e.Index+1, e.ID, cause)
 }
 
 // Unwrap exposes both ErrBundleEvent and the underlying cause.

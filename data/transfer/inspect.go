@@ -4,9 +4,7 @@ import (
 	"baleassay/data/record"
 	"encoding/hex"
 	"fmt"
-	"io"
 	"strings"
-	"time"
 
 	"github.com/fxamacker/cbor/v2"
 )
@@ -26,6 +24,15 @@ type Inspection struct {
 	Events      int   // events in the body
 	Proofs      []ProofInfo
 	Diagnostic  string // payload in CBOR diagnostic notation (RFC 8949 §8)
+	// Named is the payload with every field named as bundle.cddl names it
+	// (inspect_names.go); empty when the envelope could not be read.
+	Named string
+	// Raws and IDs are the events of the body (sub-slices of raw) with
+	// their checked ids, for checks the body reader does not make
+	// (decoding and validating each event, as an import does); nil when
+	// the body was refused before its events were read.
+	Raws [][]byte
+	IDs  []record.EventID
 }
 
 // diagMode prints byte strings in hex and stops at the bounds the
@@ -65,6 +72,7 @@ func InspectBundle(raw []byte, trust TrustFunc) Inspection {
 	if in.SigErr = verifySign1(env, env.kid); in.SigErr == nil {
 		in.SignatureOK = true
 	}
+	in.Named = namedBody(env.payload)
 	h, proofRaws, raws, ids, err := decodeBody(env.payload, env.payloadOff)
 	if err != nil {
 		in.BodyErr = err
@@ -75,7 +83,7 @@ func InspectBundle(raw []byte, trust TrustFunc) Inspection {
 		}
 		return in
 	}
-	in.Header, in.Events = h, len(raws)
+	in.Header, in.Events, in.Raws, in.IDs = h, len(raws), raws, ids
 	in.BodyErr = checkSigner(h, in.Signer, env.payloadOff)
 	for _, pr := range proofRaws {
 		pi := ProofInfo{Size: len(pr)}
@@ -149,54 +157,4 @@ func bodyDiagnostic(payload []byte, raws [][]byte) string {
 	}
 	b.WriteString("\n  ]\n]")
 	return b.String()
-}
-
-// WriteText prints the inspection for people.
-func (in Inspection) WriteText(w io.Writer) error {
-	p := func(format string, args ...any) { fmt.Fprintf(w, format+"\n", args...) }
-	p("size:       %d bytes", in.Size)
-	if in.EnvelopeErr != nil {
-		p("envelope:   NOT a valid bundle: %v", in.EnvelopeErr)
-		if in.Diagnostic != "" {
-			p("as CBOR (RFC 8949 §8 diagnostic notation):\n%s", in.Diagnostic)
-		}
-		return nil
-	}
-	p("envelope:   COSE_Sign1 (tag 18), algorithm %d (Ed25519)", AlgEd25519)
-	trust := "NOT trusted here (bale trust add FILE --name NAME, after checking the fingerprint with the sender)"
-	if in.Trusted {
-		trust = fmt.Sprintf("trusted as %q", in.SignerName)
-	}
-	p("signer:     %s, %s", in.Signer, trust)
-	if in.SignatureOK {
-		p("signature:  verifies")
-	} else {
-		p("signature:  DOES NOT VERIFY: %v", in.SigErr)
-	}
-	if in.BodyErr != nil {
-		p("body:       refused: %v", in.BodyErr)
-	} else {
-		h := in.Header
-		p("format:     %s version %d", BundleFormat, BundleVersion)
-		p("device:     %s", h.Device)
-		p("bundle:     %d (part %d of %d)", h.Seq, h.Part, h.Parts)
-		if h.Seq > 1 {
-			p("previous:   %s", hex.EncodeToString(h.Prev[:]))
-		}
-		p("clock:      %s+%d", time.UnixMilli(h.WallMs).UTC().Format(time.RFC3339), h.Logical)
-		p("events:     %d", in.Events)
-		for k, pi := range in.Proofs {
-			if pi.Err != nil {
-				p("proof %d:    REFUSED: %v", k+1, pi.Err)
-				continue
-			}
-			who := "another device"
-			if pi.Device == h.Device {
-				who = "the signer"
-			}
-			p("proof %d:    device %s (%s) signed for %d events, key %s", k+1, pi.Device, who, pi.Lists, pi.Key)
-		}
-	}
-	p("payload (RFC 8949 §8 diagnostic notation):\n%s", in.Diagnostic)
-	return nil
 }
