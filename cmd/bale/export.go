@@ -2,7 +2,6 @@ package main
 
 import (
 	"baleassay/data/desk"
-	"baleassay/data/transfer"
 	"fmt"
 	"io"
 )
@@ -28,7 +27,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	since := fs.String("since-last", "", "only what destination `DEST` (e.g. lab) has not had from this store yet")
 	all := fs.Bool("all", false, "every event in the store (the default)")
 	force := fs.Bool("force", false, "replace the file --to names if it exists (never done otherwise)")
-	partMB := fs.Int("part-mb", transfer.DefaultPartBytes>>20, "split into signed parts of at most `N` MiB")
+	partMB := fs.Int("part-mb", desk.DefaultPartMiB, "split into signed parts of at most `N` MiB")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -40,8 +39,8 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 		return usagef("give --to PATH")
 	case *all && *since != "":
 		return usagef("--all and --since-last exclude each other")
-	case *partMB < 1 || *partMB > transfer.MaxBundleBytes>>20:
-		return usagef("--part-mb must be 1 to %d", transfer.MaxBundleBytes>>20)
+	case *partMB < 1 || *partMB > desk.MaxPartMiB:
+		return usagef("--part-mb must be 1 to %d", desk.MaxPartMiB)
 	}
 	if err := desk.CheckExportTarget(*to); err != nil {
 		return err

@@ -70,7 +70,7 @@ func runImport(args []string, stdout, stderr io.Writer) error {
 		printImport(stdout, run, *everyFile)
 	}
 	if n := len(run.Refused); n > 0 {
-		return fmt.Errorf("%d of %d files refused (listed above); nothing of a refused file was applied", n, len(run.Report.Files))
+		return fmt.Errorf("%d of %s refused (listed above); nothing of a refused file was applied", n, desk.Plural(len(run.Report.Files), "file", "files"))
 	}
 	return nil
 }

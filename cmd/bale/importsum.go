@@ -8,20 +8,13 @@ import (
 	"strings"
 
 	"baleassay/data/desk"
-	"baleassay/data/transfer"
 )
 
 // countBundles expands the arguments as the import will and refuses, up
 // front, arguments that name no bundle at all.
 func countBundles(pos []string) (int, error) {
-	files, err := transfer.ExpandPaths(pos)
-	if err != nil {
-		return 0, err
-	}
-	if len(files) == 0 {
-		return 0, fmt.Errorf("no %s files in %s", transfer.BundleExt, strings.Join(pos, ", "))
-	}
-	return len(files), nil
+	files, err := desk.BundleFiles(pos)
+	return len(files), err
 }
 
 // printImport prints, after the run: every accepted file with a flag
@@ -48,7 +41,7 @@ func printImport(w io.Writer, run desk.ImportRun, every bool) {
 		desk.Plural(len(run.Report.Files), "file", "files"), run.Files, desk.Plural(run.Events, "event", "events"),
 		run.New, run.Present, desk.Plural(run.Conflicts, "conflict", "conflicts"), len(run.Refused))
 	if n := len(run.Skipped); n > 0 {
-		fmt.Fprintf(w, "; %s not ending in %s left alone", desk.Plural(n, "file", "files"), transfer.BundleExt)
+		fmt.Fprintf(w, "; %s not ending in %s left alone", desk.Plural(n, "file", "files"), desk.BundleExt)
 	}
 	fmt.Fprintln(w)
 	for _, r := range run.Refused {

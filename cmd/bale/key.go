@@ -1,7 +1,6 @@
 package main
 
 import (
-	"baleassay/data/transfer"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -33,12 +32,12 @@ func runKey(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	defer d.Close()
-	info, k, err := d.Key()
+	info, err := d.Key()
 	if err != nil {
 		return err
 	}
 	if *public != "" {
-		if err := transfer.WriteFileAtomic(*public, k.PublicPEM(), 0o644); err != nil {
+		if err := d.WritePublicKey(*public); err != nil {
 			return err
 		}
 	}

@@ -128,9 +128,9 @@ func publishProgress(w io.Writer) func(publish.Progress) {
 		switch {
 		case n[p.Step] < 2:
 		case p.Step == publish.StepAudits:
-			fmt.Fprintf(w, "publish: %d audits written\n", p.Audits)
+			fmt.Fprintf(w, "publishing: %d audits written\n", p.Audits)
 		default:
-			fmt.Fprintf(w, "publish: %d events read, %d new (store sequence %d)\n", p.Read, p.New, p.Seq)
+			fmt.Fprintf(w, "publishing: %d events read, %d new (store sequence %d)\n", p.Read, p.New, p.Seq)
 		}
 	}
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"baleassay/data/desk"
-	"baleassay/data/transfer"
 	"bufio"
 	"encoding/json"
 	"fmt"
@@ -124,11 +123,7 @@ func trustAdd(store, arg, name string, yes bool, expect string, stdout io.Writer
 }
 
 func trustList(store string, asJSON bool, stdout io.Writer) error {
-	dir, err := storeDir(store)
-	if err != nil {
-		return err
-	}
-	tl, _, err := desk.TrustIn(dir)
+	keys, err := desk.TrustedKeys(location(store))
 	if err != nil {
 		return err
 	}
@@ -139,16 +134,16 @@ func trustList(store string, asJSON bool, stdout io.Writer) error {
 			Device      string `json:"device"`
 		}
 		out := []entry{}
-		for _, e := range tl.Entries {
-			out = append(out, entry{e.Name, e.Fingerprint.String(), e.Device()})
+		for _, k := range keys {
+			out = append(out, entry{k.Name, k.Fingerprint.String(), k.Device.String()})
 		}
 		return json.NewEncoder(stdout).Encode(out)
 	}
-	if len(tl.Entries) == 0 {
-		fmt.Fprintf(stdout, "no trusted keys yet (%s's own key is always trusted); add one with: bale trust add FILE|FINGERPRINT --name NAME\n", transfer.SelfName)
+	if len(keys) == 0 {
+		fmt.Fprintf(stdout, "no trusted keys yet (%s's own key is always trusted); add one with: bale trust add FILE|FINGERPRINT --name NAME\n", desk.SelfName)
 	}
-	for _, e := range tl.Entries {
-		fmt.Fprintf(stdout, "%-24s %s  device %s\n", e.Name, e.Fingerprint, e.Device())
+	for _, k := range keys {
+		fmt.Fprintf(stdout, "%-24s %s  device %s\n", k.Name, k.Fingerprint, k.Device)
 	}
 	return nil
 }

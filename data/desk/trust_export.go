@@ -30,10 +30,13 @@ type BundleOptions struct {
 // fingerprint. A missing target folder is refused before anything is
 // written, with what to do.
 func (d *Desk) ExportBundles(to string, o BundleOptions) (transfer.ExportResult, transfer.Fingerprint, error) {
+	if o.PartBytes < 0 || o.PartBytes > transfer.MaxBundleBytes {
+		return transfer.ExportResult{}, transfer.Fingerprint{}, fmt.Errorf("%w: parts of 1 to %d MiB", ErrUsage, MaxPartMiB)
+	}
 	if err := CheckExportTarget(to); err != nil {
 		return transfer.ExportResult{}, transfer.Fingerprint{}, err
 	}
-	_, k, err := d.Key()
+	_, k, err := d.signingKey()
 	if err != nil {
 		return transfer.ExportResult{}, transfer.Fingerprint{}, err
 	}

@@ -3,7 +3,6 @@ package desk
 import (
 	"errors"
 	"fmt"
-	"path/filepath"
 	"strings"
 
 	"baleassay/data/record"
@@ -77,26 +76,4 @@ func (d *Desk) TrustKey(fp transfer.Fingerprint, name string) error {
 	d.tmu.Lock()
 	defer d.tmu.Unlock()
 	return transfer.UpdateTrust(d.st, func(tl *transfer.TrustList) error { return tl.Add(name, fp) })
-}
-
-// KeyInfo describes this device's signing key.
-type KeyInfo struct {
-	Device      record.DeviceID
-	Fingerprint transfer.Fingerprint
-	KeyFile     string
-	Created     bool // made by this command (with the store, or now)
-	// Bound: the store's device id is the key's, so its records can be
-	// proven. False only for a store made before ids were bound to keys.
-	Bound bool
-}
-
-// Key returns this device's signing key and what to show of it, making
-// the key if the store has none yet.
-func (d *Desk) Key() (KeyInfo, *transfer.DeviceKey, error) {
-	k, created, err := d.key()
-	if err != nil {
-		return KeyInfo{}, nil, fmt.Errorf("device signing key: %w", err)
-	}
-	return KeyInfo{Device: d.st.DeviceID(), Fingerprint: k.Fingerprint(), KeyFile: filepath.Join(d.st.Dir(), transfer.KeyFileName),
-		Created: created || d.created, Bound: k.DeviceID() == d.st.DeviceID()}, k, nil
 }

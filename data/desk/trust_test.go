@@ -20,13 +20,12 @@ import (
 func TestTrustCandidateMatches(t *testing.T) {
 	d := openTest(t)
 	lab := openTest(t)
-	info, _, err := lab.Key()
+	info, err := lab.Key()
 	if err != nil {
 		t.Fatal(err)
 	}
 	pem := filepath.Join(t.TempDir(), "lab.pem")
-	_, k, _ := lab.Key()
-	if err := os.WriteFile(pem, k.PublicPEM(), 0o600); err != nil {
+	if err := lab.WritePublicKey(pem); err != nil {
 		t.Fatal(err)
 	}
 	c, err := CandidateOf(pem)
@@ -58,7 +57,7 @@ func TestTrustCandidateMatches(t *testing.T) {
 	if err := d.TrustKey(c.Fingerprint, "lab again"); !errors.Is(err, transfer.ErrTrustName) {
 		t.Fatalf("same key twice: %v", err)
 	}
-	own, _, _ := d.Key()
+	own, _ := d.Key()
 	if err := d.TrustKey(own.Fingerprint, "me"); !errors.Is(err, ErrOwnKey) {
 		t.Fatalf("own key: %v", err)
 	}
