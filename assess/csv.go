@@ -103,7 +103,7 @@ func ReadPulls(r io.Reader, name string) ([]Pull, error) {
 		seen[p.Label] = line
 		if counted := p.countedPieces(); p.TotalPieces > 0 && counted > p.TotalPieces {
 			return nil, &InputError{File: name, Line: line, Field: TotalCountColumn,
-				Msg: fmt.Sprintf("pull %q: %d pieces examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, counted), Err: ErrBadTotal}
+				Msg: fmt.Sprintf("pull %q: %d %s examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, plural(p.TotalPieces, "piece", "pieces"), counted), Err: ErrBadTotal}
 		}
 		if p.TotalKg() <= 0 {
 			return nil, &InputError{File: name, Line: line, Field: "pull",
@@ -163,7 +163,7 @@ func parseRow(cr *csv.Reader, rec []string, cols []column, name string) (Pull, e
 	line, _ := cr.FieldPos(0)
 	if len(rec) != len(cols)+1 {
 		return Pull{}, &InputError{File: name, Line: line,
-			Msg: fmt.Sprintf("row has %d cells, the header has %d; every row needs one cell per header column", len(rec), len(cols)+1), Err: ErrBadCSV}
+			Msg: fmt.Sprintf("row has %d %s, the header has %d; every row needs one cell per header column", len(rec), plural(len(rec), "cell", "cells"), len(cols)+1), Err: ErrBadCSV}
 	}
 	label := strings.TrimSpace(rec[0])
 	if label == "" {

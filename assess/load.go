@@ -28,7 +28,7 @@ func (l Load) Validate() error {
 		return errorf(ErrBadLoad, "no bale of the load was audited; audit at least one")
 	}
 	if l.Bales < len(l.Audited) {
-		return errorf(ErrBadLoad, "the load has %d bales but %d were audited; give the number of bales delivered", l.Bales, len(l.Audited))
+		return errorf(ErrBadLoad, "the load has %d %s but %d were audited; give the number of bales delivered", l.Bales, plural(l.Bales, "bale", "bales"), len(l.Audited))
 	}
 	seen := map[string]bool{}
 	var kg float64

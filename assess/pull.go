@@ -97,7 +97,7 @@ func (p Pull) Validate() error {
 		return errorf(ErrNegativeCount, "pull %q: %d pieces examined is negative; counts are 0 or more", p.Label, p.TotalPieces)
 	}
 	if counted := p.countedPieces(); p.TotalPieces > 0 && counted > p.TotalPieces {
-		return errorf(ErrBadTotal, "pull %q: %d pieces examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, counted)
+		return errorf(ErrBadTotal, "pull %q: %d %s examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, plural(p.TotalPieces, "piece", "pieces"), counted)
 	}
 	if p.TotalKg() <= 0 {
 		return errorf(ErrEmptyPull, "pull %q weighs 0 kg; enter its masses or leave it out", p.Label)

@@ -8,6 +8,7 @@ import (
 	"gioui.org/widget"
 
 	"baleassay/assess"
+	"baleassay/data/desk"
 	"baleassay/ui/kit"
 	"baleassay/ui/theme"
 )
@@ -82,8 +83,8 @@ func (s *outcomeScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dim
 func auditLine(a *App, o outcome) string {
 	r := o.Audit.Result
 	u := a.cfg.Unit
-	line := fmt.Sprintf("%d pulls, %s sorted of the %s bale (%s of it) · intervals at %s confidence · %s",
-		r.Pulls, mass(u, r.SampledKg, 1), mass(u, r.BaleKg, 0), pct(r.SampledShare, 1), pct(r.Confidence, 0), methodName(r.Method))
+	line := fmt.Sprintf("%s, %s sorted of the %s bale (%s of it) · intervals at %s confidence · %s",
+		desk.Plural(r.Pulls, "pull", "pulls"), mass(u, r.SampledKg, 1), mass(u, r.BaleKg, 0), pct(r.SampledShare, 1), pct(r.Confidence, 0), methodName(r.Method))
 	if a.m.result.Busy {
 		line += " · updating …"
 	}
@@ -122,7 +123,7 @@ func verdictCard(gtx layout.Context, a *App, o outcome) layout.Dimensions {
 	switch adv.Kind {
 	case assess.AdviceDecide:
 		if adv.Need.State == assess.SizePulls && adv.Need.More > 0 {
-			next = fmt.Sprintf("Take %d more pulls to decide (%s decides it).", adv.Need.More, itemName(adv.Item))
+			next = fmt.Sprintf("Take %s more to decide (%s decides it).", desk.Plural(adv.Need.More, "pull", "pulls"), itemName(adv.Item))
 		} else {
 			next = "To decide: " + adv.Need.Text() + " (" + itemName(adv.Item) + " decides it)."
 		}
@@ -241,7 +242,7 @@ func composition(gtx layout.Context, a *App, o outcome) layout.Dimensions {
 	if len(absent) > 0 {
 		b := r.Categories[absent[0]].None
 		kids = append(kids, vgap(10), layout.Rigid(heading(th, "Found in no pull")),
-			layout.Rigid(muted(th, fmt.Sprintf("Upper bounds at %s confidence from %d pulls (%s sorted):", pct(b.Level, 0), b.Pulls, mass(a.cfg.Unit, b.Kg, 1)))))
+			layout.Rigid(muted(th, fmt.Sprintf("Upper bounds at %s confidence from %s (%s sorted):", pct(b.Level, 0), desk.Plural(b.Pulls, "pull", "pulls"), mass(a.cfg.Unit, b.Kg, 1)))))
 		for _, i := range absent {
 			c := r.Categories[i]
 			kids = append(kids, bar(shortName(assess.CategoryAt(i)), c.Key, c, axis))

@@ -204,7 +204,7 @@ func baleRowButton(gtx layout.Context, a *App, c *widget.Clickable, r desk.BaleR
 	if tag == "" {
 		tag = "bale " + r.ID.String()[len(r.ID.String())-8:]
 	}
-	sub := fmt.Sprintf("%s · %s gross · %d pulls", day(r.Bale.ReceivedMs), mass(a.cfg.Unit, r.Bale.GrossKg, 0), r.Pulls)
+	sub := fmt.Sprintf("%s · %s gross · %s", day(r.Bale.ReceivedMs), mass(a.cfg.Unit, r.Bale.GrossKg, 0), desk.Plural(r.Pulls, "pull", "pulls"))
 	if r.Audit.State == desk.AuditDone {
 		sub += " · PET " + pct(r.Audit.TargetPET.Fraction, 1) + " of the bale"
 	}

@@ -165,7 +165,7 @@ func (s *transferScreen) importPane(gtx layout.Context, a *App, us *transfer.Unk
 	}
 	if p := a.m.progress; im.Busy && p.Of > 0 {
 		kids = append(kids, layout.Rigid(kit.Progress{Th: th, Share: float64(p.Done) / float64(p.Of),
-			Text: fmt.Sprintf("%d of %d files · %s %s", p.Done, p.Of, p.Step, filepath.Base(p.File))}.Layout), vgap(8))
+			Text: fmt.Sprintf("%d of %s · %s %s", p.Done, desk.Plural(p.Of, "file", "files"), p.Step, filepath.Base(p.File))}.Layout), vgap(8))
 	}
 	if im.Err != nil && !im.Busy && len(im.Value.Files) == 0 {
 		kids = append(kids, layout.Rigid(kit.Problem{Th: th, Text: errText(im.Err)}.Layout))

@@ -216,7 +216,7 @@ func Calibrate(l Line, ms []Measurement, opt CalibrateOptions) (LineCalibration,
 		return LineCalibration{}, err
 	}
 	out.Line = CloneLine(l)
-	out.Line.Note = fmt.Sprintf("calibrated on %d measured %s (%d values); ranges are posterior mean ± √3·SD", len(ms), plural(len(ms), "batch", "batches"), nObs)
+	out.Line.Note = fmt.Sprintf("calibrated on %d measured %s (%d %s); ranges are posterior mean ± √3·SD", len(ms), plural(len(ms), "batch", "batches"), nObs, plural(nObs, "value", "values"))
 	if l.Note != "" {
 		out.Line.Note = l.Note + "; " + out.Line.Note
 	}

@@ -68,6 +68,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	for i, f := range res.Files {
 		fmt.Fprintf(stdout, "wrote %s (bundle %d, part %d of %d)\n", f, res.Seqs[i], i+1, len(res.Files))
 	}
-	fmt.Fprintf(stdout, "%d events (%d of other devices, with their authors' proofs), %d bytes, signed by %s\n", res.Events, res.Relayed, res.Bytes, fp)
+	fmt.Fprintf(stdout, "%s (%d of other devices, with their authors' proofs), %s, signed by %s\n",
+		desk.Plural(res.Events, "event", "events"), res.Relayed, desk.Plural(int(res.Bytes), "byte", "bytes"), fp)
 	return nil
 }

@@ -98,7 +98,7 @@ func (p *progress) show(e desk.Progress) {
 	if p.tty {
 		const width = 24
 		n := width * e.Done / max(1, e.Of)
-		fmt.Fprintf(p.w, "\r[%s%s] %d/%d files, %d events %-9s", strings.Repeat("#", n), strings.Repeat(" ", width-n), e.Done, e.Of, e.EventsSoFar, e.Step)
+		fmt.Fprintf(p.w, "\r[%s%s] %d/%s, %s %-9s", strings.Repeat("#", n), strings.Repeat(" ", width-n), e.Done, desk.Plural(e.Of, "file", "files"), desk.Plural(e.EventsSoFar, "event", "events"), e.Step)
 		if e.Done == e.Of && end {
 			fmt.Fprintln(p.w)
 		}

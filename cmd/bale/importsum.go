@@ -59,9 +59,9 @@ func deviceLine(dv desk.DeviceImport) string {
 	if dv.Files == 0 {
 		fmt.Fprintf(&b, ": no file accepted in this run")
 	} else {
-		fmt.Fprintf(&b, ": %s (%s) in %s, %s: %d new, %d already present, %d conflicts created",
+		fmt.Fprintf(&b, ": %s (%s) in %s, %s: %d new, %d already present, %s created",
 			desk.Plural(len(dv.Bundles), "bundle", "bundles"), desk.Ranges(dv.Bundles), desk.Plural(dv.Files, "file", "files"),
-			desk.Plural(dv.Events, "event", "events"), dv.New, dv.Present, dv.Conflicts)
+			desk.Plural(dv.Events, "event", "events"), dv.New, dv.Present, desk.Plural(dv.Conflicts, "conflict", "conflicts"))
 	}
 	if n := dv.Missing(); n > 0 {
 		fmt.Fprintf(&b, "; %s missing", desk.Plural(n, "bundle", "bundles"))

@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/signal"
 
+	"baleassay/data/desk"
 	"baleassay/data/publish"
 )
 
@@ -76,7 +77,7 @@ func runPublish(args []string, stdout, stderr io.Writer) error {
 	})
 	if err != nil {
 		if rep.New > 0 || rep.Audits > 0 {
-			return fmt.Errorf("%w\n%d events and %d audits were committed before that; publishing again resumes there", err, rep.New, rep.Audits)
+			return fmt.Errorf("%w\n%s and %s were committed before that; publishing again resumes there", err, desk.Plural(rep.New, "event", "events"), desk.Plural(rep.Audits, "audit", "audits"))
 		}
 		return err
 	}
@@ -128,9 +129,9 @@ func publishProgress(w io.Writer) func(publish.Progress) {
 		switch {
 		case n[p.Step] < 2:
 		case p.Step == publish.StepAudits:
-			fmt.Fprintf(w, "publishing: %d audits written\n", p.Audits)
+			fmt.Fprintf(w, "publishing: %s written\n", desk.Plural(p.Audits, "audit", "audits"))
 		default:
-			fmt.Fprintf(w, "publishing: %d events read, %d new (store sequence %d)\n", p.Read, p.New, p.Seq)
+			fmt.Fprintf(w, "publishing: %s read, %d new (store sequence %d)\n", desk.Plural(p.Read, "event", "events"), p.New, p.Seq)
 		}
 	}
 }

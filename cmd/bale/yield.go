@@ -275,7 +275,7 @@ func printYield(w io.Writer, o yieldJSON, rep yield.Report, plan yield.Plan) {
 	if o.FixedLine {
 		mode = "composition drawn from the audit's estimator, line efficiencies fixed at their midpoints"
 	}
-	fmt.Fprintf(w, "%d draws, seed %d (%s)\n\n", o.Draws, o.Seed, mode)
+	fmt.Fprintf(w, "%s, seed %d (%s)\n\n", desk.Plural(o.Draws, "draw", "draws"), o.Seed, mode)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "\tpoint\tP10\tP50\tP90\tmean\t\n")
 	row := func(name, f string, point float64, s summaryJSON) {
@@ -297,7 +297,7 @@ func printYield(w io.Writer, o yieldJSON, rep yield.Report, plan yield.Plan) {
 	for _, s := range rep.Balance.Streams {
 		fmt.Fprintf(w, "  %s %.2f", s.Name, s.Kg)
 	}
-	fmt.Fprintf(w, "\nBalance: bale %.3f kg + process water %.3f kg = flake + streams (relative error %.1e)\n", o.BaleKg, o.ProcessWaterKg, o.Closure)
+	fmt.Fprintf(w, "\nBalance: bale %.3f kg + process water %.3f kg = flake + streams (relative error %s)\n", o.BaleKg, o.ProcessWaterKg, closureText(o.Closure))
 	printBathNotes(w, plan.Line.BathNotes(rep.Balance.Flake[:len(rep.BaleComposition)]))
 	keys := make([]string, 0, len(o.ResidualPPM))
 	for k, v := range o.ResidualPPM {
@@ -418,4 +418,17 @@ func printBathNotes(w io.Writer, notes []yield.BathNote) {
 		}
 		fmt.Fprintf(w, "Sink with the PET at %.2f g/cm³ (%s%s); the bath cannot separate them: %s\n", d, st, strings.Join(g.stages, ", "), strings.Join(g.parts, ", "))
 	}
+}
+
+// closureText writes the mass balance's relative error without an
+// exponent: rounding leaves about 10⁻¹⁶, and an evaluation fails above
+// 10⁻⁹ (yield.Evaluate).
+func closureText(c float64) string {
+	switch {
+	case c == 0:
+		return "0"
+	case c < 1e-12:
+		return "below 10⁻¹²"
+	}
+	return assess.Sig(c, 2)
 }

@@ -8,7 +8,7 @@ import (
 // Sentinel errors. Errors returned by this package wrap one of them; test
 // with errors.Is. Validation errors also wrap ErrInvalid.
 var (
-	ErrInvalid        = errors.New("invalid record")
+	ErrInvalid        = errors.New("not valid")
 	ErrDecode         = errors.New("malformed event encoding")
 	ErrNotCanonical   = errors.New("event bytes are not in deterministic encoding")
 	ErrTooLarge       = errors.New("event is too large")

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"fmt"
+	"strings"
 )
 
 // FormatVersion is the version of the event encoding written by this code.
@@ -95,7 +96,7 @@ func ParseSiteKind(s string) (SiteKind, error) {
 			return SiteKind(i), nil
 		}
 	}
-	return 0, fmt.Errorf("%w: site kind %q (want one of %v)", ErrInvalid, s, siteKindNames)
+	return 0, fmt.Errorf("site kind %q is %w: give one of %s", s, ErrInvalid, strings.Join(siteKindNames, ", "))
 }
 
 // SiteRecord is a pickup site or supplier. Latitude and longitude are WGS 84

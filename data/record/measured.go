@@ -60,7 +60,7 @@ func ParseMethod(s string) (Method, error) {
 			return m, nil
 		}
 	}
-	return 0, fmt.Errorf("%w: method %q: give ASTM D4274 or ISO 14900 for a hydroxyl value, ASTM D4662 or ISO 2114 for an acid value", ErrInvalid, s)
+	return 0, fmt.Errorf("method %q is %w: give ASTM D4274 or ISO 14900 for a hydroxyl value, ASTM D4662 or ISO 2114 for an acid value", s, ErrInvalid)
 }
 
 func normMethod(s string) string {

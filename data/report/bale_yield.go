@@ -21,7 +21,7 @@ func baleYield(p *page, r desk.BaleReport) {
 	case yield.SpreadKnown:
 		how = "the whole bale was sorted: the composition is known and the P10–P90 carry only the line's and the recipe's ranges"
 	}
-	p.h("<p>Line <strong>%s</strong>; %d draws, seed %d (%s).%s</p>", esc(run.Plan.Line.Line().Name), mc.Draws, mc.Seed, how, p.notes.refs(mLine, mBootstrap))
+	p.h("<p>Line <strong>%s</strong>; %s, seed %d (%s).%s</p>", esc(run.Plan.Line.Line().Name), esc(desk.Plural(mc.Draws, "draw", "draws")), mc.Seed, how, p.notes.refs(mLine, mBootstrap))
 	p.figure("flow", flowChart(p.id("flow"), run),
 		"Heights in proportion to mass. The flake includes the process water the dryer leaves in it; the glycolysate includes the glycol added.")
 	p.figure("spread", spreadChart(p.id("spread"), []spreadRow{
@@ -129,7 +129,7 @@ func driverChart(id string, ds []yield.Driver) string {
 	ds = ds[:min(len(ds), shown)]
 	h := top + float64(len(ds))*rh + 40
 	s := newSVG(id, chartW, h, "What drives the spread of the flake",
-		fmt.Sprintf("The %d inputs with the largest share of the variance of the flake mass, each varied alone.", len(ds)))
+		fmt.Sprintf("The %s with the largest share of the variance of the flake mass, each varied alone.", desk.Plural(len(ds), "input", "inputs")))
 	x := func(v float64) float64 { return 20 + (plotX1-20)*math.Max(0, math.Min(v, 1)) }
 	for i, d := range ds {
 		y := top + float64(i)*rh

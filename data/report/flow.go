@@ -93,7 +93,7 @@ func spreadChart(id string, rows []spreadRow, draws int) string {
 	const rh, top = 40.0, 6.0
 	h := top + float64(len(rows))*rh + 6
 	s := newSVG(id, chartW, h, "Spread of the yield over the draws",
-		fmt.Sprintf("P10 to P90 of %d draws for each output, with the median and the point estimate.", draws))
+		fmt.Sprintf("P10 to P90 of %s for each output, with the median and the point estimate.", desk.Plural(draws, "draw", "draws")))
 	for i, r := range rows {
 		y := top + float64(i)*rh
 		lo := math.Min(r.s.P10, r.point)

@@ -164,7 +164,7 @@ func pickProofs(s *store.Store, need map[record.EventID]record.DeviceID, plan *e
 				ex = id
 			}
 		}
-		msg := fmt.Sprintf("%d events of other devices have no proof of their author in this store (e.g. event %s by device %s)", missing, ex.Short(), need[ex])
+		msg := fmt.Sprintf("%d %s of other devices %s no proof of %s author in this store (e.g. event %s by device %s)", missing, plural(missing, "event", "events"), plural(missing, "has", "have"), plural(missing, "its", "their"), ex.Short(), need[ex])
 		if damaged > 0 {
 			msg += fmt.Sprintf("; %d stored proofs no longer verify (a damaged store?)", damaged)
 		}

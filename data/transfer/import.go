@@ -401,8 +401,8 @@ func (f FileReport) SummaryLine() string {
 		return fmt.Sprintf("%s: refused: %v", name, f.Err)
 	}
 	dev := hex.EncodeToString(f.Device[:])
-	s := fmt.Sprintf("%s: bundle %d (part %d of %d) from device %s, signed by %q: %d new, %d already present, %d conflicts created",
-		name, f.Seq, f.Part, f.Parts, dev, f.Signer, f.New, f.Present, f.Conflicts)
+	s := fmt.Sprintf("%s: bundle %d (part %d of %d) from device %s, signed by %q: %d new, %d already present, %d %s created",
+		name, f.Seq, f.Part, f.Parts, dev, f.Signer, f.New, f.Present, f.Conflicts, plural(f.Conflicts, "conflict", "conflicts"))
 	if f.Replay {
 		s += " (imported before: nothing changed)"
 	}
