@@ -51,7 +51,7 @@ func TrustedKeys(loc Location) ([]TrustedKey, error) {
 	if err != nil {
 		return nil, err
 	}
-	tl, _, err := TrustIn(dir)
+	tl, _, err := trustIn(dir)
 	if err != nil {
 		return nil, err
 	}

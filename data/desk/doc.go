@@ -61,8 +61,15 @@
 //	          SaveCalibratedLine (a new version of the line)
 //	settings  Settings, Setting, SaveSetting (checked by the same reader the
 //	          audit or the yield uses; the name inside must match)
-//	transfer  Trust, TrustAdd (fingerprint, PEM or bundle), TrustRemove,
-//	          Import (demo records refused unless ImportOptions.AllowDemo)
+//	transfer  Key (this device's id and fingerprint), WritePublicKey;
+//	          TrustedKeys, CandidateOf + TrustKey (a key shown and
+//	          confirmed before it is trusted), TrustAdd (fingerprint, PEM or
+//	          bundle), TrustRemove; ExportBundles; BundleFiles, Import (demo
+//	          records refused unless ImportOptions.AllowDemo); Inspect (a
+//	          bundle as an import into a store would judge it, without
+//	          importing: signer and trust, signature, body, authorship,
+//	          every event decoded and validated, demo records; the payload
+//	          plain and with the field names of bundle.cddl)
 //	demo      MakeDemo (refuses a folder of real records; replaces a demo
 //	          store only with Force)
 //	lab       ImportPaths (folders of bundles: a summary per device, gaps,
@@ -71,7 +78,11 @@
 //	          WriteFile (synced, never over an existing file unless forced)
 //	files     ReadPulls: the pulls CSV from any reader (stdin too), BOM accepted,
 //	          UTF-16, semicolons and decimal commas refused with the fix, "did
-//	          you mean" for keys, kg or lb, optional weighed and taken columns
+//	          you mean" for keys, kg or lb, optional total_count (pieces
+//	          examined), weighed and taken columns; ReadPullsFile and
+//	          AuditPullsOf: pulls for an audit without a store, held to the
+//	          bounds of a save (record.ValidatePullValues), and the bale mass
+//	          beside them too (ErrBaleMass)
 //
 // AuditPulls, LoadSpec, Plan and YieldPulls may be called on a nil *Desk
 // when no store is open: they then know the built-in specs, lines and
@@ -88,7 +99,7 @@
 //
 // Errors wrap a sentinel of this package (ErrNotFound, ErrAmbiguous,
 // ErrWrongKind, ErrDeleted, ErrRefused, ErrNeedsConfirm, ErrNoPulls,
-// ErrUsage, ErrNoStore, ErrBadPulls, ...) or of the records; use errors.Is
+// ErrUsage, ErrNoStore, ErrBadPulls, ErrBaleMass, ErrExists, ...) or of the records; use errors.Is
 // and errors.As. Their texts speak to the user: no package prefixes,
 // plural forms right, numbers without exponents (Num, Plural help a front
 // end do the same). A save the checks find implausible returns a

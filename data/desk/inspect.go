@@ -78,7 +78,7 @@ func Inspect(loc Location, path string, opt InspectOptions) (Inspection, error) 
 		return in, err
 	}
 	in.Store = dir
-	_, trust, trustErr := TrustIn(dir)
+	_, trust, trustErr := trustIn(dir)
 	in.StoreRead, in.DemoStore = storeKind(loc)
 	in.Inspection = transfer.InspectBundle(raw, trust)
 	in.checkEvents(time.Now())

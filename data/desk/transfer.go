@@ -15,12 +15,12 @@ import (
 func (d *Desk) Trust() (*transfer.TrustList, transfer.TrustFunc, error) {
 	d.tmu.Lock()
 	defer d.tmu.Unlock()
-	return TrustIn(d.st.Dir())
+	return trustIn(d.st.Dir())
 }
 
-// TrustIn reads the trust list of a store folder without opening the
+// trustIn reads the trust list of a store folder without opening the
 // store (inspect reads it alongside a store in use).
-func TrustIn(dir string) (*transfer.TrustList, transfer.TrustFunc, error) {
+func trustIn(dir string) (*transfer.TrustList, transfer.TrustFunc, error) {
 	tl, err := transfer.LoadTrust(dir)
 	if err != nil {
 		return nil, nil, err
