@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 	"time"
+	"unicode"
 	"unicode/utf8"
 
 	"github.com/fxamacker/cbor/v2"
@@ -319,8 +320,19 @@ func renderBytes(b *strings.Builder, x []byte, n *node) {
 		}
 	}
 	if n != nil && n.text && utf8.Valid(x) {
-		q := strconv.Quote(string(x))
-		b.WriteString("'" + strings.ReplaceAll(q[1:len(q)-1], `'`, `\'`) + "'")
+		b.WriteByte('\'')
+		for _, r := range string(x) {
+			switch {
+			case r == '\\' || r == '\'':
+				b.WriteString(`\` + string(r))
+			case unicode.IsPrint(r):
+				b.WriteRune(r)
+			default: // controls and direction marks, as strconv writes them
+				q := strconv.QuoteRune(r)
+				b.WriteString(q[1 : len(q)-1])
+			}
+		}
+		b.WriteByte('\'')
 		return
 	}
 	b.WriteString("h'" + hex.EncodeToString(x) + "'")

@@ -60,7 +60,8 @@ func TestInspectBundle(t *testing.T) {
 // values it knows: kinds, times, methods.
 func TestNamedRenderingValues(t *testing.T) {
 	ev := map[uint64]any{0: uint64(1), 2: uint64(3), 4: []any{uint64(1767225600000), uint64(0)},
-		9: map[any]any{uint64(4): map[any]any{"pvc": 0.00001, "pet_clear": 1e6}, uint64(7): uint64(611), uint64(99): "x"}}
+		9: map[any]any{uint64(4): map[any]any{"pvc": 0.00001, "pet_clear": 1e6}, uint64(7): uint64(611), uint64(99): "x"},
+		10: map[any]any{uint64(3): []byte("{\"name\":\"it's\"}\x1b")}}
 	raw, err := cbor.Marshal(ev)
 	if err != nil {
 		t.Fatal(err)
@@ -73,7 +74,7 @@ func TestNamedRenderingValues(t *testing.T) {
 	renderNamed(&b, v, eventNode)
 	// 1767225600000 ms is 2026-01-01T00:00:00Z (Unix time, computed).
 	want := `{version: 1, kind: 3 /pull/, clock: [wall_ms: 1767225600000 /2026-01-01T00:00:00.000Z/, logical: 0], ` +
-		`pull: {kg: {"pet_clear": 1000000.0, "pvc": 0.00001}, total_count: 611, 99: "x"}}`
+		`pull: {kg: {"pet_clear": 1000000.0, "pvc": 0.00001}, total_count: 611, 99: "x"}, setting: {body: '{"name":"it\'s"}\x1b'}}`
 	if b.String() != want {
 		t.Fatalf("got  %s\nwant %s", b.String(), want)
 	}
