@@ -60,7 +60,7 @@ func TestInspectBundle(t *testing.T) {
 // values it knows: kinds, times, methods.
 func TestNamedRenderingValues(t *testing.T) {
 	ev := map[uint64]any{0: uint64(1), 2: uint64(3), 4: []any{uint64(1767225600000), uint64(0)},
-		9: map[any]any{uint64(4): map[any]any{"pvc": 0.00001, "pet_clear": 1e6}, uint64(7): uint64(611), uint64(99): "x"},
+		9:  map[any]any{uint64(4): map[any]any{"pvc": 0.00001, "pet_clear": 1e6}, uint64(7): uint64(611), uint64(99): "x"},
 		10: map[any]any{uint64(3): []byte("{\"name\":\"it's\"}\x1b")}}
 	raw, err := cbor.Marshal(ev)
 	if err != nil {
