@@ -1,12 +1,12 @@
 package assess
 
 import (
+	"bytes"
 	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strconv"
 	"strings"
 )
@@ -31,7 +31,7 @@ func (e *InputError) Error() string {
 		}
 	}
 	if e.Field != "" {
-		return fmt.Sprintf("%s: column %q: %s", loc, e.Field, e.Msg)
+		return fmt.Sprintf("%s: column %s: %s", loc, excerpt(e.Field), e.Msg)
 	}
 	return fmt.Sprintf("%s: %s", loc, e.Msg)
 }
@@ -51,12 +51,11 @@ const TotalCountColumn = "total_count"
 
 // ReadPullsFile reads a pulls CSV file; see ReadPulls.
 func ReadPullsFile(path string) ([]Pull, error) {
-	f, err := os.Open(path)
+	b, err := ReadFileLimited(path, MaxPullsFileBytes)
 	if err != nil {
 		return nil, &InputError{File: path, Msg: fmt.Sprintf("cannot read the file (%v); check the path", err), Err: err}
 	}
-	defer f.Close()
-	return ReadPulls(f, path)
+	return ReadPulls(bytes.NewReader(b), path)
 }
 
 // ReadPulls reads pulls from CSV (RFC 4180, via encoding/csv). The first
@@ -99,16 +98,16 @@ func ReadPulls(r io.Reader, name string) ([]Pull, error) {
 		}
 		if first, dup := seen[p.Label]; dup {
 			return nil, &InputError{File: name, Line: line, Column: 1, Field: "pull",
-				Msg: fmt.Sprintf("pull label %q is used twice (first on line %d); give every pull its own label", p.Label, first), Err: ErrDuplicatePull}
+				Msg: fmt.Sprintf("pull label %s is used twice (first on line %d); give every pull its own label", excerpt(p.Label), first), Err: ErrDuplicatePull}
 		}
 		seen[p.Label] = line
 		if counted := p.countedPieces(); p.TotalPieces > 0 && counted > p.TotalPieces {
 			return nil, &InputError{File: name, Line: line, Field: TotalCountColumn,
-				Msg: fmt.Sprintf("pull %q: %d pieces examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, counted), Err: ErrBadTotal}
+				Msg: fmt.Sprintf("pull %q: %d %s examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, plural(p.TotalPieces, "piece", "pieces"), counted), Err: ErrBadTotal}
 		}
 		if p.TotalKg() <= 0 {
 			return nil, &InputError{File: name, Line: line, Field: "pull",
-				Msg: fmt.Sprintf("pull %q weighs 0 kg; enter its masses or delete the row", p.Label), Err: ErrEmptyPull}
+				Msg: fmt.Sprintf("pull %s weighs 0 kg; enter its masses or delete the row", excerpt(p.Label)), Err: ErrEmptyPull}
 		}
 		pulls = append(pulls, p)
 	}
@@ -144,9 +143,9 @@ func parseHeader(cr *csv.Reader, header []string, name string) ([]column, error)
 		}
 		idx, ok := CategoryIndex(key)
 		if !ok {
-			msg := fmt.Sprintf("unknown category %q; valid keys are: %s (add _count for piece counts)", key, strings.Join(CategoryKeys(), ", "))
+			msg := fmt.Sprintf("unknown category %s; valid keys are: %s (add _count for piece counts)", excerpt(key), strings.Join(CategoryKeys(), ", "))
 			if s := suggestKey(key); len(s) > 0 {
-				msg = fmt.Sprintf("unknown category %q; did you mean %s? valid keys are: %s", key, strings.Join(s, " or "), strings.Join(CategoryKeys(), ", "))
+				msg = fmt.Sprintf("unknown category %s; did you mean %s? valid keys are: %s", excerpt(key), strings.Join(s, " or "), strings.Join(CategoryKeys(), ", "))
 			}
 			return nil, herr(i+1, msg, ErrUnknownCategory)
 		}
@@ -164,7 +163,7 @@ func parseRow(cr *csv.Reader, rec []string, cols []column, name string) (Pull, e
 	line, _ := cr.FieldPos(0)
 	if len(rec) != len(cols)+1 {
 		return Pull{}, &InputError{File: name, Line: line,
-			Msg: fmt.Sprintf("row has %d cells, the header has %d; every row needs one cell per header column", len(rec), len(cols)+1), Err: ErrBadCSV}
+			Msg: fmt.Sprintf("row has %d %s, the header has %d; every row needs one cell per header column", len(rec), plural(len(rec), "cell", "cells"), len(cols)+1), Err: ErrBadCSV}
 	}
 	label := strings.TrimSpace(rec[0])
 	if label == "" {
@@ -196,9 +195,9 @@ func parseRow(cr *csv.Reader, rec []string, cols []column, name string) (Pull, e
 			continue
 		}
 		if c.pieces {
-			n, err := strconv.Atoi(cell)
+			n, err := ParseWhole(cell)
 			if err != nil {
-				return Pull{}, cerr(fmt.Sprintf("piece count %q is not a whole number", cell), ErrBadNumber)
+				return Pull{}, cerr(fmt.Sprintf("piece count %s is not a whole number", excerpt(cell)), ErrBadNumber)
 			}
 			if n < 0 {
 				return Pull{}, cerr(fmt.Sprintf("piece count %d is negative; counts are 0 or more", n), ErrNegativeCount)
@@ -206,14 +205,17 @@ func parseRow(cr *csv.Reader, rec []string, cols []column, name string) (Pull, e
 			_ = p.SetPieces(field, n)
 			continue
 		}
-		v, err := strconv.ParseFloat(cell, 64)
+		v, err := ParseDecimal(cell)
+		if f, ferr := strconv.ParseFloat(cell, 64); err != nil && ferr == nil && (math.IsNaN(f) || math.IsInf(f, 0)) {
+			v, err = f, nil // named below as not finite
+		}
 		switch {
 		case err != nil:
-			return Pull{}, cerr(fmt.Sprintf("mass %q is not a number; write kilograms with a decimal point, e.g. 1.25", cell), ErrBadNumber)
+			return Pull{}, cerr(fmt.Sprintf("mass %s is not a number; write kilograms as a plain decimal, e.g. 1.25 (no hexadecimal, no digit separators)", excerpt(cell)), ErrBadNumber)
 		case math.IsNaN(v) || math.IsInf(v, 0):
-			return Pull{}, cerr(fmt.Sprintf("mass %q is not a finite number; write kilograms, e.g. 1.25", cell), ErrNonFiniteMass)
+			return Pull{}, cerr(fmt.Sprintf("mass %s is not a finite number; write kilograms, e.g. 1.25", excerpt(cell)), ErrNonFiniteMass)
 		case v < 0:
-			return Pull{}, cerr(fmt.Sprintf("mass %g kg is negative; masses are 0 or more", v), ErrNegativeMass)
+			return Pull{}, cerr(fmt.Sprintf("mass %s kg is negative; masses are 0 or more", Plain(v)), ErrNegativeMass)
 		}
 		p.Kg[c.cat] = v
 	}

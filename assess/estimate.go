@@ -192,7 +192,7 @@ func Assess(a Audit, opt Options) (Result, error) {
 	}
 	conf := opt.confidence()
 	if !(conf > 0 && conf < 1) {
-		return Result{}, errorf(ErrBadConfidence, "confidence %g: give a level between 0 and 1, e.g. 0.90", conf)
+		return Result{}, errorf(ErrBadConfidence, "confidence %s: give a level between 0 and 1, e.g. 0.90", Plain(conf))
 	}
 	n := len(a.Pulls)
 	res := Result{

@@ -28,7 +28,7 @@ func (l Load) Validate() error {
 		return errorf(ErrBadLoad, "no bale of the load was audited; audit at least one")
 	}
 	if l.Bales < len(l.Audited) {
-		return errorf(ErrBadLoad, "the load has %d bales but %d were audited; give the number of bales delivered", l.Bales, len(l.Audited))
+		return errorf(ErrBadLoad, "the load has %d %s but %d were audited; give the number of bales delivered", l.Bales, plural(l.Bales, "bale", "bales"), len(l.Audited))
 	}
 	seen := map[string]bool{}
 	var kg float64
@@ -50,10 +50,10 @@ func (l Load) Validate() error {
 		kg += b.Audit.BaleKg
 	}
 	if math.IsNaN(l.LoadKg) || math.IsInf(l.LoadKg, 0) || l.LoadKg < 0 {
-		return errorf(ErrBadLoad, "the load mass %g kg is not a mass; give it in kg, or 0 to count it from the bales", l.LoadKg)
+		return errorf(ErrBadLoad, "the load mass %s kg is not a mass; give it in kg, or 0 to count it from the bales", Plain(l.LoadKg))
 	}
 	if l.LoadKg > 0 && l.LoadKg < kg*(1-1e-9) {
-		return errorf(ErrBadLoad, "the load (%g kg) weighs less than its audited bales (%g kg)", l.LoadKg, kg)
+		return errorf(ErrBadLoad, "the load (%s kg) weighs less than its audited bales (%s kg)", Plain(l.LoadKg), Plain(kg))
 	}
 	return nil
 }
@@ -136,7 +136,7 @@ func AssessLoad(l Load, opt Options) (LoadResult, error) {
 	}
 	conf := opt.confidence()
 	if !(conf > 0 && conf < 1) {
-		return LoadResult{}, errorf(ErrBadConfidence, "confidence %g: give a level between 0 and 1, e.g. 0.90", conf)
+		return LoadResult{}, errorf(ErrBadConfidence, "confidence %s: give a level between 0 and 1, e.g. 0.90", Plain(conf))
 	}
 	n := len(l.Audited)
 	lr := LoadResult{Bales: l.Bales, Audited: n, F1: float64(n) / float64(l.Bales)}

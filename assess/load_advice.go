@@ -171,13 +171,13 @@ func AdviseLoad(lr LoadResult, sv *SpecVerdict, baleCost float64) LoadAdvice {
 		a.Why = fmt.Sprintf("%s is undecided: audit %d more %s at about %.0f pulls each (%d audited in all)", g.Text(), a.Bales.More,
 			plural(a.Bales.More, "bale", "bales"), lr.MeanPulls, a.Bales.Total)
 		if a.PullsPerBale.Known() {
-			a.Why += fmt.Sprintf("; %d more pulls from the audited bales would also decide, at more effort", a.PullsPerBale.More)
+			a.Why += fmt.Sprintf("; %d more %s from the audited bales would also decide, at more effort", a.PullsPerBale.More, plural(a.PullsPerBale.More, "pull", "pulls"))
 		} else {
 			a.Why += "; more pulls from the audited bales alone cannot decide: the bales differ too much"
 		}
 	case a.PullsPerBale.Known():
 		a.Route = RouteMorePulls
-		a.Why = fmt.Sprintf("%s is undecided: take %d more pulls from the audited bales (%d per bale)", g.Text(), a.PullsPerBale.More, a.PullsPerBale.Total)
+		a.Why = fmt.Sprintf("%s is undecided: take %d more %s from the audited bales (%d per bale)", g.Text(), a.PullsPerBale.More, plural(a.PullsPerBale.More, "pull", "pulls"), a.PullsPerBale.Total)
 		if a.Bales.Known() {
 			a.Why += fmt.Sprintf("; auditing %d more %s would also decide, at more effort", a.Bales.More, plural(a.Bales.More, "bale", "bales"))
 		}

@@ -61,7 +61,7 @@ func (p PieceShare) NoneText() string {
 	if p.Basis != BasisExamined || p.ExaminedPieces > 0 || p.Examined == 0 {
 		return ""
 	}
-	return fmt.Sprintf("none of %d pieces examined: at most %s %% at %s %%", p.Examined, pctText(p.ClopperPearson.High), levelText(p.Level))
+	return fmt.Sprintf("none of %d %s examined: at most %s %% at %s %%", p.Examined, plural(p.Examined, "piece", "pieces"), pctText(p.ClopperPearson.High), levelText(p.Level))
 }
 
 // pieceShares reports the piece counts of every category that was

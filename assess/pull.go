@@ -85,7 +85,7 @@ func (p Pull) Validate() error {
 			return errorf(ErrNonFiniteMass, "pull %q: the %s mass %v is not a number; write kilograms, e.g. 1.25", p.Label, catalogue[i].Key, m)
 		}
 		if m < 0 {
-			return errorf(ErrNegativeMass, "pull %q: the %s mass %g kg is negative; masses are 0 or more", p.Label, catalogue[i].Key, m)
+			return errorf(ErrNegativeMass, "pull %q: the %s mass %s kg is negative; masses are 0 or more", p.Label, catalogue[i].Key, Plain(m))
 		}
 	}
 	for i, n := range p.Pieces {
@@ -97,7 +97,7 @@ func (p Pull) Validate() error {
 		return errorf(ErrNegativeCount, "pull %q: %d pieces examined is negative; counts are 0 or more", p.Label, p.TotalPieces)
 	}
 	if counted := p.countedPieces(); p.TotalPieces > 0 && counted > p.TotalPieces {
-		return errorf(ErrBadTotal, "pull %q: %d pieces examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, counted)
+		return errorf(ErrBadTotal, "pull %q: %d %s examined, but the categories count %d; the total counts every piece of the pull", p.Label, p.TotalPieces, plural(p.TotalPieces, "piece", "pieces"), counted)
 	}
 	if p.TotalKg() <= 0 {
 		return errorf(ErrEmptyPull, "pull %q weighs 0 kg; enter its masses or leave it out", p.Label)
@@ -148,12 +148,12 @@ func (a Audit) Validate() error {
 		seen[p.Label] = true
 	}
 	if math.IsNaN(a.BaleKg) || math.IsInf(a.BaleKg, 0) || a.BaleKg < 0 {
-		return errorf(ErrNonFiniteMass, "the bale mass %g kg is not a mass; give the gross mass in kg, or 0 when unknown", a.BaleKg)
+		return errorf(ErrNonFiniteMass, "the bale mass %s kg is not a mass; give the gross mass in kg, or 0 when unknown", Plain(a.BaleKg))
 	}
 	// A relative slack of 1e-9 keeps a whole-bale sort (f = 1) from
 	// failing on rounding.
 	if s := a.SampledKg(); a.BaleKg > 0 && a.BaleKg < s*(1-1e-9) {
-		return errorf(ErrBaleLighter, "the bale (%g kg) weighs less than its pulls (%g kg); check the bale mass or the pull masses", a.BaleKg, s)
+		return errorf(ErrBaleLighter, "the bale (%s kg) weighs less than its pulls (%s kg); check the bale mass or the pull masses", Plain(a.BaleKg), Plain(s))
 	}
 	return nil
 }

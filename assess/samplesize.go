@@ -119,11 +119,11 @@ func (p Population) sampledShare(n int) float64 {
 func PullsForHalfWidth(s, h, c float64, pop Population) (SampleSize, error) {
 	switch {
 	case math.IsNaN(s) || math.IsInf(s, 0) || s < 0:
-		return SampleSize{}, errorf(ErrBadSpread, "the spread %g is not a standard deviation", s)
+		return SampleSize{}, errorf(ErrBadSpread, "the spread %s is not a standard deviation", Plain(s))
 	case !(h > 0) || math.IsInf(h, 0):
-		return SampleSize{}, errorf(ErrBadPrecision, "the half-width %g must be above 0", h)
+		return SampleSize{}, errorf(ErrBadPrecision, "the half-width %s must be above 0", Plain(h))
 	case !(c > 0 && c < 1):
-		return SampleSize{}, errorf(ErrBadConfidence, "confidence %g: give a level between 0 and 1, e.g. 0.90", c)
+		return SampleSize{}, errorf(ErrBadConfidence, "confidence %s: give a level between 0 and 1, e.g. 0.90", Plain(c))
 	}
 	ok := func(n int) bool {
 		fpc := 1 - pop.sampledShare(n)
@@ -171,7 +171,7 @@ func PullsForHalfWidth(s, h, c float64, pop Population) (SampleSize, error) {
 // with the finite-population correction as in PullsForHalfWidth.
 func PullsForPrecision(s, mean, e, c float64, pop Population) (SampleSize, error) {
 	if !(e > 0) || math.IsInf(e, 0) {
-		return SampleSize{}, errorf(ErrBadPrecision, "the relative precision %g must be above 0, e.g. 0.10", e)
+		return SampleSize{}, errorf(ErrBadPrecision, "the relative precision %s must be above 0, e.g. 0.10", Plain(e))
 	}
 	if !(mean > 0) {
 		return SampleSize{}, errorf(ErrNoShare, "the share is 0, so no relative precision can be reached")

@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"sort"
 	"strings"
 )
@@ -90,11 +89,11 @@ func (s Spec) Validate() error {
 			return bad("limit %d (%s): bounds are mass fractions from 0 to 1; write fractions: 0.005 for 0.5 %%", i+1, l.Item)
 		}
 		if l.Max != nil && *l.Max > MaxContaminantLimit && !isTarget(l.Item) && !l.AllowLargeMax {
-			return bad("limit %d (%s): max %g is %g %% of the bale, above %g %% for a contaminant; write fractions: 0.005 for 0.5 %%; if %g %% is meant, add \"allow_large_max\": true to the limit",
-				i+1, l.Item, *l.Max, 100**l.Max, 100*MaxContaminantLimit, 100**l.Max)
+			return bad("limit %d (%s): max %s is %s %% of the bale, above %s %% for a contaminant; write fractions: 0.005 for 0.5 %%; if %s %% is meant, add \"allow_large_max\": true to the limit",
+				i+1, l.Item, Plain(*l.Max), Plain(100**l.Max), Plain(100*MaxContaminantLimit), Plain(100**l.Max))
 		}
 		if l.Min != nil && l.Max != nil && *l.Min > *l.Max {
-			return bad("limit %d (%s): min %g is above max %g", i+1, l.Item, *l.Min, *l.Max)
+			return bad("limit %d (%s): min %s is above max %s", i+1, l.Item, Plain(*l.Min), Plain(*l.Max))
 		}
 	}
 	for _, z := range s.ZeroTolerance {
@@ -109,7 +108,7 @@ func (s Spec) Validate() error {
 		}
 		names[g.Name] = true
 		if math.IsNaN(g.MinPET) || g.MinPET < 0 || g.MinPET > 1 {
-			return bad("grade %q: min_pet %g is not a fraction from 0 to 1", g.Name, g.MinPET)
+			return bad("grade %q: min_pet %s is not a fraction from 0 to 1", g.Name, Plain(g.MinPET))
 		}
 	}
 	return nil
@@ -128,6 +127,12 @@ func isTarget(item string) bool {
 // ParseSpec reads a spec from JSON, refusing unknown fields, and
 // validates it.
 func ParseSpec(b []byte) (Spec, error) {
+	if len(b) > MaxDocumentFileBytes {
+		return Spec{}, fmt.Errorf("spec JSON has %d bytes, more than a spec holds (%d): %w", len(b), MaxDocumentFileBytes, ErrBadSpec)
+	}
+	if err := CheckJSON(b); err != nil {
+		return Spec{}, fmt.Errorf("spec JSON: %v: %w", err, ErrBadSpec)
+	}
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	var s Spec
@@ -155,9 +160,9 @@ func LoadSpec(nameOrPath string) (Spec, error) {
 	if s, ok := BuiltinSpec(nameOrPath); ok {
 		return s, nil
 	}
-	b, err := os.ReadFile(nameOrPath)
+	b, err := ReadFileLimited(nameOrPath, MaxDocumentFileBytes)
 	if err != nil {
-		return Spec{}, fmt.Errorf("spec %q is neither a built-in spec (%s) nor a readable file: %v", nameOrPath, strings.Join(BuiltinSpecNames(), ", "), err)
+		return Spec{}, fmt.Errorf("spec %q is neither a built-in spec (%s) nor a readable spec file: %w", nameOrPath, strings.Join(BuiltinSpecNames(), ", "), err)
 	}
 	s, err := ParseSpec(b)
 	if err != nil {

@@ -10,6 +10,8 @@
 //	transfer  signed bundle files: COSE, device keys, trust, export,
 //	          import, inspect
 //	demo      the invented scenario of the demo store
+//	report    self-contained HTML reports (inline SVG charts) of what the
+//	          desk gathers: a bale, a site, a region
 //
 // Imports point one way: record ← geo ← store ← transfer, demo. The
 // domain packages never import gioui.org; assess and yield know no

@@ -33,6 +33,8 @@ mkdir -p "$work"
 bale="$work/bale"
 CGO_ENABLED=0 go build -o "$bale" ./cmd/bale
 importer=${SCALE_IMPORTER:-$bale}
+yes=--yes # trust add asks on a terminal; older builds know no --yes
+"$importer" help trust 2>&1 | grep -q -- --yes || yes=
 prefix=${SCALE_LABEL:+$SCALE_LABEL-}
 results="$work/results.txt"
 rss="$root/scripts/peakrss.sh"
@@ -55,7 +57,7 @@ gen() {
 trust() {
 	local k out
 	for k in "$1"/keys/*.pem; do
-		if ! out=$("$importer" trust add "$k" --name "$(basename "$(dirname "$(dirname "$k")")")-$(basename "$k" .pem)" --store "$2" 2>&1); then
+		if ! out=$("$importer" trust add "$k" --name "$(basename "$(dirname "$(dirname "$k")")")-$(basename "$k" .pem)" $yes --store "$2" 2>&1); then
 			grep -q "already trusted" <<<"$out" || { echo "$out" >&2; return 1; }
 		fi
 	done
@@ -137,7 +139,7 @@ step_cap() {
 	for f in "$dir"/*.bale; do
 		store="$work/store-one"
 		rm -rf "$store"
-		"$importer" trust add "$dir/keys/bench.pem" --name bench --store "$store" >/dev/null
+		"$importer" trust add "$dir/keys/bench.pem" --name bench $yes --store "$store" >/dev/null
 		log "$("$rss" "one-$(basename "$f" .bale)" "$importer" import "$f" --store "$store") bytes=$(stat -c %s "$f")"
 	done
 }

@@ -171,7 +171,7 @@ func (m *Model) balance(baleKg, par []float64) (Balance, error) {
 	in := b.BaleKg + pw
 	b.Closure = math.Abs(in-out) / in
 	if !(b.Closure <= ClosureTolerance) {
-		return b, fmt.Errorf("%w: inputs %.9g kg, outputs %.9g kg (relative %.2g)", ErrNotClosed, in, out, b.Closure)
+		return b, fmt.Errorf("%w: inputs %s kg, outputs %s kg (relative %s)", ErrNotClosed, assess.Sig(in, 9), assess.Sig(out, 9), assess.Sig(b.Closure, 2))
 	}
 	return b, nil
 }

@@ -1,9 +1,9 @@
 package yield
 
 import (
+	"baleassay/assess"
 	"fmt"
 	"math"
-	"strconv"
 	"strings"
 )
 
@@ -51,7 +51,7 @@ func ParsePolyol(s string, n int) (Polyol, error) {
 		return Polyol{}, fieldErr(where, "polyol", ErrBadBlend, "write OHV:KG, OHV:KG:PET_SHARE or castor:KG, e.g. 350:40:0.5")
 	}
 	num := func(field, v string) (float64, error) {
-		f, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+		f, err := assess.ParseDecimal(strings.TrimSpace(v))
 		if err != nil || !finite(f) {
 			return 0, fieldErr(where, field, ErrBadNumber, "%q is not a number", v)
 		}
@@ -84,7 +84,7 @@ func (p Polyol) validate(where string) error {
 		return err
 	}
 	if p.HydroxylValue > 2000 {
-		return fieldErr(where, "hydroxyl_value", ErrOutOfRange, "%g mg KOH/g is above any polyol (glycerol is about 1830); give the hydroxyl value in mg KOH/g", p.HydroxylValue)
+		return fieldErr(where, "hydroxyl_value", ErrOutOfRange, "%s mg KOH/g is above any polyol (glycerol is about 1830); give the hydroxyl value in mg KOH/g", assess.Plain(p.HydroxylValue))
 	}
 	if err := checkNonNegative(where, "kg", p.Kg); err != nil {
 		return err
@@ -181,15 +181,15 @@ func MixBlend(b Blend) (BlendResult, error) {
 		return BlendResult{}, err
 	}
 	if b.NCOPct >= 60 {
-		return BlendResult{}, fieldErr(where, "isocyanate_nco", ErrOutOfRange, "%g %% NCO is above any isocyanate (TDI 48.3 %%); give the NCO content in mass %%", b.NCOPct)
+		return BlendResult{}, fieldErr(where, "isocyanate_nco", ErrOutOfRange, "%s %% NCO is above any isocyanate (TDI 48.3 %%); give the NCO content in mass %%", assess.Plain(b.NCOPct))
 	}
 	if err := checkPositive(where, "index", b.Index); err != nil {
 		return BlendResult{}, err
 	}
 	if b.Index < MinIndex || b.Index > MaxIndex {
-		msg := fmt.Sprintf("is %g, outside %g–%g; the index is 100 × NCO / (OH + water) equivalents, usually 90–350", b.Index, float64(MinIndex), float64(MaxIndex))
+		msg := fmt.Sprintf("is %s, outside %s–%s; the index is 100 × NCO / (OH + water) equivalents, usually 90–350", assess.Plain(b.Index), assess.Plain(float64(MinIndex)), assess.Plain(float64(MaxIndex)))
 		if s := suggestIndex(b.Index); s > 0 {
-			msg += fmt.Sprintf(": did you mean %g?", s)
+			msg += fmt.Sprintf(": did you mean %s?", assess.Plain(s))
 		}
 		return BlendResult{}, fieldErr(where, "index", ErrOutOfRange, "%s", msg)
 	}
@@ -268,7 +268,7 @@ func scaleToShare(ps []Polyol, target float64) error {
 		return fieldErr("blend", "target_pet_share", ErrBadBlend, "no PET-free polyol to dilute with; add one (e.g. castor:1)")
 	}
 	if own := pet / fixed; target > own*(1+1e-12) {
-		return fieldErr("blend", "target_pet_share", ErrOutOfRange, "%g is above the %.3g the PET-bearing polyols reach on their own; lower the target", target, own)
+		return fieldErr("blend", "target_pet_share", ErrOutOfRange, "%s is above the %s the PET-bearing polyols reach on their own; lower the target", assess.Plain(target), assess.Sig(own, 3))
 	}
 	lambda := max(0, (pet/target-fixed)/free)
 	for i := range ps {

@@ -1,6 +1,7 @@
 package yield
 
 import (
+	"baleassay/assess"
 	"errors"
 	"fmt"
 	"strings"
@@ -90,7 +91,7 @@ func checkFraction(where, field string, v float64) error {
 		return fieldErr(where, field, ErrBadNumber, "is not a number (%v); give a fraction from 0 to 1", v)
 	}
 	if v < 0 || v > 1 {
-		return fieldErr(where, field, ErrOutOfRange, "is %g, outside 0–1; give a fraction (0.95, not 95)", v)
+		return fieldErr(where, field, ErrOutOfRange, "is %s, outside 0–1; give a fraction (0.95, not 95)", assess.Plain(v))
 	}
 	return nil
 }
@@ -101,7 +102,7 @@ func checkPositive(where, field string, v float64) error {
 		return fieldErr(where, field, ErrBadNumber, "is not a number (%v)", v)
 	}
 	if v <= 0 {
-		return fieldErr(where, field, ErrOutOfRange, "must be above 0 (got %g)", v)
+		return fieldErr(where, field, ErrOutOfRange, "must be above 0 (got %s)", assess.Plain(v))
 	}
 	return nil
 }
@@ -112,7 +113,7 @@ func checkNonNegative(where, field string, v float64) error {
 		return fieldErr(where, field, ErrBadNumber, "is not a number (%v)", v)
 	}
 	if v < 0 {
-		return fieldErr(where, field, ErrOutOfRange, "must not be negative (got %g)", v)
+		return fieldErr(where, field, ErrOutOfRange, "must not be negative (got %s)", assess.Plain(v))
 	}
 	return nil
 }

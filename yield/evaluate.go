@@ -45,7 +45,7 @@ type Plan struct {
 func DefaultPlan() Plan {
 	m, err := Compile(BuiltinLine())
 	if err != nil {
-		panic("yield: built-in line does not compile: " + err.Error())
+		panic("built-in line does not compile: " + err.Error())
 	}
 	spec := BuiltinFlakeSpec()
 	return Plan{Line: m, Spec: &spec, Recipe: DefaultRecipe(1, DefaultGlycol, DefaultGlycolRatio)}
@@ -221,7 +221,7 @@ func lineWarnings(labels []string, comp []float64, bal Balance) []string {
 		w = append(w, fmt.Sprintf("hazards were found in pulls %s: the bale must be sorted by hand before it goes on the line; the model assumes only what the line profile removes", strings.Join(labels, ", ")))
 	}
 	if bal.Flake[hz] > 0 {
-		w = append(w, fmt.Sprintf("%.3g kg of hazard items reach the flake: this line profile does not remove them; add a sort stage with removal hazard = 1", bal.Flake[hz]))
+		w = append(w, fmt.Sprintf("%s kg of hazard items reach the flake: this line profile does not remove them; add a sort stage with removal hazard = 1", assess.Sig(bal.Flake[hz], 3)))
 	}
 	al, _ := assess.CategoryIndex("aluminium")
 	if comp[al] > 0 {

@@ -1,12 +1,13 @@
 package yield
 
 import (
+	"baleassay/assess"
 	"bytes"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"io"
 	"math"
-	"os"
 	"strings"
 )
 
@@ -50,7 +51,7 @@ var flakeItemIdx = func() (out [numFlakeItems][]int) {
 		for _, k := range keys {
 			i, ok := ComponentIndex(k)
 			if !ok {
-				panic("yield: flake item member " + k + " not in the catalogue")
+				panic("flake item member " + k + " not in the catalogue")
 			}
 			out[it] = append(out[it], i)
 		}
@@ -110,7 +111,7 @@ func (s FlakeSpec) Validate() error {
 			return err
 		}
 		if (FlakeItem(it) == ItemMoisture || FlakeItem(it) == ItemFines) && *l > 100 {
-			return fieldErr("flake spec "+s.Name, FlakeItem(it).String(), ErrOutOfRange, "%g is above 100 %%; give a percentage", *l)
+			return fieldErr("flake spec "+s.Name, FlakeItem(it).String(), ErrOutOfRange, "%s is above 100 %%; give a percentage", assess.Plain(*l))
 		}
 	}
 	if !any {
@@ -121,9 +122,9 @@ func (s FlakeSpec) Validate() error {
 
 // ReadFlakeSpecFile reads a flake spec from a JSON file.
 func ReadFlakeSpecFile(path string) (FlakeSpec, error) {
-	b, err := os.ReadFile(path)
+	b, err := assess.ReadFileLimited(path, assess.MaxDocumentFileBytes)
 	if err != nil {
-		return FlakeSpec{}, fieldErr(path, "", ErrBadSpec, "cannot read the flake spec (%v); check the path", err)
+		return FlakeSpec{}, fieldErr(path, "", fmt.Errorf("%w: %w", ErrBadSpec, err), "cannot read the flake spec (%v); check the path", err)
 	}
 	return ReadFlakeSpec(bytes.NewReader(b), path)
 }
@@ -131,7 +132,11 @@ func ReadFlakeSpecFile(path string) (FlakeSpec, error) {
 // ReadFlakeSpec reads a flake spec in JSON (unknown fields are errors).
 func ReadFlakeSpec(r io.Reader, name string) (FlakeSpec, error) {
 	var s FlakeSpec
-	dec := json.NewDecoder(r)
+	b, err := readDocument(r)
+	if err != nil {
+		return FlakeSpec{}, fieldErr(name, "", fmt.Errorf("%w: %w", ErrBadSpec, err), "not a valid flake spec: %v", err)
+	}
+	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&s); err != nil {
 		return FlakeSpec{}, fieldErr(name, "", ErrBadSpec, "not a valid flake spec: %v", jsonMsg(err))

@@ -1,6 +1,7 @@
 package yield
 
 import (
+	"baleassay/assess"
 	"fmt"
 )
 
@@ -100,7 +101,7 @@ func (r Recipe) validate() (Glycol, Catalyst, error) {
 		return g, Catalyst{}, err
 	}
 	if r.CatalystPct > 10 {
-		return g, Catalyst{}, fieldErr(where, "catalyst_pct", ErrOutOfRange, "%g wt %% of PET is far above practice (0.5–1); give a percentage of the PET mass", r.CatalystPct)
+		return g, Catalyst{}, fieldErr(where, "catalyst_pct", ErrOutOfRange, "%s wt %% of PET is far above practice (0.5–1); give a percentage of the PET mass", assess.Plain(r.CatalystPct))
 	}
 	ck := r.Catalyst
 	if ck == "" {
@@ -114,7 +115,7 @@ func (r Recipe) validate() (Glycol, Catalyst, error) {
 		return g, cat, err
 	}
 	if r.PETMn > 0 && r.PETMn < MolarMassPETUnit+MolarMassEG {
-		return g, cat, fieldErr(where, "pet_mn", ErrOutOfRange, "%g g/mol is below one repeat unit with its end group; bottle PET is about 20,000–30,000", r.PETMn)
+		return g, cat, fieldErr(where, "pet_mn", ErrOutOfRange, "%s g/mol is below one repeat unit with its end group; bottle PET is about 20,000–30,000", assess.Plain(r.PETMn))
 	}
 	if err := checkNonNegative(where, "pvc_kg", r.PVCKg); err != nil {
 		return g, cat, err
@@ -168,7 +169,7 @@ func newCharge(r Recipe, g Glycol, cat Catalyst) charge {
 func (c charge) ok() error {
 	if !(c.molecules > 0) || !(c.oh > 0) {
 		return fieldErr("glycolysis", "strip_eg", ErrRebuildsPET,
-			"stripping %.3g mol EG against %.3g mol glycol charged leaves no free chain ends (PET would re-form); strip less or charge more glycol", c.nStripped, c.nGlycol)
+			"stripping %s mol EG against %s mol glycol charged leaves no free chain ends (PET would re-form); strip less or charge more glycol", assess.Sig(c.nStripped, 3), assess.Sig(c.nGlycol, 3))
 	}
 	return nil
 }
@@ -237,7 +238,7 @@ func Glycolyse(r Recipe) (Glycolysate, error) {
 		out.Dist = flory(c.nT/c.units, MolarMassTerephthaloyl, mg)
 	}
 	if r.PVCKg > 0 {
-		out.Warnings = append(out.Warnings, fmt.Sprintf("residual PVC %.3g kg can release %.3g kg HCl (acid value +%.2f mg KOH/g): HCl corrodes the reactor and breaks PET chains; remove PVC before the reactor", r.PVCKg, out.HClKg, out.AcidValuePVC))
+		out.Warnings = append(out.Warnings, fmt.Sprintf("residual PVC %s kg can release %s kg HCl (acid value +%.2f mg KOH/g): HCl corrodes the reactor and breaks PET chains; remove PVC before the reactor", assess.Sig(r.PVCKg, 3), assess.Sig(out.HClKg, 3), out.AcidValuePVC))
 	}
 	if r.StripEG > 0 && g.Key != "EG" && g.BoilingC < glycols[0].BoilingC {
 		out.Warnings = append(out.Warnings, fmt.Sprintf("%s boils below EG (%.0f vs %.0f °C): a still takes it first, while the model assumes only EG leaves", g.Key, g.BoilingC, glycols[0].BoilingC))

@@ -6,7 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"regexp"
 	"sort"
 	"strings"
@@ -188,9 +187,9 @@ func isPET(i int) bool {
 
 // ReadLineFile reads a line profile from a JSON file and validates it.
 func ReadLineFile(path string) (Line, error) {
-	b, err := os.ReadFile(path)
+	b, err := assess.ReadFileLimited(path, assess.MaxDocumentFileBytes)
 	if err != nil {
-		return Line{}, fieldErr(path, "", ErrBadLine, "cannot read the line profile (%v); check the path", err)
+		return Line{}, fieldErr(path, "", fmt.Errorf("%w: %w", ErrBadLine, err), "cannot read the line profile (%v); check the path", err)
 	}
 	return ReadLine(bytes.NewReader(b), path)
 }
@@ -199,7 +198,11 @@ func ReadLineFile(path string) (Line, error) {
 // validates it; name labels the messages.
 func ReadLine(r io.Reader, name string) (Line, error) {
 	var l Line
-	dec := json.NewDecoder(r)
+	b, err := readDocument(r)
+	if err != nil {
+		return Line{}, fieldErr(name, "", fmt.Errorf("%w: %w", ErrBadLine, err), "not a valid line profile: %v", err)
+	}
+	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&l); err != nil {
 		return Line{}, fieldErr(name, "", ErrBadLine, "not a valid line profile: %v", jsonMsg(err))
@@ -215,6 +218,23 @@ func ReadLine(r io.Reader, name string) (Line, error) {
 		return Line{}, err
 	}
 	return l, nil
+}
+
+// readDocument reads a JSON document of at most
+// assess.MaxDocumentFileBytes and refuses a repeated key or a control
+// character in a string (assess.CheckJSON).
+func readDocument(r io.Reader) ([]byte, error) {
+	b, err := io.ReadAll(io.LimitReader(r, assess.MaxDocumentFileBytes+1))
+	if err != nil {
+		return nil, err
+	}
+	if len(b) > assess.MaxDocumentFileBytes {
+		return nil, fmt.Errorf("%w: more than %d bytes", assess.ErrFileTooLarge, assess.MaxDocumentFileBytes)
+	}
+	if err := assess.CheckJSON(b); err != nil {
+		return nil, err
+	}
+	return b, nil
 }
 
 func jsonMsg(err error) string {

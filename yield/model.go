@@ -196,7 +196,7 @@ func (m *Model) compileStage(i int, s Stage, nc int) (cstage, error) {
 			return cstage{}, err
 		}
 		if s.Moisture.Hi >= 1 {
-			return cstage{}, fieldErr(where, "moisture", ErrOutOfRange, "%g leaves only water; give the moisture share of the wet flake below 1", s.Moisture.Hi)
+			return cstage{}, fieldErr(where, "moisture", ErrOutOfRange, "%s leaves only water; give the moisture share of the wet flake below 1", assess.Plain(s.Moisture.Hi))
 		}
 		cs.moist = m.addParam(s.Moisture, where+": moisture")
 	case StageSinkFloat:
@@ -216,7 +216,7 @@ func (m *Model) compileSinkFloat(where string, s Stage, keep Side, cs *cstage) e
 		return err
 	}
 	if s.BathDensity > 5 {
-		return fieldErr(where, "bath_density", ErrOutOfRange, "%g g/cm³ is not a wash bath; give the bath density in g/cm³ (water 1.00)", s.BathDensity)
+		return fieldErr(where, "bath_density", ErrOutOfRange, "%s g/cm³ is not a wash bath; give the bath density in g/cm³ (water 1.00)", assess.Plain(s.BathDensity))
 	}
 	if len(s.Removal) > 0 || s.PETLoss.set {
 		return fieldErr(where, "removal", ErrBadLine, "a sink_float stage separates by density; give efficiency and product_loss instead of removal or pet_loss")
@@ -269,7 +269,7 @@ func closes(where string, s Stage, cs cstage, params []Param) error {
 		}
 		if total > 1+1e-12 {
 			return fieldErr(where, "removal."+ComponentKey(c), ErrNotClosed,
-				"the stage does not close: the shares sent away add up to %.4g (removal, pet_loss and dust_made together), more than all of it; lower them so they sum to at most 1", total)
+				"the stage does not close: the shares sent away add up to %s (removal, pet_loss and dust_made together), more than all of it; lower them so they sum to at most 1", assess.Sig(total, 4))
 		}
 	}
 	return nil

@@ -1,6 +1,7 @@
 package yield
 
 import (
+	"baleassay/assess"
 	"bytes"
 	"encoding/json"
 	"fmt"
@@ -72,7 +73,7 @@ func checkParam(where, field string, p Param) error {
 		return err
 	}
 	if p.Lo > p.Hi {
-		return fieldErr(where, field, ErrOutOfRange, "range [%g, %g] runs backwards; give [low, high]", p.Lo, p.Hi)
+		return fieldErr(where, field, ErrOutOfRange, "range [%s, %s] runs backwards; give [low, high]", assess.Plain(p.Lo), assess.Plain(p.Hi))
 	}
 	return nil
 }

@@ -49,13 +49,13 @@ func runAssess(args []string, stdout, stderr io.Writer) error {
 		return usagef("%v", err)
 	}
 	if !(*conf > 0 && *conf < 1) {
-		return usagef("--confidence %g: give a level between 0 and 1, e.g. 0.90", *conf)
+		return usagef("--confidence %s: give a level between 0 and 1, e.g. 0.90", assess.Plain(*conf))
 	}
 	if !(*prec > 0) || math.IsInf(*prec, 0) {
-		return usagef("--precision %g: give a relative precision above 0, e.g. 0.10", *prec)
+		return usagef("--precision %s: give a relative precision above 0, e.g. 0.10", assess.Plain(*prec))
 	}
 	if math.IsNaN(*baleKg) || math.IsInf(*baleKg, 0) || *baleKg < 0 {
-		return usagef("--bale-kg %g: give the bale's gross mass in kg (0 or more)", *baleKg)
+		return usagef("--bale-kg %s: give the bale's gross mass in kg (0 or more)", assess.Plain(*baleKg))
 	}
 	if _, err := os.Stat(pos[0]); err != nil && !strings.ContainsAny(pos[0], "/\\.") {
 		// Not a file: a stored bale, its pulls and its spec from the store.
@@ -82,41 +82,19 @@ func runAssess(args []string, stdout, stderr io.Writer) error {
 		printReport(stdout, a.Report, a.Result)
 		return nil
 	}
-	var spec *assess.Spec
-	if *specName != "none" {
-		s, err := assess.LoadSpec(*specName)
-		if err != nil {
-			return err
-		}
-		spec = &s
-	}
-	pulls, err := assess.ReadPullsFile(pos[0])
+	pulls, err := desk.ReadPullsFile(pos[0], 0)
 	if err != nil {
 		return err
 	}
-	audit := assess.Audit{Pulls: pulls, BaleKg: *baleKg}
-	if s := audit.SampledKg(); *baleKg > 0 && *baleKg < s*(1-1e-9) {
-		return fmt.Errorf("--bale-kg %g is below the %.3f kg sampled in %s; check the bale's mass or the pull masses", *baleKg, s, pos[0])
-	}
-	res, err := assess.Assess(audit, assess.Options{Method: m, Confidence: *conf})
+	var d *desk.Desk // no store: built-in specs and files only
+	a, err := d.AuditPulls(pulls, *baleKg, desk.AuditOptions{Spec: *specName, Confidence: *conf, Method: m, Precision: *prec})
 	if err != nil {
 		return fmt.Errorf("%s: %w", pos[0], err)
 	}
-	var sv *assess.SpecVerdict
-	if spec != nil {
-		v, err := assess.Judge(res, *spec)
-		if err != nil {
-			return err
-		}
-		sv = &v
-	}
-	rep := assess.NewReport(res, sv, assess.Advise(res, sv, *prec))
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(rep)
+		return writeJSON(stdout, a.Report)
 	}
-	printReport(stdout, rep, res)
+	printReport(stdout, a.Report, a.Result)
 	return nil
 }
 

@@ -9,6 +9,7 @@ import (
 	"text/tabwriter"
 
 	"baleassay/assess"
+	"baleassay/data/desk"
 )
 
 func pct(x float64) string { return fmt.Sprintf("%.2f %%", 100*x) }
@@ -37,7 +38,7 @@ func pctUp(x float64) string {
 }
 
 func printReport(w io.Writer, rep assess.Report, res assess.Result) {
-	fmt.Fprintf(w, "Bale audit: %d pulls, %.2f kg sampled", rep.Pulls, rep.SampledKg)
+	fmt.Fprintf(w, "Bale audit: %s, %.2f kg sampled", desk.Plural(rep.Pulls, "pull", "pulls"), rep.SampledKg)
 	if rep.BaleKg > 0 {
 		fmt.Fprintf(w, " of a %.0f kg bale (%.1f %%)", rep.BaleKg, 100*rep.SampledShare)
 	}
@@ -246,7 +247,8 @@ func needText(verdict, need string, more, total *int, unit string) string {
 	}
 	switch need {
 	case assess.SizePulls.String():
-		return fmt.Sprintf("%d more %s (%d in all)", *more, unit, *total)
+		one := strings.TrimSuffix(unit, "s")
+		return fmt.Sprintf("%d more %s (%d in all)", *more, plural(*more, one, unit), *total)
 	case assess.SizeWholeBale.String(), assess.SizeBeyondReach.String():
 		if unit == "bales" {
 			return "not even every bale"

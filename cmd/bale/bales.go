@@ -1,13 +1,13 @@
 package main
 
 import (
+	"baleassay/assess"
 	"baleassay/data/desk"
 	"baleassay/data/record"
 	"flag"
 	"fmt"
 	"io"
 	"math"
-	"strconv"
 	"strings"
 	"text/tabwriter"
 )
@@ -61,8 +61,8 @@ func parseDims(s string) (l, w, h float64, err error) {
 	}
 	var v [3]float64
 	for i, p := range parts {
-		x, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+		x, err := assess.ParseDecimal(strings.TrimSpace(p))
+		if err != nil {
 			return 0, 0, 0, usagef("--dims %q: %q is not a number of metres", s, p)
 		}
 		v[i] = x

@@ -6,6 +6,7 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"baleassay/assess"
 	"baleassay/yield"
 )
 
@@ -77,7 +78,7 @@ func runBlend(args []string, stdout, stderr io.Writer) error {
 	if !flagSet(fs, "index") {
 		return usagef("--index is required, e.g. --index 110")
 	}
-	name := fmt.Sprintf("%g %% NCO", *nco)
+	name := fmt.Sprintf("%s %% NCO", assess.Plain(*nco))
 	switch {
 	case flagSet(fs, "isocyanate") && flagSet(fs, "isocyanate-nco"):
 		return usagef("give --isocyanate or --isocyanate-nco, not both")
@@ -128,7 +129,7 @@ func runBlend(args []string, stdout, stderr io.Writer) error {
 	if o.WaterKg > 0 {
 		fmt.Fprintf(stdout, "Water %.3f kg: %.3f equivalents\n", o.WaterKg, o.WaterEquivalents)
 	}
-	fmt.Fprintf(stdout, "Isocyanate %s (%.2f %% NCO, %.1f g/eq) at index %g: %.3f kg\n", o.Isocyanate, o.NCOPct, o.NCOEquivalentWeight, o.Index, o.IsocyanateKg)
+	fmt.Fprintf(stdout, "Isocyanate %s (%.2f %% NCO, %.1f g/eq) at index %s: %.3f kg\n", o.Isocyanate, o.NCOPct, o.NCOEquivalentWeight, assess.Plain(o.Index), o.IsocyanateKg)
 	fmt.Fprintf(stdout, "Recycled PET: %.3f kg, %.1f %% of the blend, %.1f %% of the formulation (%.3f kg)\n",
 		o.RecycledPETKg, 100*o.RecycledPETShare, 100*o.FormulationPETShare, o.FormulationKg)
 	printNotes(stdout, o.Warnings, o.Cautions)

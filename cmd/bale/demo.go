@@ -45,8 +45,9 @@ func runDemo(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	fmt.Fprintf(stdout, "demo store %s\n", dir)
-	fmt.Fprintf(stdout, "  an invented region (the Vale of Orrin): %d sites, %d bales, %d pulls, %d events, %s to %s\n",
-		sum.Sites, sum.Bales, sum.Pulls, sum.Events, sum.From.Format("2006-01-02"), sum.To.Format("2006-01-02"))
+	fmt.Fprintf(stdout, "  an invented region (the Vale of Orrin): %s, %s, %s, %s, %s to %s\n",
+		desk.Plural(sum.Sites, "site", "sites"), desk.Plural(sum.Bales, "bale", "bales"), desk.Plural(sum.Pulls, "pull", "pulls"),
+		desk.Plural(sum.Events, "event", "events"), sum.From.Format("2006-01-02"), sum.To.Format("2006-01-02"))
 	fmt.Fprintf(stdout, "  two devices: yard tablet %s…, lab laptop %s…; one site edited on both: %s\n",
 		sum.YardDevice.String()[:8], sum.LabDevice.String()[:8], sum.ConflictSite)
 	demoFlag := "--demo"

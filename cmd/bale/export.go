@@ -1,31 +1,33 @@
 package main
 
 import (
-	"baleassay/data/transfer"
-	"errors"
+	"baleassay/data/desk"
 	"fmt"
 	"io"
-	"os"
-	"path/filepath"
-	"strings"
 )
 
 func init() {
 	register(command{
 		name:    "export",
-		usage:   "--to PATH [--since-last DEST | --all] [--part-mb N] [--store DIR]",
-		summary: "write this store's records as signed bundle files (to carry on a USB stick)",
+		usage:   "--to PATH [--since-last DEST | --all] [--force] [--part-mb N] [--store DIR] | " + exportFormatsUsage,
+		summary: "write this store's records as signed bundle files (to carry on a USB stick), or as CSV or GeoJSON for other tools",
 		run:     runExport,
 	})
 }
 
 func runExport(args []string, stdout, stderr io.Writer) error {
+	if len(args) > 0 {
+		if run, ok := exportFormats[args[0]]; ok {
+			return run(args[1:], stdout)
+		}
+	}
 	fs := newFlags("export")
 	store := storeFlag(fs)
-	to := fs.String("to", "", "bundle `PATH`: a file, or an existing folder for bale-<device>-<seq>.bale names")
+	to := fs.String("to", "", "bundle `PATH`: a new file, or a folder for bale-<device>-<seq>.bale names")
 	since := fs.String("since-last", "", "only what destination `DEST` (e.g. lab) has not had from this store yet")
 	all := fs.Bool("all", false, "every event in the store (the default)")
-	partMB := fs.Int("part-mb", transfer.DefaultPartBytes>>20, "split into signed parts of at most `N` MiB")
+	force := fs.Bool("force", false, "replace the file --to names if it exists (never done otherwise)")
+	partMB := fs.Int("part-mb", desk.DefaultPartMiB, "split into signed parts of at most `N` MiB")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -37,10 +39,10 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 		return usagef("give --to PATH")
 	case *all && *since != "":
 		return usagef("--all and --since-last exclude each other")
-	case *partMB < 1 || *partMB > transfer.MaxBundleBytes>>20:
-		return usagef("--part-mb must be 1 to %d", transfer.MaxBundleBytes>>20)
+	case *partMB < 1 || *partMB > desk.MaxPartMiB:
+		return usagef("--part-mb must be 1 to %d", desk.MaxPartMiB)
 	}
-	if err := checkExportTarget(*to); err != nil {
+	if err := desk.CheckExportTarget(*to); err != nil {
 		return err
 	}
 	d, err := openDesk(*store, false)
@@ -48,14 +50,12 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	defer d.Close()
-	s := d.Store()
-	key, _, err := deviceKey(s.Dir())
+	res, fp, err := d.ExportBundles(*to, desk.BundleOptions{SinceLast: *since, PartBytes: *partMB << 20, Force: *force})
 	if err != nil {
 		return err
 	}
-	res, err := transfer.Export(s, key, *to, transfer.ExportOptions{SinceLast: *since, PartBytes: *partMB << 20})
-	if err != nil {
-		return err
+	if res.CleanedTemps > 0 {
+		fmt.Fprintf(stdout, "removed %d temporary file(s) an interrupted export had left\n", res.CleanedTemps)
 	}
 	if len(res.Files) == 0 {
 		if *since != "" {
@@ -68,28 +68,7 @@ func runExport(args []string, stdout, stderr io.Writer) error {
 	for i, f := range res.Files {
 		fmt.Fprintf(stdout, "wrote %s (bundle %d, part %d of %d)\n", f, res.Seqs[i], i+1, len(res.Files))
 	}
-	fmt.Fprintf(stdout, "%d events, %d bytes, signed by %s\n", res.Events, res.Bytes, key.Fingerprint())
-	return nil
-}
-
-// checkExportTarget refuses, before anything is written, a --to whose
-// folder does not exist, with a message that says what to do.
-func checkExportTarget(to string) error {
-	dir := to
-	if !strings.HasSuffix(to, string(os.PathSeparator)) {
-		if fi, err := os.Stat(to); err == nil && fi.IsDir() {
-			return nil
-		}
-		dir = filepath.Dir(to)
-	}
-	fi, err := os.Stat(dir)
-	switch {
-	case errors.Is(err, os.ErrNotExist):
-		return fmt.Errorf("folder %s does not exist: plug in or mount the stick, or create the folder, then export again", dir)
-	case err != nil:
-		return fmt.Errorf("cannot use %s: %v", dir, err)
-	case !fi.IsDir():
-		return fmt.Errorf("%s is a file, not a folder: give a folder or a new file name for --to", dir)
-	}
+	fmt.Fprintf(stdout, "%s (%d of other devices, with their authors' proofs), %s, signed by %s\n",
+		desk.Plural(res.Events, "event", "events"), res.Relayed, desk.Plural(int(res.Bytes), "byte", "bytes"), fp)
 	return nil
 }

@@ -82,7 +82,7 @@ func runGenerate(args []string, stdout, stderr io.Writer) error {
 		b, n := sum.LargestBundle()
 		fmt.Fprintf(stdout, "  %d bundles in %s (largest %.1f MB, %d events); the devices' public keys are in %s\n",
 			sum.Bundles, *bundles, float64(b)/1e6, n, filepath.Join(*bundles, desk.BundleKeysDir))
-		fmt.Fprintf(stdout, "to merge them as the lab would (they are demo records):\n  for k in %s/*.pem; do bale trust add \"$k\" --name \"$(basename \"$k\" .pem)\" --store LAB; done\n  bale import %s --store LAB --allow-demo\n",
+		fmt.Fprintf(stdout, "to merge them as the lab would (they are demo records):\n  for k in %s/*.pem; do bale trust add \"$k\" --name \"$(basename \"$k\" .pem)\" --yes --store LAB; done\n  bale import %s --store LAB --allow-demo\n",
 			filepath.Join(*bundles, desk.BundleKeysDir), *bundles)
 	} else {
 		fmt.Fprintf(stdout, "  in the store %s; try: bale sites list --store %s\n", *dir, *dir)

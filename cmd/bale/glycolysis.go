@@ -6,6 +6,7 @@ import (
 	"io"
 	"text/tabwriter"
 
+	"baleassay/assess"
 	"baleassay/yield"
 )
 
@@ -71,7 +72,7 @@ func (rf *recipeFlags) recipe(fs *flag.FlagSet, petKg float64) (yield.Recipe, er
 		Conversion: rf.conv.p.Mid(), StripEG: rf.strip.p.Mid(), Catalyst: *rf.catalyst, CatalystPct: *rf.cat, PETMn: *rf.petMn}
 	if rf.glycolKg != nil && flagSet(fs, "glycol-kg") {
 		if !(*rf.glycolKg > 0) {
-			return r, &yield.FieldError{Where: "glycolysis", Field: "glycol_kg", Msg: fmt.Sprintf("must be above 0 (got %g in --glycol-kg)", *rf.glycolKg), Err: yield.ErrOutOfRange}
+			return r, &yield.FieldError{Where: "glycolysis", Field: "glycol_kg", Msg: fmt.Sprintf("must be above 0 (got %s in --glycol-kg)", assess.Plain(*rf.glycolKg)), Err: yield.ErrOutOfRange}
 		}
 		r.GlycolKg = *rf.glycolKg
 	}
@@ -186,8 +187,8 @@ func runGlycolysis(args []string, stdout, stderr io.Writer) error {
 	if *asJSON {
 		return writeJSON(stdout, o)
 	}
-	fmt.Fprintf(stdout, "Glycolysis of %g kg PET with %.4g kg %s (%g %% %s, conversion %g, EG stripped %g)\n",
-		g.PETKg, g.GlycolKg, g.Glycol.Name, g.Recipe.CatalystPct, g.Catalyst.Name, g.Recipe.Conversion, g.Recipe.StripEG)
+	fmt.Fprintf(stdout, "Glycolysis of %s kg PET with %s kg %s (%s %% %s, conversion %s, EG stripped %s)\n",
+		assess.Plain(g.PETKg), assess.Sig(g.GlycolKg, 4), g.Glycol.Name, assess.Plain(g.Recipe.CatalystPct), g.Catalyst.Name, assess.Plain(g.Recipe.Conversion), assess.Plain(g.Recipe.StripEG))
 	printGlycolysate(stdout, g)
 	printNotes(stdout, o.Warnings, o.Cautions)
 	return nil

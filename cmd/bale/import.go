@@ -2,7 +2,6 @@ package main
 
 import (
 	"baleassay/data/desk"
-	"baleassay/data/transfer"
 	"context"
 	"encoding/json"
 	"fmt"
@@ -14,8 +13,8 @@ import (
 func init() {
 	register(command{
 		name:    "import",
-		usage:   "FILE|FOLDER... [--store DIR] [--allow-demo] [--json]",
-		summary: "merge signed bundle files into this store (each file all or nothing; files are never changed)",
+		usage:   "FILE|FOLDER... [--store DIR] [--allow-demo] [--files] [--json]",
+		summary: "merge signed bundle files or folders of them into this store (each file all or nothing; a summary per device)",
 		run:     runImport,
 	})
 }
@@ -41,7 +40,8 @@ func runImport(args []string, stdout, stderr io.Writer) error {
 	fs := newFlags("import")
 	store := storeFlag(fs)
 	allowDemo := fs.Bool("allow-demo", false, "take records of the invented demo scenario into a store of real records")
-	asJSON := fs.Bool("json", false, "print JSON: {files: [{path, device, bundle, part, parts, signer, events, new, present, conflicts, replay, flags, error}], gaps: [text]}")
+	asJSON := fs.Bool("json", false, "print JSON: {files: [...], gaps: [text], devices: [...], refused: [...], skipped: [path]} (see README)")
+	everyFile := fs.Bool("files", false, "list every file, not only the refused and flagged ones")
 	pos, err := parseArgs(fs, args)
 	if err != nil {
 		return err
@@ -49,56 +49,29 @@ func runImport(args []string, stdout, stderr io.Writer) error {
 	if len(pos) == 0 {
 		return usagef("give at least one bundle file or folder")
 	}
-	files, err := transfer.ExpandPaths(pos)
+	n, err := countBundles(pos)
 	if err != nil {
 		return err
-	}
-	if len(files) == 0 {
-		return fmt.Errorf("no %s files in %s", transfer.BundleExt, strings.Join(pos, ", "))
 	}
 	d, err := openDesk(*store, true)
 	if err != nil {
 		return err
 	}
 	defer d.Close()
-	defer limitImportMemory(files)()
-	rep, err := d.Import(context.Background(), files, desk.ImportOptions{AllowDemo: *allowDemo}, newProgress(stderr, len(files)).show)
+	defer limitImportMemory(pos)()
+	run, err := d.ImportPaths(context.Background(), pos, desk.ImportOptions{AllowDemo: *allowDemo}, newProgress(stderr, n).show)
 	if err != nil {
 		return err
 	}
 	if *asJSON {
-		out := struct {
-			Files []fileJSON `json:"files"`
-			Gaps  []string   `json:"gaps"`
-		}{Files: []fileJSON{}, Gaps: []string{}}
-		for _, f := range rep.Files {
-			j := fileJSON{Path: f.Path, Events: f.Events, New: f.New, Present: f.Present, Conflicts: f.Conflicts, Replay: f.Replay, Flags: f.Flags}
-			if j.Flags == nil {
-				j.Flags = []string{}
-			}
-			if f.Err != nil {
-				j.Error = f.Err.Error()
-			} else {
-				j.Device, j.Bundle, j.Part, j.Parts, j.Signer = f.Device.String(), f.Seq, f.Part, f.Parts, f.Signer
-			}
-			out.Files = append(out.Files, j)
-		}
-		for _, g := range rep.Gaps {
-			out.Gaps = append(out.Gaps, g.String())
-		}
-		if err := json.NewEncoder(stdout).Encode(out); err != nil {
+		if err := json.NewEncoder(stdout).Encode(importJSONOf(run)); err != nil {
 			return err
 		}
 	} else {
-		for _, f := range rep.Files {
-			fmt.Fprintln(stdout, f.SummaryLine())
-		}
-		for _, g := range rep.Gaps {
-			fmt.Fprintln(stdout, "gap: "+g.String())
-		}
+		printImport(stdout, run, *everyFile)
 	}
-	if n := rep.Refused(); n > 0 {
-		return fmt.Errorf("%d of %d files refused; nothing of a refused file was applied", n, len(rep.Files))
+	if n := len(run.Refused); n > 0 {
+		return fmt.Errorf("%d of %s refused (listed above); nothing of a refused file was applied", n, desk.Plural(len(run.Report.Files), "file", "files"))
 	}
 	return nil
 }
@@ -126,13 +99,13 @@ func (p *progress) show(e desk.Progress) {
 	if p.tty {
 		const width = 24
 		n := width * e.Done / max(1, e.Of)
-		fmt.Fprintf(p.w, "\r[%s%s] %d/%d files, %d events %-9s", strings.Repeat("#", n), strings.Repeat(" ", width-n), e.Done, e.Of, e.EventsSoFar, e.Step)
+		fmt.Fprintf(p.w, "\r[%s%s] %d/%s, %s %-9s", strings.Repeat("#", n), strings.Repeat(" ", width-n), e.Done, desk.Plural(e.Of, "file", "files"), desk.Plural(e.EventsSoFar, "event", "events"), e.Step)
 		if e.Done == e.Of && end {
 			fmt.Fprintln(p.w)
 		}
 		return
 	}
 	if e.Step == desk.StepApplying && (p.files > 1 || e.Events >= 10_000) {
-		fmt.Fprintf(p.w, "import: file %d of %d: %s: checking and applying %d events\n", e.Done+1, e.Of, e.File, e.Events)
+		fmt.Fprintf(p.w, "import: file %d of %d: %s: checking and applying %s\n", e.Done+1, e.Of, e.File, desk.Plural(e.Events, "event", "events"))
 	}
 }

@@ -45,7 +45,7 @@ func runLoad(args []string, stdout, stderr io.Writer) error {
 		return usagef("name the audited bales: stored bales (tag or id), or pulls files as FILE:KG")
 	}
 	if !(*conf > 0 && *conf < 1) {
-		return usagef("--confidence %g: give a level between 0 and 1, e.g. 0.90", *conf)
+		return usagef("--confidence %s: give a level between 0 and 1, e.g. 0.90", assess.Plain(*conf))
 	}
 	if *bales < 0 || math.IsNaN(*loadKg) || *loadKg < 0 || !(*baleCost > 0) {
 		return usagef("--bales, --load-kg and --bale-cost take numbers of 0 or more (--bale-cost above 0)")
@@ -105,8 +105,8 @@ func loadYieldJSON(la desk.LoadAudit) *yieldJSON {
 
 func printLoad(w io.Writer, la desk.LoadAudit) {
 	r := la.Report
-	fmt.Fprintf(w, "Load audit: %d of %d bales audited (%.0f %%), %d pulls, %.1f kg sorted; load %.0f kg\n",
-		r.Audited, r.Bales, 100*r.AuditedShare, r.Pulls, r.SampledKg, r.LoadKg)
+	fmt.Fprintf(w, "Load audit: %d of %s audited (%.0f %%), %s, %.1f kg sorted; load %.0f kg\n",
+		r.Audited, desk.Plural(r.Bales, "bale", "bales"), 100*r.AuditedShare, desk.Plural(r.Pulls, "pull", "pulls"), r.SampledKg, r.LoadKg)
 	fmt.Fprintf(w, "Two-stage ratio-to-size estimate, %.0f %% confidence\n", 100*r.Confidence)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "\nbale\tkg\tpulls\tsorted kg\ttarget PET\tinterval\t\n")
@@ -127,19 +127,19 @@ func printLoad(w io.Writer, la desk.LoadAudit) {
 	if a.CostBales != nil || a.CostPulls != nil {
 		var parts []string
 		if a.CostBales != nil {
-			parts = append(parts, fmt.Sprintf("%d more bales ≈ %.0f pulls' worth", *a.MoreBales, *a.CostBales))
+			parts = append(parts, fmt.Sprintf("%s more ≈ %.0f pulls' worth", desk.Plural(*a.MoreBales, "bale", "bales"), *a.CostBales))
 		}
 		if a.CostPulls != nil {
-			parts = append(parts, fmt.Sprintf("%d more pulls (%d per bale)", *a.MorePulls, *a.PullsPerBale))
+			parts = append(parts, fmt.Sprintf("%d more %s (%d per bale)", *a.MorePulls, plural(*a.MorePulls, "pull", "pulls"), *a.PullsPerBale))
 		}
-		fmt.Fprintf(w, "  Effort, with a bale counted as %g pulls besides its own: %s.\n", a.BaleCost, strings.Join(parts, "; "))
+		fmt.Fprintf(w, "  Effort, with a bale counted as %s pulls besides its own: %s.\n", assess.Plain(a.BaleCost), strings.Join(parts, "; "))
 	}
 	for _, n := range r.Notes {
 		fmt.Fprintf(w, "Note: %s\n", n)
 	}
 	if y := la.Yield; y != nil {
 		o := loadYieldJSON(la)
-		fmt.Fprintf(w, "\nThe load through %s (%d draws, seed %d):\n", y.Plan.Line, o.Draws, o.Seed)
+		fmt.Fprintf(w, "\nThe load through %s (%s, seed %d):\n", y.Plan.Line, desk.Plural(o.Draws, "draw", "draws"), o.Seed)
 		tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 		fmt.Fprintf(tw, "\tpoint\tP10\tP50\tP90\t\n")
 		fmt.Fprintf(tw, "clean flake, kg\t%.0f\t%s\t%s\t%s\t\n", o.Point.FlakeKg, kgOf(o.FlakeKg.P10), kgOf(o.FlakeKg.P50), kgOf(o.FlakeKg.P90))

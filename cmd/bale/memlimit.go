@@ -1,6 +1,7 @@
 package main
 
 import (
+	"baleassay/data/desk"
 	"os"
 	"runtime/debug"
 )
@@ -21,12 +22,14 @@ const (
 	importMemoryPerByte = 24
 )
 
-// limitImportMemory sets the limit for importing files and returns the
-// function that puts the previous one back.
-func limitImportMemory(files []string) func() {
+// limitImportMemory sets the limit for importing the bundle files that
+// paths name (files and folders) and returns the function that puts the
+// previous one back.
+func limitImportMemory(paths []string) func() {
 	if os.Getenv("GOMEMLIMIT") != "" {
 		return func() {}
 	}
+	files, _ := desk.BundleFiles(paths)
 	var largest int64
 	for _, f := range files {
 		if st, err := os.Stat(f); err == nil {

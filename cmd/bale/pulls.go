@@ -1,6 +1,7 @@
 package main
 
 import (
+	"baleassay/assess"
 	"fmt"
 	"io"
 	"os"
@@ -30,6 +31,7 @@ type pullJSON struct {
 	TotalKg    float64            `json:"total_kg"`
 	Kg         map[string]float64 `json:"kg"`
 	Pieces     map[string]int64   `json:"pieces,omitempty"`
+	TotalCount int64              `json:"total_count,omitempty"` // pieces examined
 	Conflicted bool               `json:"conflicted"`
 	WeighedKg  *float64           `json:"weighed_kg,omitempty"`  // weighed before sorting
 	UnsortedKg *float64           `json:"unsorted_kg,omitempty"` // weighed − sorted parts
@@ -55,7 +57,7 @@ func readPullsArg(arg, unitS string) ([]record.PullRecord, error) {
 	if arg == "-" {
 		return desk.ReadPulls(stdin, "stdin", unit)
 	}
-	f, err := os.Open(arg)
+	f, _, err := assess.OpenRegular(arg) // a FIFO or folder is refused, not waited on
 	if err != nil {
 		return nil, fmt.Errorf("cannot read %s: %v", arg, err)
 	}
@@ -166,7 +168,7 @@ func pullsList(args []string, stdout io.Writer) error {
 	out := make([]pullJSON, len(pulls))
 	for i, p := range pulls {
 		out[i] = pullJSON{ID: p.ID.String(), Bale: bale.String(), Label: p.Pull.Label, Taken: recTime(p.Pull.TakenMs),
-			TotalKg: p.Pull.PartsKg(), Kg: p.Pull.Kg, Pieces: p.Pull.Pieces, Conflicted: p.Conflicted}
+			TotalKg: p.Pull.PartsKg(), Kg: p.Pull.Kg, Pieces: p.Pull.Pieces, TotalCount: p.Pull.TotalPieces, Conflicted: p.Conflicted}
 		if p.Pull.StatedKg > 0 {
 			w, rest := p.Pull.StatedKg, p.RemainderKg()
 			out[i].WeighedKg, out[i].UnsortedKg = &w, &rest

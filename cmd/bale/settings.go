@@ -1,10 +1,10 @@
 package main
 
 import (
+	"baleassay/assess"
 	"baleassay/data/desk"
 	"fmt"
 	"io"
-	"os"
 	"text/tabwriter"
 )
 
@@ -35,7 +35,7 @@ func settingsAdd(args []string, stdout io.Writer) error {
 	if err != nil {
 		return usagef("unknown setting kind %q: give spec or line", pos[0])
 	}
-	body, err := os.ReadFile(pos[1])
+	body, err := assess.ReadFileLimited(pos[1], assess.MaxDocumentFileBytes)
 	if err != nil {
 		return fmt.Errorf("cannot read %s: %v", pos[1], err)
 	}

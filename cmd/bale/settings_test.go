@@ -39,7 +39,7 @@ func TestSettingsAddListShowTravel(t *testing.T) {
 	if len(files) != 1 {
 		t.Fatalf("bundles: %v", files)
 	}
-	if code, _, errs := runCLI(t, "trust", "add", files[0], "--name", "tablet", "--store", lab); code != 0 {
+	if code, _, errs := runCLI(t, "trust", "add", files[0], "--name", "tablet", "--yes", "--store", lab); code != 0 {
 		t.Fatalf("trust: %s", errs)
 	}
 	if code, _, errs := runCLI(t, "import", files[0], "--store", lab); code != 0 {

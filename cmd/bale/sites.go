@@ -117,7 +117,7 @@ func sitesList(args []string, stdout io.Writer) error {
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%.5f\t%.5f\t%s\n", v.ID, v.Name, v.Kind, v.Lat, v.Lon, mark)
 	}
 	tw.Flush()
-	fmt.Fprintf(stdout, "%d sites\n", len(out))
+	fmt.Fprintln(stdout, desk.Plural(len(out), "site", "sites"))
 	return nil
 }
 
@@ -155,7 +155,7 @@ func sitesQuery(sub string, args []string, stdout io.Writer) error {
 		fmt.Fprintf(tw, "%s\t%s\t%.5f\t%.5f\t%s\n", h.ID, h.Name, h.Lat, h.Lon, km)
 	}
 	tw.Flush()
-	fmt.Fprintf(stdout, "%d sites\n", len(out))
+	fmt.Fprintln(stdout, desk.Plural(len(out), "site", "sites"))
 	return nil
 }
 

@@ -1,14 +1,13 @@
 package main
 
 import (
+	"baleassay/assess"
 	"baleassay/data/desk"
 	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
-	"math"
-	"strconv"
 	"strings"
 	"time"
 )
@@ -71,6 +70,7 @@ func parseWithNumbers(fs *flag.FlagSet, args []string) ([]string, error) {
 			i++
 		}
 	}
+	strictFlags(fs)
 	if err := fs.Parse(flagArgs); err != nil {
 		return nil, usagef("%v", err)
 	}
@@ -78,7 +78,7 @@ func parseWithNumbers(fs *flag.FlagSet, args []string) ([]string, error) {
 }
 
 func recIsNumber(s string) bool {
-	_, err := strconv.ParseFloat(s, 64)
+	_, err := assess.ParseDecimal(s)
 	return err == nil
 }
 
@@ -91,9 +91,9 @@ func recIsBoolFlag(f *flag.Flag) bool {
 func recFloats(names []string, args []string) ([]float64, error) {
 	out := make([]float64, len(args))
 	for i, a := range args {
-		x, err := strconv.ParseFloat(a, 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-			return nil, usagef("%s %q is not a number", names[i], a)
+		x, err := assess.ParseDecimal(a)
+		if err != nil {
+			return nil, usagef("%s %q is not a plain decimal number", names[i], a)
 		}
 		out[i] = x
 	}

@@ -69,7 +69,7 @@ func flipStore(t *testing.T) (dir, bundle string, show []string) {
 	recMust(t, "sites", "add", "--name", "Quarry Lane Yard", "--lat", "45.31", "--lon", "4.93", "--store", other)
 	first := filepath.Join(tmp, "q1.bale")
 	recMust(t, "export", "--to", first, "--all", "--store", other)
-	recMust(t, "trust", "add", first, "--name", "quarry tablet", "--store", dir)
+	recMust(t, "trust", "add", first, "--name", "quarry tablet", "--yes", "--store", dir)
 	recMust(t, "import", first, "--store", dir)
 	recMust(t, "sites", "add", "--name", "Quarry Lane Depot", "--lat", "45.29", "--lon", "4.95", "--kind", "depot", "--store", other)
 	bundle = filepath.Join(tmp, "q2.bale")

@@ -26,7 +26,7 @@ func bale(t *testing.T, args ...string) (int, string, string) {
 func grader(t *testing.T) string {
 	t.Helper()
 	dir := t.TempDir()
-	s, err := store.Open(dir)
+	s, _, err := transfer.OpenStore(dir, store.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -72,10 +72,10 @@ func TestTrustCommands(t *testing.T) {
 	_, kj, _ := bale(t, "key", "--store", tablet, "--json")
 	var k struct{ Fingerprint string }
 	json.Unmarshal([]byte(kj), &k)
-	if code, out, e := bale(t, "trust", "add", pub, "--name", "tablet north", "--store", lab); code != 0 || !strings.Contains(out, "public key file") {
+	if code, out, e := bale(t, "trust", "add", pub, "--name", "tablet north", "--yes", "--store", lab); code != 0 || !strings.Contains(out, "public key file") {
 		t.Fatalf("trust add FILE: %d %q %q", code, out, e)
 	}
-	if code, _, e := bale(t, "trust", "add", k.Fingerprint, "--name", "again", "--store", lab); code != 1 || !strings.Contains(e, "already trusted") {
+	if code, _, e := bale(t, "trust", "add", k.Fingerprint, "--name", "again", "--yes", "--store", lab); code != 1 || !strings.Contains(e, "already trusted") {
 		t.Fatalf("trust add twice: %d %q", code, e)
 	}
 	code, out, _ := bale(t, "trust", "list", "--json", "--store", lab)
@@ -83,10 +83,10 @@ func TestTrustCommands(t *testing.T) {
 	if code != 0 || json.Unmarshal([]byte(out), &list) != nil || len(list) != 1 || list[0].Fingerprint != k.Fingerprint {
 		t.Fatalf("trust list --json: %q", out)
 	}
-	if code, _, _ := bale(t, "trust", "add", "not-a-fingerprint", "--name", "x", "--store", lab); code != 1 {
-		t.Fatalf("bad fingerprint: status %d, want 1", code)
+	if code, _, _ := bale(t, "trust", "add", "not-a-fingerprint", "--name", "x", "--yes", "--store", lab); code != 2 {
+		t.Fatalf("bad fingerprint: status %d, want 2 (a wrong argument)", code)
 	}
-	if code, _, _ := bale(t, "trust", "add", k.Fingerprint, "--store", lab); code != 2 {
+	if code, _, _ := bale(t, "trust", "add", k.Fingerprint, "--yes", "--store", lab); code != 2 {
 		t.Fatalf("missing --name: status %d, want 2", code)
 	}
 	if code, out, _ := bale(t, "trust", "remove", "tablet north", "--store", lab); code != 0 || !strings.Contains(out, "no longer trusted") {
@@ -95,7 +95,7 @@ func TestTrustCommands(t *testing.T) {
 	if code, out, _ := bale(t, "trust", "list", "--store", lab); code != 0 || !strings.Contains(out, "no trusted keys") {
 		t.Fatalf("empty list: %q", out)
 	}
-	if code, _, e := bale(t, "trust", "add", k.Fingerprint, "--name", "me", "--store", tablet); code != 1 || !strings.Contains(e, "own key") {
+	if code, _, e := bale(t, "trust", "add", k.Fingerprint, "--name", "me", "--yes", "--store", tablet); code != 1 || !strings.Contains(e, "own key") {
 		t.Fatalf("trusting own key: %d %q", code, e)
 	}
 }
@@ -119,7 +119,7 @@ func TestExportImportInspectCommands(t *testing.T) {
 	if code != 1 || !strings.Contains(out, "not trusted") || !strings.Contains(out, "bale trust add "+file) {
 		t.Fatalf("untrusted import: %d %q %q", code, out, e)
 	}
-	if code, _, e := bale(t, "trust", "add", file, "--name", "tablet north", "--store", lab); code != 0 {
+	if code, _, e := bale(t, "trust", "add", file, "--name", "tablet north", "--yes", "--store", lab); code != 0 {
 		t.Fatalf("trust add BUNDLE: %q", e)
 	}
 	code, out, _ = bale(t, "import", file, "--store", lab)

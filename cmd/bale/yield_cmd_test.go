@@ -142,8 +142,9 @@ func TestYieldBadInput(t *testing.T) {
 		{[]string{"yield", demoPulls, "--bale-kg", "548", "--glycol-ratio", "-1"}, 1, "glycol ratio must be above 0"},
 		{[]string{"yield", demoPulls, "--bale-kg", "548", "--glycol", "butanol"}, 1, "not a known glycol"},
 		{[]string{"yield", demoPulls, "--bale-kg", "548", "--conversion", "1.5"}, 1, "conversion"},
-		{[]string{"yield", demoPulls, "--bale-kg", "548", "--strip-eg", "NaN"}, 1, "EG stripping share is not a number"},
-		{[]string{"yield", demoPulls, "--bale-kg", "NaN"}, 1, "--bale-kg"},
+		// NaN is not a plain decimal: refused as the flag is read (usage).
+		{[]string{"yield", demoPulls, "--bale-kg", "548", "--strip-eg", "NaN"}, 2, `for flag -strip-eg: "NaN": give a share`},
+		{[]string{"yield", demoPulls, "--bale-kg", "NaN"}, 2, "-bale-kg: give a plain decimal"},
 		{[]string{"yield", demoPulls, "--bale-kg", "20"}, 1, "below the"},
 		{[]string{"yield", demoPulls, "--bale-kg", "548", "--line", halfValid}, 1, "stage 2 (sink_float): efficiency"},
 		{[]string{"yield", demoPulls, "--bale-kg", "548", "--line", "../../yield/testdata/line-not-closed.json"}, 1, "does not close"},

@@ -1,10 +1,10 @@
 package main
 
 import (
+	"baleassay/assess"
 	"flag"
 	"fmt"
 	"io"
-	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -88,20 +88,20 @@ func (f *shareFlag) String() string {
 		return ""
 	}
 	if f.p.Varies() {
-		return fmt.Sprintf("%g:%g", f.p.Lo, f.p.Hi)
+		return fmt.Sprintf("%s:%s", assess.Plain(f.p.Lo), assess.Plain(f.p.Hi))
 	}
 	return fmt.Sprint(f.p.Lo)
 }
 
 func (f *shareFlag) Set(s string) error {
 	lo, hi, isRange := strings.Cut(s, ":")
-	a, err := strconv.ParseFloat(strings.TrimSpace(lo), 64)
+	a, err := assess.ParseDecimal(strings.TrimSpace(lo))
 	if err != nil {
 		return fmt.Errorf("%q: give a share like 0.95, or a range like 0.9:0.98", s)
 	}
 	b := a
 	if isRange {
-		if b, err = strconv.ParseFloat(strings.TrimSpace(hi), 64); err != nil {
+		if b, err = assess.ParseDecimal(strings.TrimSpace(hi)); err != nil {
 			return fmt.Errorf("%q: give a range as LOW:HIGH, like 0.9:0.98", s)
 		}
 	}

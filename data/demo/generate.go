@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"baleassay/data/record"
+	"baleassay/data/transfer"
 )
 
 // A generated season: an invented region of pickup sites graded by
@@ -89,10 +90,9 @@ type GenDevice struct {
 	seed [32]byte // of its signing key
 }
 
-// KeySeed is the 32-byte seed of the device's Ed25519 signing key (RFC
-// 8032 §5.1.5), derived from the season's seed.
-func (d GenDevice) KeySeed() []byte { return d.seed[:] }
-
+// genDevices names the season's devices and derives each one's signing
+// key from the season's seed and its id from the key, as every device's
+// id is (transfer.DeviceIDOf).
 func genDevices(o GenOptions) []GenDevice {
 	out := make([]GenDevice, o.Devices)
 	for i := range out {
@@ -100,11 +100,19 @@ func genDevices(o GenOptions) []GenDevice {
 		if i > 0 {
 			name = fmt.Sprintf("tablet-%02d", i)
 		}
-		id := sha256.Sum256(fmt.Appendf(nil, "baleassay generated season %d device %s", o.Seed, name))
 		out[i] = GenDevice{Name: name, seed: sha256.Sum256(fmt.Appendf(nil, "baleassay generated season %d key %s", o.Seed, name))}
-		copy(out[i].ID[:], id[:])
+		out[i].ID = out[i].Key().DeviceID()
 	}
 	return out
+}
+
+// Key is the device's signing key.
+func (d GenDevice) Key() *transfer.DeviceKey {
+	k, err := transfer.NewDeviceKeyFromSeed(d.seed[:])
+	if err != nil {
+		panic(err) // a 32-byte seed always makes a key
+	}
+	return k
 }
 
 // genEvent is one event of the season with its author and time.

@@ -79,10 +79,7 @@ func GenerateBundles(dir string, o GenOptions) (GenSummary, error) {
 	devs := genDevices(o)
 	boxes := make([]*outbox, len(devs))
 	for i, d := range devs {
-		k, err := transfer.NewDeviceKeyFromSeed(d.KeySeed())
-		if err != nil {
-			return GenSummary{}, err
-		}
+		k := d.Key()
 		if err := os.WriteFile(filepath.Join(dir, KeysDir, d.Name+".pem"), k.PublicPEM(), 0o644); err != nil {
 			return GenSummary{}, err
 		}
@@ -99,7 +96,7 @@ func GenerateBundles(dir string, o GenOptions) (GenSummary, error) {
 		arrival++
 		stamp := b.at.Add(10 * time.Minute)
 		h := transfer.BundleHeader{Device: devs[i].ID, Seq: b.seq, Prev: b.prev, WallMs: stamp.UnixMilli(), Part: 1, Parts: 1}
-		raw, err := transfer.SealBundle(b.key, h, b.raws)
+		raw, err := transfer.SealBundle(b.key, h, b.raws, nil) // a device's own events: SealBundle proves them
 		if err != nil {
 			return err
 		}

@@ -20,7 +20,7 @@ func TestDemoScenario(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if sum.Sites != 12 || sum.Bales < 100 || sum.Pulls < 4*sum.Bales || sum.Events != sum.Sites+sum.Bales+sum.Pulls+4 {
+	if sum.Sites != 12 || sum.Bales < 100 || sum.Pulls < 4*sum.Bales || sum.Measured < 5 || sum.Events != sum.Sites+sum.Bales+sum.Pulls+sum.Measured+4 {
 		t.Fatalf("summary %+v", sum)
 	}
 	if demo, _ := s.IsDemo(); !demo {

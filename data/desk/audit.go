@@ -3,7 +3,6 @@ package desk
 import (
 	"errors"
 	"fmt"
-	"sort"
 	"time"
 
 	"baleassay/assess"
@@ -148,34 +147,11 @@ func (d *Desk) summarize(b record.BaleRecord, pulls []store.PullView) AuditSumma
 	return sum
 }
 
-// auditOf builds the audit of a bale from its pulls. Pulls that share a
-// label (added on two devices at once) are kept apart by their ids and
-// named in clash: the audit is never dropped.
+// auditOf builds the audit of a bale from its pulls; pulls that share a
+// label are kept apart and named in clash (store.AuditInput, which
+// publish uses too).
 func auditOf(b record.BaleRecord, pulls []store.PullView) (assess.Audit, []string, error) {
-	a := assess.Audit{BaleKg: b.GrossKg}
-	count := map[string]int{}
-	for _, p := range pulls {
-		count[p.Pull.Label]++
-	}
-	var clash []string
-	for l, n := range count {
-		if n > 1 {
-			clash = append(clash, l)
-		}
-	}
-	sort.Strings(clash)
-	for _, p := range pulls {
-		ap, err := record.AssessPull(p.Pull)
-		if err != nil {
-			return a, clash, err
-		}
-		if count[p.Pull.Label] > 1 {
-			s := p.ID.String()
-			ap.Label = fmt.Sprintf("%s (%s)", p.Pull.Label, s[len(s)-8:])
-		}
-		a.Pulls = append(a.Pulls, ap)
-	}
-	return a, clash, nil
+	return store.AuditInput(b, pulls)
 }
 
 // LoadSpec finds a spec by name (a stored spec wins over a built-in one of
@@ -243,11 +219,10 @@ func (d *Desk) AuditBale(text string, opt AuditOptions) (Audit, error) {
 // AuditPulls assesses pulls read from a file; baleKg 0 means the bale's
 // mass is not known. It may be called on a nil *Desk (no store open).
 func (d *Desk) AuditPulls(pulls []assess.Pull, baleKg float64, opt AuditOptions) (Audit, error) {
-	a := assess.Audit{Pulls: pulls, BaleKg: baleKg}
-	if s := a.SampledKg(); baleKg > 0 && baleKg < s*(1-1e-9) {
-		return Audit{}, fmt.Errorf("%w: the bale's %s kg is less than the %s kg sampled; check the bale's mass or the pull masses", ErrUsage, Num(baleKg, 3), Num(s, 3))
+	if err := checkBaleKg(pulls, baleKg, false); err != nil {
+		return Audit{}, err
 	}
-	return d.audit(a, opt)
+	return d.audit(assess.Audit{Pulls: pulls, BaleKg: baleKg}, opt)
 }
 
 func (d *Desk) audit(a assess.Audit, opt AuditOptions) (Audit, error) {

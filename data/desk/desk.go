@@ -89,6 +89,10 @@ type Options struct {
 	Create bool
 	// Now is the wall clock (time.Now when nil); tests fix it.
 	Now func() time.Time
+	// Wait is how long to wait for another process to release the store
+	// (store.OpenTimeout when 0); short commands such as trust changes
+	// wait longer rather than fail.
+	Wait time.Duration
 }
 
 // Desk is an open records store with the use cases of both front ends.
@@ -101,6 +105,8 @@ type Desk struct {
 	now  func() time.Time
 	tmu  sync.Mutex // guards the trust list file
 	demo bool
+	// created: Open made the store and its key.
+	created bool
 }
 
 // Open opens the store at loc.
@@ -109,17 +115,25 @@ func Open(loc Location, opt Options) (*Desk, error) {
 	if err != nil {
 		return nil, err
 	}
-	if !opt.Create {
-		if _, err := os.Stat(filepath.Join(dir, store.DBFile)); errors.Is(err, os.ErrNotExist) {
-			return nil, &NoStoreError{Dir: dir, Demo: loc.Demo}
-		}
+	_, statErr := os.Stat(filepath.Join(dir, store.DBFile))
+	if !opt.Create && errors.Is(statErr, os.ErrNotExist) {
+		return nil, &NoStoreError{Dir: dir, Demo: loc.Demo}
 	}
 	if opt.Now == nil {
 		opt.Now = time.Now
 	}
 	// Read-only until the first write (store.Options.ReadFirst): reading
 	// commands never take the write lock, and work on read-only media.
-	s, err := store.OpenWith(dir, store.Options{Now: opt.Now, ReadFirst: true})
+	so := store.Options{Now: opt.Now, Timeout: opt.Wait, ReadFirst: true}
+	var s *store.Store
+	created := errors.Is(statErr, os.ErrNotExist)
+	if created {
+		// A new store takes its device id from the signing key made
+		// with it, so that every record it saves can be proven.
+		s, _, err = transfer.OpenStore(dir, so)
+	} else {
+		s, err = store.OpenWith(dir, so)
+	}
 	if err != nil {
 		if errors.Is(err, store.ErrStoreInUse) {
 			return nil, err
@@ -131,8 +145,11 @@ func Open(loc Location, opt Options) (*Desk, error) {
 		s.Close()
 		return nil, err
 	}
-	return &Desk{st: s, loc: Location{Dir: dir, Demo: loc.Demo}, now: opt.Now, demo: demo}, nil
+	return &Desk{st: s, loc: Location{Dir: dir, Demo: loc.Demo}, now: opt.Now, demo: demo, created: created}, nil
 }
+
+// Created reports whether Open made the store (and its signing key).
+func (d *Desk) Created() bool { return d.created }
 
 // Close releases the store.
 func (d *Desk) Close() error { return d.st.Close() }

@@ -48,15 +48,41 @@
 //	hazards   HazardNotice: what to show when saved pulls hold a hazard
 //	summaries SummarizeRegion, SummarizeSite, SummarizeSites: shares across
 //	          bales, bales with hazards, with labels used twice, not assessed
+//	value     LoadPrices (a price sheet file, or the illustrative built-in
+//	          one), ValuePulls, ValueBale, ValueSite (every Monte Carlo draw
+//	          priced per tonne of bale, P10/P50/P90 on both routes),
+//	          ValueBales, ValueColumns and ValueCells (the value columns of
+//	          a bale export)
+//	measured  AddMeasured (a batch's flake, moisture, streams and reactor
+//	          figures, checked against the bales and the line), Measured,
+//	          RemoveMeasured
+//	calibrate Calibrate (every measured batch predicted with its line,
+//	          agreement per line and per site, proposed line ranges),
+//	          SaveCalibratedLine (a new version of the line)
 //	settings  Settings, Setting, SaveSetting (checked by the same reader the
 //	          audit or the yield uses; the name inside must match)
-//	transfer  Trust, TrustAdd (fingerprint, PEM or bundle), TrustRemove,
-//	          Import (demo records refused unless ImportOptions.AllowDemo)
+//	transfer  Key (this device's id and fingerprint), WritePublicKey;
+//	          TrustedKeys, CandidateOf + TrustKey (a key shown and
+//	          confirmed before it is trusted), TrustAdd (fingerprint, PEM or
+//	          bundle), TrustRemove; ExportBundles; BundleFiles, Import (demo
+//	          records refused unless ImportOptions.AllowDemo); Inspect (a
+//	          bundle as an import into a store would judge it, without
+//	          importing: signer and trust, signature, body, authorship,
+//	          every event decoded and validated, demo records; the payload
+//	          plain and with the field names of bundle.cddl)
 //	demo      MakeDemo (refuses a folder of real records; replaces a demo
 //	          store only with Force)
+//	lab       ImportPaths (folders of bundles: a summary per device, gaps,
+//	          every refusal); ReportBale, ReportSites (what data/report
+//	          renders as HTML); ExportCSV (bales, pulls, sites), ExportGeoJSON;
+//	          WriteFile (synced, never over an existing file unless forced)
 //	files     ReadPulls: the pulls CSV from any reader (stdin too), BOM accepted,
 //	          UTF-16, semicolons and decimal commas refused with the fix, "did
-//	          you mean" for keys, kg or lb, optional weighed and taken columns
+//	          you mean" for keys, kg or lb, optional total_count (pieces
+//	          examined), weighed and taken columns; ReadPullsFile and
+//	          AuditPullsOf: pulls for an audit without a store, held to the
+//	          bounds of a save (record.ValidatePullValues), and the bale mass
+//	          beside them too (ErrBaleMass)
 //
 // AuditPulls, LoadSpec, Plan and YieldPulls may be called on a nil *Desk
 // when no store is open: they then know the built-in specs, lines and
@@ -67,11 +93,13 @@
 // Results are plain structs of typed values; states are enums with
 // String() (AuditState, Refusal, Concern, Step, SettingKind, QueryKind,
 // Unit, Caution, FingerprintSource; assess.Verdict, assess.Bound,
-// assess.Method from the audit). Nothing needs a string compared.
+// assess.Method from the audit; yield.Route, yield.ObsKind,
+// yield.CoverageVerdict and record.Method from value and calibration).
+// Nothing needs a string compared.
 //
 // Errors wrap a sentinel of this package (ErrNotFound, ErrAmbiguous,
 // ErrWrongKind, ErrDeleted, ErrRefused, ErrNeedsConfirm, ErrNoPulls,
-// ErrUsage, ErrNoStore, ErrBadPulls, ...) or of the records; use errors.Is
+// ErrUsage, ErrNoStore, ErrBadPulls, ErrBaleMass, ErrExists, ...) or of the records; use errors.Is
 // and errors.As. Their texts speak to the user: no package prefixes,
 // plural forms right, numbers without exponents (Num, Plural help a front
 // end do the same). A save the checks find implausible returns a

@@ -127,10 +127,15 @@ const (
 	ConcernReceivedFuture                    // a bale received in the future
 	ConcernReceivedOld                       // a bale received before 1990
 	ConcernSiteHasBales                      // removing a site that still has bales
+	ConcernFlakeShare                        // a measured batch's flake is an implausible share of its bales
+	ConcernMeasuredTwice                     // a bale already in another measured batch
+	ConcernNotAudited                        // a measured batch holds a bale without pulls: it cannot be predicted
+	ConcernRanFuture                         // a measured batch dated in the future
 	concernEnd
 )
 
-var concernNames = [...]string{"", "null_island", "dense_bale", "light_bale", "future_clock", "site_nearby", "site_same_name", "received_future", "received_old", "site_has_bales"}
+var concernNames = [...]string{"", "null_island", "dense_bale", "light_bale", "future_clock", "site_nearby", "site_same_name", "received_future", "received_old", "site_has_bales",
+	"flake_share", "measured_twice", "not_audited", "ran_future"}
 
 func (c Concern) String() string {
 	if c > 0 && c < concernEnd {

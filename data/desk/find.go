@@ -132,6 +132,8 @@ func (d *Desk) candidate(id record.EntityID) Candidate {
 			c.Label = cur.Pull.Label
 		case cur.Setting != nil:
 			c.Label = cur.Setting.Name
+		case cur.Measured != nil:
+			c.Label = "measured " + TimeText(cur.Measured.RanMs)
 		}
 	}
 	return c

@@ -8,6 +8,7 @@ import (
 
 	"baleassay/data/demo"
 	"baleassay/data/store"
+	"baleassay/data/transfer"
 )
 
 // GenerateOptions choose a generated season (demo.GenOptions: size,
@@ -44,11 +45,19 @@ func Generate(o GenerateOptions) (demo.GenSummary, error) {
 	if err := clearDemoFolder(o.Dir, o.Force); err != nil {
 		return demo.GenSummary{}, err
 	}
-	s, err := store.Open(o.Dir)
+	s, _, err := transfer.OpenStore(o.Dir, store.Options{})
 	if err != nil {
 		return demo.GenSummary{}, err
 	}
 	sum, err := demo.GenerateStore(s, g)
+	// The invented devices sign their records, so the store can export
+	// them like any relayed records (as MakeDemo does).
+	for _, d := range sum.Devices {
+		if err != nil {
+			break
+		}
+		_, err = transfer.ProveStoredEvents(s, d.Key())
+	}
 	if cerr := s.Close(); err == nil {
 		err = cerr
 	}

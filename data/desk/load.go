@@ -126,24 +126,14 @@ func (d *Desk) AuditLoad(ctx context.Context, bales []LoadBaleInput, opt LoadOpt
 // loadBale reads one audited bale.
 func (d *Desk) loadBale(in LoadBaleInput) (assess.LoadBale, error) {
 	if in.File != "" {
-		f, err := os.Open(in.File)
-		if err != nil {
-			return assess.LoadBale{}, fmt.Errorf("%w: cannot read %s (%v); check the path", ErrUsage, in.File, err)
-		}
-		defer f.Close()
-		recs, err := ReadPulls(f, in.File, 0)
+		pulls, err := ReadPullsFile(in.File, 0)
 		if err != nil {
 			return assess.LoadBale{}, err
 		}
-		a := assess.Audit{BaleKg: in.Kg}
-		for _, r := range recs {
-			p, err := record.AssessPull(r)
-			if err != nil {
-				return assess.LoadBale{}, fmt.Errorf("%s: %w", in.File, err)
-			}
-			a.Pulls = append(a.Pulls, p)
+		if err := checkBaleKg(pulls, in.Kg, true); err != nil {
+			return assess.LoadBale{}, fmt.Errorf("%s: %w", in.File, err)
 		}
-		return assess.LoadBale{Label: in.File, Audit: a}, nil
+		return assess.LoadBale{Label: in.File, Audit: assess.Audit{Pulls: pulls, BaleKg: in.Kg}}, nil
 	}
 	if d == nil {
 		return assess.LoadBale{}, fmt.Errorf("%w: %q is not a pulls file; for a stored bale open a store, for a file give FILE:KG", ErrUsage, in.Text)

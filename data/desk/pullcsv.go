@@ -58,16 +58,21 @@ const (
 // maxPullsFile bounds what ReadPulls reads.
 const maxPullsFile = 16 << 20
 
-// PullsError refuses a pulls file with the exact fix.
+// PullsError refuses a pulls file with the exact fix, located as
+// file:line:column (as assess.InputError is).
 type PullsError struct {
-	Name string
-	Line int // 0 when about the whole file
-	Msg  string
+	Name   string
+	Line   int // 0 when about the whole file
+	Column int // byte column, 1-based; 0 when about the whole line
+	Msg    string
 }
 
 func (e *PullsError) Error() string {
-	if e.Line > 0 {
-		return fmt.Sprintf("%s, line %d: %s", e.Name, e.Line, e.Msg)
+	switch {
+	case e.Line > 0 && e.Column > 0:
+		return fmt.Sprintf("%s:%d:%d: %s", e.Name, e.Line, e.Column, e.Msg)
+	case e.Line > 0:
+		return fmt.Sprintf("%s:%d: %s", e.Name, e.Line, e.Msg)
 	}
 	return e.Name + ": " + e.Msg
 }
@@ -83,7 +88,8 @@ var (
 )
 
 // ReadPulls reads the pulls CSV (see README): a header "pull", category
-// keys (masses) and "<key>_count" columns, optionally "weighed" (the
+// keys (masses) and "<key>_count" columns, optionally "total_count" (the
+// pieces examined in the pull, all categories together), "weighed" (the
 // pull's mass before sorting) and "taken". Lines starting with # are
 // comments; "# unit: lb" declares the unit (unit, when not 0, must agree
 // with it). A UTF-8 byte-order mark is accepted; UTF-16 text, semicolon
@@ -105,6 +111,7 @@ func ReadPulls(r io.Reader, name string, unit Unit) ([]record.PullRecord, error)
 	lines := strings.Split(strings.ReplaceAll(string(raw), "\r\n", "\n"), "\n")
 	fileUnit := Unit(0)
 	header, hline := []string(nil), 0
+	var hcols []int // byte column of each header field in its line
 	for i, l := range lines {
 		t := strings.TrimSpace(l)
 		if m := unitLine.FindStringSubmatch(t); m != nil {
@@ -121,7 +128,7 @@ func ReadPulls(r io.Reader, name string, unit Unit) ([]record.PullRecord, error)
 		if strings.Count(t, ";") > 0 && !strings.Contains(t, ",") {
 			return nil, &PullsError{Name: name, Line: i + 1, Msg: "fields are separated by semicolons: save the file with commas between fields (a spreadsheet in a decimal-comma language writes semicolons; choose comma-separated CSV)"}
 		}
-		header, err = csvFields(t)
+		header, hcols, err = csvFields(strings.TrimRight(l, " \t"))
 		if err != nil {
 			return nil, &PullsError{Name: name, Line: i + 1, Msg: err.Error()}
 		}
@@ -150,7 +157,7 @@ func ReadPulls(r io.Reader, name string, unit Unit) ([]record.PullRecord, error)
 		default:
 			if j > 0 {
 				if err := checkKey(k); err != nil {
-					return nil, &PullsError{Name: name, Line: hline, Msg: err.Error()}
+					return nil, &PullsError{Name: name, Line: hline, Column: hcols[j], Msg: err.Error()}
 				}
 			}
 			keep = append(keep, j)
@@ -178,13 +185,13 @@ func ReadPulls(r io.Reader, name string, unit Unit) ([]record.PullRecord, error)
 			clean.WriteString("\n")
 			continue
 		}
-		f, err := csvFields(t)
+		f, cols, err := csvFields(strings.TrimRight(l, " \t"))
 		if err != nil {
 			return nil, &PullsError{Name: name, Line: i + 1, Msg: err.Error()}
 		}
-		for _, c := range f[min(1, len(f)):] {
-			if decimalComma.MatchString(c) {
-				return nil, &PullsError{Name: name, Line: i + 1, Msg: fmt.Sprintf("%q has a decimal comma: write %s", c, strings.Replace(strings.TrimSpace(c), ",", ".", 1))}
+		for j := 1; j < len(f); j++ {
+			if c := f[j]; decimalComma.MatchString(c) {
+				return nil, &PullsError{Name: name, Line: i + 1, Column: cols[j], Msg: fmt.Sprintf("%q has a decimal comma: write %s", c, strings.Replace(strings.TrimSpace(c), ",", ".", 1))}
 			}
 		}
 		if len(f) > len(header) {
@@ -192,16 +199,16 @@ func ReadPulls(r io.Reader, name string, unit Unit) ([]record.PullRecord, error)
 		}
 		var x extra
 		if weighedCol >= 0 && weighedCol < len(f) && strings.TrimSpace(f[weighedCol]) != "" {
-			w, err := strconv.ParseFloat(strings.TrimSpace(f[weighedCol]), 64)
+			w, err := assess.ParseDecimal(strings.TrimSpace(f[weighedCol]))
 			if err != nil {
-				return nil, &PullsError{Name: name, Line: i + 1, Msg: fmt.Sprintf("weighed mass %q is not a number", f[weighedCol])}
+				return nil, &PullsError{Name: name, Line: i + 1, Column: cols[weighedCol], Msg: fmt.Sprintf("weighed mass %q is not a plain decimal number", f[weighedCol])}
 			}
 			x.weighed = w
 		}
 		if takenCol >= 0 && takenCol < len(f) && strings.TrimSpace(f[takenCol]) != "" {
 			tm, err := parseTaken(strings.TrimSpace(f[takenCol]))
 			if err != nil {
-				return nil, &PullsError{Name: name, Line: i + 1, Msg: err.Error()}
+				return nil, &PullsError{Name: name, Line: i + 1, Column: cols[takenCol], Msg: err.Error()}
 			}
 			x.taken = tm.UnixMilli()
 		}
@@ -229,9 +236,10 @@ func ReadPulls(r io.Reader, name string, unit Unit) ([]record.PullRecord, error)
 }
 
 // RecordOfPull converts a pull of the audit model to a record: categories
-// with mass above 0 (times factor), and the counted categories.
+// with mass above 0 (times factor), the counted categories and the pieces
+// examined.
 func RecordOfPull(p assess.Pull, factor float64) record.PullRecord {
-	r := record.PullRecord{Label: p.Label, Kg: map[string]float64{}}
+	r := record.PullRecord{Label: p.Label, Kg: map[string]float64{}, TotalPieces: int64(p.TotalPieces)}
 	for i, m := range p.Kg {
 		if m != 0 {
 			r.Kg[assess.CategoryAt(i).Key] = m * factor
@@ -248,15 +256,22 @@ func RecordOfPull(p assess.Pull, factor float64) record.PullRecord {
 	return r
 }
 
-func csvFields(line string) ([]string, error) {
+// csvFields reads one CSV line (surrounding spaces ignored) and the byte
+// column of each field in it, 1-based.
+func csvFields(line string) ([]string, []int, error) {
 	r := csv.NewReader(strings.NewReader(line))
 	r.FieldsPerRecord = -1
 	r.LazyQuotes = false
+	r.TrimLeadingSpace = true
 	f, err := r.Read()
 	if err != nil {
-		return nil, fmt.Errorf("not CSV: %v", err)
+		return nil, nil, fmt.Errorf("not CSV: %v", err)
 	}
-	return f, nil
+	cols := make([]int, len(f))
+	for j := range f {
+		_, cols[j] = r.FieldPos(j)
+	}
+	return f, cols, nil
 }
 
 func writeCSV(b *strings.Builder, f []string) {
@@ -278,7 +293,7 @@ func pick(f []string, idx []int) []string {
 // looksLikePull reports whether a commented line has the header's field
 // count and numbers (or nothing) after the label.
 func looksLikePull(line string, fields int) bool {
-	f, err := csvFields(strings.TrimSpace(line))
+	f, _, err := csvFields(line)
 	if err != nil || len(f) != fields || fields < 2 || strings.TrimSpace(f[0]) == "" {
 		return false
 	}
@@ -313,6 +328,12 @@ var aliases = map[string]string{"aluminum": "aluminium", "color": "colour", "pet
 // checkKey refuses a header key that is not a category key (or its
 // _count column), with "did you mean".
 func checkKey(k string) error {
+	if k == assess.TotalCountColumn {
+		return nil
+	}
+	if totalAliases[k] {
+		return fmt.Errorf("unknown column %q: did you mean %q (the pieces examined in the pull, all categories together)?", k, assess.TotalCountColumn)
+	}
 	base := strings.TrimSuffix(k, "_count")
 	if _, ok := assess.CategoryIndex(base); ok {
 		return nil
@@ -329,8 +350,14 @@ func checkKey(k string) error {
 	if best != "" {
 		return fmt.Errorf("unknown column %q: did you mean %q? (the keys are listed by bale categories)", k, strings.Replace(k, base, best, 1))
 	}
-	return fmt.Errorf("unknown column %q: the first column is pull, then category keys (bale categories lists them), %s and %s", k, ColWeighed, ColTaken)
+	if editDistance(k, assess.TotalCountColumn) < 3 {
+		return fmt.Errorf("unknown column %q: did you mean %q?", k, assess.TotalCountColumn)
+	}
+	return fmt.Errorf("unknown column %q: the first column is pull, then category keys (bale categories lists them), %s, %s and %s", k, assess.TotalCountColumn, ColWeighed, ColTaken)
 }
+
+// totalAliases are headers users type for the pieces examined.
+var totalAliases = map[string]bool{"total": true, "pieces": true, "total_pieces": true, "pieces_examined": true, "pieces_total": true, "count": true}
 
 // editDistance is the Levenshtein distance of two short strings.
 func editDistance(a, b string) int {

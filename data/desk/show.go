@@ -12,7 +12,7 @@ import (
 // Detail is one record with its current values and whole history.
 type Detail struct {
 	State   record.EntityState
-	History []record.Stamped // oldest first
+	History []record.Stamped // every event after those it supersedes, then oldest first (record.SortHistory)
 	// For a bale: its pulls and its audit summary.
 	Pulls []PullRow
 	Audit *AuditSummary
@@ -53,6 +53,9 @@ func (d *Desk) Show(text string) (Detail, error) {
 	if err != nil {
 		return Detail{}, err
 	}
+	// Supersession first, then the clock: an edit made on a device whose
+	// clock was behind still shows after what it replaced.
+	record.SortHistory(hist)
 	out := Detail{State: st, History: hist}
 	if cur, ok := st.Current(); ok && cur.Bale != nil {
 		_, out.Pulls, err = d.Pulls(st.ID.String())
@@ -174,9 +177,14 @@ func Describe(e record.Event) string {
 		if p.StatedKg > 0 {
 			t += fmt.Sprintf(" of %s kg weighed", Num(p.StatedKg, 3))
 		}
+		if p.TotalPieces > 0 {
+			t += ", " + Plural(int(p.TotalPieces), "piece", "pieces") + " examined"
+		}
 		return t + ": " + strings.Join(parts, ", ")
 	case e.Setting != nil:
 		return fmt.Sprintf("%s %q (%d bytes of JSON)", settingKindOf(e.Setting.Kind), e.Setting.Name, len(e.Setting.Body))
+	case e.Measured != nil:
+		return DescribeMeasured(*e.Measured)
 	}
 	return "(empty)"
 }

@@ -15,12 +15,12 @@ import (
 func (d *Desk) Trust() (*transfer.TrustList, transfer.TrustFunc, error) {
 	d.tmu.Lock()
 	defer d.tmu.Unlock()
-	return TrustIn(d.st.Dir())
+	return trustIn(d.st.Dir())
 }
 
-// TrustIn reads the trust list of a store folder without opening the
+// trustIn reads the trust list of a store folder without opening the
 // store (inspect reads it alongside a store in use).
-func TrustIn(dir string) (*transfer.TrustList, transfer.TrustFunc, error) {
+func trustIn(dir string) (*transfer.TrustList, transfer.TrustFunc, error) {
 	tl, err := transfer.LoadTrust(dir)
 	if err != nil {
 		return nil, nil, err
@@ -85,40 +85,29 @@ func FingerprintOf(arg string) (transfer.Fingerprint, FingerprintSource, error) 
 // ErrOwnKey refuses to trust this device's own key (always trusted).
 var ErrOwnKey = errors.New("this device's own key")
 
-// TrustAdd trusts the key a fingerprint, PEM or bundle names.
+// TrustAdd trusts the key a fingerprint, PEM or bundle names (see
+// TrustKey; a front end that asks for confirmation uses CandidateOf and
+// TrustKey, so that what is trusted is what was shown).
 func (d *Desk) TrustAdd(arg, name string) (transfer.Fingerprint, FingerprintSource, error) {
 	fp, src, err := FingerprintOf(arg)
 	if err != nil {
 		return fp, src, err
 	}
-	if k, err := transfer.LoadDeviceKey(d.st.Dir()); err == nil && k.Fingerprint() == fp {
-		return fp, src, fmt.Errorf("%w: %s is always trusted and needs no entry", ErrOwnKey, fp)
-	}
-	d.tmu.Lock()
-	defer d.tmu.Unlock()
-	tl, err := transfer.LoadTrust(d.st.Dir())
-	if err != nil {
-		return fp, src, err
-	}
-	if err := tl.Add(name, fp); err != nil {
-		return fp, src, err
-	}
-	return fp, src, tl.Save()
+	return fp, src, d.TrustKey(fp, name)
 }
 
-// TrustRemove stops trusting a key by name or fingerprint.
+// TrustRemove stops trusting a key by name or fingerprint, under the
+// store's lock.
 func (d *Desk) TrustRemove(nameOrFP string) (transfer.TrustEntry, error) {
 	d.tmu.Lock()
 	defer d.tmu.Unlock()
-	tl, err := transfer.LoadTrust(d.st.Dir())
-	if err != nil {
-		return transfer.TrustEntry{}, err
-	}
-	e, err := tl.Remove(nameOrFP)
-	if err != nil {
-		return e, err
-	}
-	return e, tl.Save()
+	var e transfer.TrustEntry
+	err := transfer.UpdateTrust(d.st, func(tl *transfer.TrustList) error {
+		var err error
+		e, err = tl.Remove(nameOrFP)
+		return err
+	})
+	return e, err
 }
 
 // ImportOptions tune Import.

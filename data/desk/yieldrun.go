@@ -183,8 +183,8 @@ func (r YieldRun) CautionText(c Caution) string {
 // Carlo, cancellable through ctx, with progress (may be nil). It may be
 // called on a nil *Desk.
 func (d *Desk) YieldPulls(ctx context.Context, pulls []assess.Pull, baleKg float64, plan yield.Plan, opt YieldOptions, progress func(Progress)) (YieldRun, error) {
-	if s := (assess.Audit{Pulls: pulls}).SampledKg(); baleKg < s*(1-1e-9) {
-		return YieldRun{}, fmt.Errorf("%w: the bale's %s kg is less than the %s kg sampled; check the bale's mass or the pull masses", ErrUsage, Num(baleKg, 3), Num(s, 3))
+	if err := checkBaleKg(pulls, baleKg, true); err != nil {
+		return YieldRun{}, err
 	}
 	var cb func(done, of int)
 	if progress != nil {

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"sync"
 
 	"github.com/dhconnelly/rtreego"
@@ -358,7 +359,7 @@ func (ix *SiteIndex) Within(lat, lon, km float64) ([]Hit, error) {
 		return nil, err
 	}
 	if math.IsNaN(km) || math.IsInf(km, 0) || km < 0 {
-		return nil, fmt.Errorf("%w: radius %g km, want a finite value ≥ 0", ErrBadQuery, km)
+		return nil, fmt.Errorf("%w: radius %s km, want a finite value ≥ 0", ErrBadQuery, strconv.FormatFloat(km, 'f', -1, 64))
 	}
 	ix.mu.RLock()
 	defer ix.mu.RUnlock()
@@ -386,7 +387,7 @@ func (ix *SiteIndex) InBox(south, west, north, east float64) ([]Hit, error) {
 		return nil, err
 	}
 	if south > north {
-		return nil, fmt.Errorf("%w: south %g is north of north %g", ErrBadQuery, south, north)
+		return nil, fmt.Errorf("%w: south %s is north of north %s", ErrBadQuery, strconv.FormatFloat(south, 'f', -1, 64), strconv.FormatFloat(north, 'f', -1, 64))
 	}
 	lo, hi := boxAABB(south, west, north, east)
 	ix.mu.RLock()
@@ -456,4 +457,4 @@ func boxAABB(south, west, north, east float64) (lo, hi [3]float64) {
 }
 
 // ErrBadQuery is the sentinel of a query with invalid arguments.
-var ErrBadQuery = errors.New("data: invalid query")
+var ErrBadQuery = errors.New("invalid query")

@@ -48,7 +48,7 @@ func CheckWorkers(n int) int {
 // failure, and at any index above a failure already found.
 func CheckEvents(raws [][]byte, ids []EventID, now time.Time, workers int) ([]Checked, []EventWarning, error) {
 	if ids != nil && len(ids) != len(raws) {
-		panic("data: checkEvents: ids do not match raws") // a programmer's mistake
+		panic("checkEvents: ids do not match raws") // a programmer's mistake
 	}
 	out := make([]Checked, len(raws))
 	if workers <= 1 || len(raws) < 2 {
@@ -102,7 +102,7 @@ func CheckEvents(raws [][]byte, ids []EventID, now time.Time, workers int) ([]Ch
 // it never leaves checkEvents (that lower failure is returned instead).
 type errStopped struct{}
 
-func (errStopped) Error() string { return "data: check stopped" }
+func (errStopped) Error() string { return "check stopped" }
 
 // checkRun checks raws[i] into out[i] in order; base is the index of
 // raws[0] in the batch. It returns the warnings, and on failure the

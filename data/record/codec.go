@@ -62,7 +62,7 @@ func (e *DecodeError) Unwrap() []error { return []error{ErrDecode, e.Err} }
 func EncodeEvent(e Event) ([]byte, error) {
 	b, err := encMode.Marshal(e)
 	if err != nil {
-		return nil, fmt.Errorf("data: encode event: %w", err)
+		return nil, fmt.Errorf("encode event: %w", err)
 	}
 	return b, nil
 }
@@ -118,7 +118,7 @@ func DecodeTrusted(raw []byte) (Event, error) {
 func EncodePull(p PullRecord) ([]byte, error) {
 	b, err := encMode.Marshal(p)
 	if err != nil {
-		return nil, fmt.Errorf("data: encode pull: %w", err)
+		return nil, fmt.Errorf("encode pull: %w", err)
 	}
 	return b, nil
 }

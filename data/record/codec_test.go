@@ -161,3 +161,51 @@ func FuzzDecodeEvent(f *testing.F) {
 		_, _ = record.ValidateEvent(e)
 	})
 }
+
+// The pieces examined travel as key 7 of the pull (bundle.cddl) and come
+// back as the audit's denominator.
+func TestPullTotalPiecesRoundTrip(t *testing.T) {
+	e := testkit.PullEv(testkit.Ent(3), testkit.Ent(2), testkit.DevA, testkit.T0.UnixMilli(), map[string]float64{"pet_clear": 12, "pvc": 0.2})
+	e.Pull.Pieces = map[string]int64{"pvc": 4}
+	e.Pull.TotalPieces = 380
+	raw := testkit.MustEncode(t, e)
+	got, err := record.DecodeEvent(raw)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Pull.TotalPieces != 380 {
+		t.Fatalf("TotalPieces %d after the round trip, want 380", got.Pull.TotalPieces)
+	}
+	var generic map[int]cbor.RawMessage
+	if err := cbor.Unmarshal(raw, &generic); err != nil {
+		t.Fatal(err)
+	}
+	var pull map[int]cbor.RawMessage
+	if err := cbor.Unmarshal(generic[9], &pull); err != nil {
+		t.Fatal(err)
+	}
+	// Source: RFC 8949 §3.1 — unsigned 380 is 0x19 0x01 0x7c.
+	if !bytes.Equal(pull[7], []byte{0x19, 0x01, 0x7c}) {
+		t.Fatalf("pull key 7 holds % x, want 19 01 7c", []byte(pull[7]))
+	}
+	ap, err := record.AssessPull(*got.Pull)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ap.TotalPieces != 380 {
+		t.Fatalf("the audit's pull has %d pieces examined, want 380", ap.TotalPieces)
+	}
+	// Not counted: the key is left out, so pulls saved before it existed
+	// keep their bytes and their ids.
+	e.Pull.TotalPieces = 0
+	generic, pull = nil, nil
+	if err := cbor.Unmarshal(testkit.MustEncode(t, e), &generic); err != nil {
+		t.Fatal(err)
+	}
+	if err := cbor.Unmarshal(generic[9], &pull); err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := pull[7]; ok {
+		t.Fatal("a pull without a total writes key 7")
+	}
+}

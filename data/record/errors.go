@@ -3,33 +3,34 @@ package record
 import (
 	"errors"
 	"fmt"
-	"strings"
 )
 
 // Sentinel errors. Errors returned by this package wrap one of them; test
 // with errors.Is. Validation errors also wrap ErrInvalid.
 var (
-	ErrInvalid        = errors.New("data: invalid record")
-	ErrDecode         = errors.New("data: malformed event encoding")
-	ErrNotCanonical   = errors.New("data: event bytes are not in deterministic encoding")
-	ErrTooLarge       = errors.New("data: event is too large")
-	ErrVersion        = errors.New("data: unknown event format version")
-	ErrKind           = errors.New("data: unknown entity kind")
-	ErrPayload        = errors.New("data: payload does not match the event kind")
-	ErrMissingID      = errors.New("data: id is missing")
-	ErrLatitude       = errors.New("data: latitude outside -90..90 degrees")
-	ErrLongitude      = errors.New("data: longitude outside -180..180 degrees")
-	ErrNonFinite      = errors.New("data: value is not a finite number")
-	ErrNegative       = errors.New("data: value is negative")
-	ErrNotPositive    = errors.New("data: value must be above zero")
-	ErrPullParts      = errors.New("data: pull parts exceed the stated pull mass")
-	ErrRequired       = errors.New("data: required field is empty")
-	ErrTooLong        = errors.New("data: text is too long")
-	ErrBadSetting     = errors.New("data: setting body is not valid JSON")
-	ErrTombstone      = errors.New("data: a deletion must supersede an event and carry no payload")
-	ErrKindMismatch   = errors.New("data: event kind differs from the entity's kind")
-	ErrUnknownSetting = errors.New("data: unknown setting kind")
-	ErrSettingName    = errors.New("data: a setting's name differs from the name in its document")
+	ErrInvalid        = errors.New("not valid")
+	ErrDecode         = errors.New("malformed event encoding")
+	ErrNotCanonical   = errors.New("event bytes are not in deterministic encoding")
+	ErrTooLarge       = errors.New("event is too large")
+	ErrVersion        = errors.New("unknown event format version")
+	ErrKind           = errors.New("unknown entity kind")
+	ErrPayload        = errors.New("payload does not match the event kind")
+	ErrMissingID      = errors.New("id is missing")
+	ErrLatitude       = errors.New("latitude outside -90..90 degrees")
+	ErrLongitude      = errors.New("longitude outside -180..180 degrees")
+	ErrNonFinite      = errors.New("value is not a finite number")
+	ErrNegative       = errors.New("value is negative")
+	ErrNotPositive    = errors.New("value must be above zero")
+	ErrPullParts      = errors.New("pull parts exceed the stated pull mass")
+	ErrRequired       = errors.New("required field is empty")
+	ErrTooLong        = errors.New("text is too long")
+	ErrBadSetting     = errors.New("setting body is not valid JSON")
+	ErrTombstone      = errors.New("a deletion must supersede an event and carry no payload")
+	ErrKindMismatch   = errors.New("event kind differs from the entity's kind")
+	ErrUnknownSetting = errors.New("unknown setting kind")
+	ErrSettingName    = errors.New("a setting's name differs from the name in its document")
+	ErrOutOfRange     = errors.New("value outside its physical range")
+	ErrControlChar    = errors.New("text holds a control character")
 )
 
 // FieldError is a validation error located at one field of one record.
@@ -40,8 +41,7 @@ type FieldError struct {
 }
 
 func (e *FieldError) Error() string {
-	msg := strings.TrimPrefix(e.Err.Error(), "data: ")
-	msg = strings.TrimPrefix(msg, "assess: ")
+	msg := e.Err.Error()
 	if e.Value != "" {
 		return fmt.Sprintf("%s = %s: %s", e.Field, e.Value, msg)
 	}

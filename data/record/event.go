@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"fmt"
+	"strings"
 )
 
 // FormatVersion is the version of the event encoding written by this code.
@@ -20,7 +21,7 @@ const (
 	KindSetting Kind = 4 // a spec or line profile that travels between devices
 )
 
-var kindNames = map[Kind]string{KindSite: "site", KindBale: "bale", KindPull: "pull", KindSetting: "setting"}
+var kindNames = map[Kind]string{KindSite: "site", KindBale: "bale", KindPull: "pull", KindSetting: "setting", KindMeasured: "measured"}
 
 func (k Kind) String() string {
 	if n, ok := kindNames[k]; ok {
@@ -39,7 +40,7 @@ func ParseKind(s string) (Kind, error) {
 			return k, nil
 		}
 	}
-	return 0, fmt.Errorf("%w %q (want site, bale, pull or setting)", ErrKind, s)
+	return 0, fmt.Errorf("%w %q (want site, bale, pull, setting or measured)", ErrKind, s)
 }
 
 // Event is one immutable change to one entity. Exactly one payload field
@@ -63,6 +64,8 @@ type Event struct {
 	// Demo marks an event of the invented demo scenario, or one saved in
 	// a demo store: a real store refuses to import it unless told to.
 	Demo bool `cbor:"11,keyasint,omitempty"`
+
+	Measured *MeasuredRecord `cbor:"12,keyasint,omitempty"` // KindMeasured (measured.go)
 }
 
 // SiteKind says what kind of place a site is.
@@ -93,7 +96,7 @@ func ParseSiteKind(s string) (SiteKind, error) {
 			return SiteKind(i), nil
 		}
 	}
-	return 0, fmt.Errorf("%w: site kind %q (want one of %v)", ErrInvalid, s, siteKindNames)
+	return 0, fmt.Errorf("site kind %q is %w: give one of %s", s, ErrInvalid, strings.Join(siteKindNames, ", "))
 }
 
 // SiteRecord is a pickup site or supplier. Latitude and longitude are WGS 84
@@ -135,14 +138,27 @@ func (b BaleRecord) DensityKgM3() float64 {
 
 // PullRecord is one grab sample, sorted and weighed. Kg and Pieces are
 // keyed by the category keys of package assess. StatedKg is the pull's
-// mass as weighed before sorting, 0 when not weighed.
+// mass as weighed before sorting, 0 when not weighed. TotalPieces is the
+// number of pieces examined in the pull, all categories together (the
+// denominator of a piece share, assess.Pull.TotalPieces), 0 when not
+// counted.
 type PullRecord struct {
-	Bale     EntityID           `cbor:"1,keyasint"`
-	Label    string             `cbor:"2,keyasint"`
-	TakenMs  int64              `cbor:"3,keyasint,omitempty"`
-	Kg       map[string]float64 `cbor:"4,keyasint"`
-	Pieces   map[string]int64   `cbor:"5,keyasint,omitempty"`
-	StatedKg float64            `cbor:"6,keyasint,omitempty"`
+	Bale        EntityID           `cbor:"1,keyasint"`
+	Label       string             `cbor:"2,keyasint"`
+	TakenMs     int64              `cbor:"3,keyasint,omitempty"`
+	Kg          map[string]float64 `cbor:"4,keyasint"`
+	Pieces      map[string]int64   `cbor:"5,keyasint,omitempty"`
+	StatedKg    float64            `cbor:"6,keyasint,omitempty"`
+	TotalPieces int64              `cbor:"7,keyasint,omitempty"`
+}
+
+// CountedPieces is the sum of the per-category piece counts.
+func (p PullRecord) CountedPieces() int64 {
+	var n int64
+	for _, c := range p.Pieces {
+		n += c
+	}
+	return n
 }
 
 // PartsKg is the sum of the sorted parts.

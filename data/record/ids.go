@@ -25,7 +25,7 @@ type EventID [32]byte
 func NewEntityID() (EntityID, error) {
 	u, err := uuid.NewV7()
 	if err != nil {
-		return EntityID{}, fmt.Errorf("data: new entity id: %w", err)
+		return EntityID{}, fmt.Errorf("new entity id: %w", err)
 	}
 	return EntityID(u), nil
 }
@@ -36,7 +36,7 @@ func NewEntityID() (EntityID, error) {
 func EntityIDAt(ms int64, r io.Reader) (EntityID, error) {
 	var id EntityID
 	if _, err := io.ReadFull(r, id[6:]); err != nil {
-		return id, fmt.Errorf("data: entity id: %w", err)
+		return id, fmt.Errorf("entity id: %w", err)
 	}
 	for i := 0; i < 6; i++ {
 		id[i] = byte(ms >> (40 - 8*i))
@@ -65,7 +65,7 @@ func (id EntityID) IsZero() bool { return id == EntityID{} }
 func NewDeviceID() (DeviceID, error) {
 	var d DeviceID
 	if _, err := rand.Read(d[:]); err != nil {
-		return d, fmt.Errorf("data: new device id: %w", err)
+		return d, fmt.Errorf("new device id: %w", err)
 	}
 	return d, nil
 }

@@ -90,12 +90,12 @@ func ValidateEventAt(e Event, now time.Time) ([]Warning, error) {
 	if !e.Kind.Valid() {
 		return nil, &FieldError{Field: "kind", Value: strconv.Itoa(int(e.Kind)), Err: ErrKind}
 	}
-	if e.Clock.WallMs <= 0 {
-		return nil, &FieldError{Field: "clock", Value: strconv.FormatInt(e.Clock.WallMs, 10), Err: ErrNotPositive}
+	if err := checkTime("clock", e.Clock.WallMs); err != nil {
+		return nil, err
 	}
 	if lim := now.Add(MaxClockAhead).UnixMilli(); e.Clock.WallMs > lim {
 		w = append(w, Warning{WarnFutureClock, "clock", fmt.Sprintf("stamp %s is %s ahead of this device's clock; the author's clock may be wrong",
-			e.Clock.Time().Format(time.RFC3339), time.Duration(e.Clock.WallMs-now.UnixMilli())*time.Millisecond)})
+			e.Clock.Time().Format(time.RFC3339), FormatSkew(e.Clock.WallMs-now.UnixMilli()))})
 	}
 	seen := make(map[EventID]bool, len(e.Supersedes))
 	for i, s := range e.Supersedes {
@@ -108,7 +108,7 @@ func ValidateEventAt(e Event, now time.Time) ([]Warning, error) {
 		seen[s] = true
 	}
 	payloads := 0
-	for _, set := range []bool{e.Site != nil, e.Bale != nil, e.Pull != nil, e.Setting != nil} {
+	for _, set := range []bool{e.Site != nil, e.Bale != nil, e.Pull != nil, e.Setting != nil, e.Measured != nil} {
 		if set {
 			payloads++
 		}
@@ -132,6 +132,8 @@ func ValidateEventAt(e Event, now time.Time) ([]Warning, error) {
 		err = validatePull(*e.Pull)
 	case e.Kind == KindSetting && e.Setting != nil:
 		err = validateSetting(*e.Setting)
+	case e.Kind == KindMeasured && e.Measured != nil:
+		err = validateMeasured(*e.Measured)
 	default:
 		err = &FieldError{Field: "payload", Value: "kind " + e.Kind.String(), Err: ErrPayload}
 	}
@@ -141,7 +143,9 @@ func ValidateEventAt(e Event, now time.Time) ([]Warning, error) {
 	return append(w, ww...), nil
 }
 
-func fnum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+// fnum writes a number for a message: plain decimals, never an
+// exponent (assess.Plain).
+func fnum(x float64) string { return assess.Plain(x) }
 
 // checkFinite returns a FieldError for NaN or ±Inf.
 func checkFinite(field string, x float64) error {
@@ -161,6 +165,10 @@ func checkText(field, s string, max int, required bool) error {
 	}
 	if !utf8.ValidString(s) {
 		return &FieldError{Field: field, Err: fmt.Errorf("%w: not UTF-8", ErrInvalid)}
+	}
+	if r, at, ok := TerminalSafe(s); !ok {
+		return &FieldError{Field: field, Value: fmt.Sprintf("U+%04X at character %d", r, utf8.RuneCountInString(s[:at])+1),
+			Err: fmt.Errorf("%w: names, tags, labels and notes are one line of printable text", ErrControlChar)}
 	}
 	if n := utf8.RuneCountInString(s); n > max {
 		return &FieldError{Field: field, Value: fmt.Sprintf("%d characters", n), Err: fmt.Errorf("%w (at most %d)", ErrTooLong, max)}
@@ -210,14 +218,11 @@ func validateBale(b BaleRecord) ([]Warning, error) {
 	if b.Site.IsZero() {
 		return nil, &FieldError{Field: "bale.site", Err: ErrMissingID}
 	}
-	if b.ReceivedMs <= 0 {
-		return nil, &FieldError{Field: "bale.received", Value: strconv.FormatInt(b.ReceivedMs, 10), Err: ErrNotPositive}
-	}
-	if err := checkFinite("bale.gross_kg", b.GrossKg); err != nil {
+	if err := checkDate("bale.received", b.ReceivedMs); err != nil {
 		return nil, err
 	}
-	if b.GrossKg <= 0 {
-		return nil, &FieldError{Field: "bale.gross_kg", Value: fnum(b.GrossKg), Err: ErrNotPositive}
+	if err := checkKg("bale.gross_kg", b.GrossKg, true, ErrNonFinite, ErrNotPositive); err != nil {
+		return nil, err
 	}
 	dims := []struct {
 		name string
@@ -230,6 +235,9 @@ func validateBale(b BaleRecord) ([]Warning, error) {
 		}
 		if d.v < 0 {
 			return nil, &FieldError{Field: d.name, Value: fnum(d.v), Err: ErrNegative}
+		}
+		if d.v > MaxBaleDimM {
+			return nil, &FieldError{Field: d.name, Value: fnum(d.v), Err: fmt.Errorf("%w: above %s m; give metres, not centimetres", ErrOutOfRange, assess.Plain(MaxBaleDimM))}
 		}
 		if d.v == 0 {
 			zero++
@@ -277,12 +285,28 @@ func assessPull(p PullRecord, kgKeys []string) (assess.Pull, error) {
 	}
 	for _, k := range SortedKeys(p.Pieces) {
 		n := p.Pieces[k]
-		if n < 0 || n > math.MaxInt32 {
+		if n < 0 {
 			return ap, &FieldError{Field: "pull.pieces." + k, Value: strconv.FormatInt(n, 10), Err: assess.ErrNegativeCount}
+		}
+		if n > MaxPieces {
+			return ap, &FieldError{Field: "pull.pieces." + k, Value: strconv.FormatInt(n, 10), Err: fmt.Errorf("%w: above %d pieces", ErrOutOfRange, MaxPieces)}
 		}
 		if err := ap.SetPieces(k, int(n)); err != nil {
 			return ap, &FieldError{Field: "pull.pieces." + k, Err: err}
 		}
+	}
+	if n := p.TotalPieces; n != 0 {
+		v := strconv.FormatInt(n, 10)
+		switch counted := p.CountedPieces(); {
+		case n < 0:
+			return ap, &FieldError{Field: "pull.total_count", Value: v, Err: assess.ErrNegativeCount}
+		case n > MaxPieces:
+			return ap, &FieldError{Field: "pull.total_count", Value: v, Err: fmt.Errorf("%w: above %d pieces", ErrOutOfRange, MaxPieces)}
+		case n < counted:
+			return ap, &FieldError{Field: "pull.total_count", Value: v,
+				Err: fmt.Errorf("%w: the categories count %d; the total counts every piece of the pull", assess.ErrBadTotal, counted)}
+		}
+		ap.TotalPieces = int(n)
 	}
 	return ap, nil
 }
@@ -291,27 +315,41 @@ func validatePull(p PullRecord) error {
 	if p.Bale.IsZero() {
 		return &FieldError{Field: "pull.bale", Err: ErrMissingID}
 	}
+	return ValidatePullValues(p)
+}
+
+// ValidatePullValues holds a pull's own values to the rules of a save:
+// its label and date, known categories, every mass finite, at least 0,
+// each part and their sum at most MaxBaleKg, a total above 0, the piece
+// counts and the pieces examined, the parts against the weighed mass.
+// Everything but the bale it belongs to, so that pulls read from a file
+// for an audit without a store meet the same bounds as stored ones.
+func ValidatePullValues(p PullRecord) error {
 	if err := checkText("pull.label", p.Label, maxNameRunes, true); err != nil {
 		return err
 	}
+	if p.TakenMs != 0 {
+		if err := checkDate("pull.taken", p.TakenMs); err != nil {
+			return err
+		}
+	}
 	kgKeys := SortedKeys(p.Kg) // sorted once: errors name the first bad key in key order
 	for _, k := range kgKeys {
-		x := p.Kg[k]
 		if _, ok := assess.CategoryIndex(k); !ok {
 			return &FieldError{Field: "pull.kg." + k, Err: fmt.Errorf("%w (valid keys: %s)", assess.ErrUnknownCategory, strings.Join(assess.CategoryKeys(), ", "))}
 		}
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return &FieldError{Field: "pull.kg." + k, Value: fnum(x), Err: assess.ErrNonFiniteMass}
-		}
-		if x < 0 {
-			return &FieldError{Field: "pull.kg." + k, Value: fnum(x), Err: assess.ErrNegativeMass}
+		if err := checkKg("pull.kg."+k, p.Kg[k], false, assess.ErrNonFiniteMass, assess.ErrNegativeMass); err != nil {
+			return err
 		}
 	}
-	if err := checkFinite("pull.stated_kg", p.StatedKg); err != nil {
+	// Each part is at most MaxBaleKg, so the sum of at most 24 parts is
+	// finite; the sum itself is held to the same bound.
+	if parts := partsKg(p, kgKeys); parts > MaxBaleKg {
+		return &FieldError{Field: "pull.kg", Value: fmt.Sprintf("parts total %s kg", fnum(parts)),
+			Err: fmt.Errorf("%w: a pull weighs at most %s kg, the most a bale weighs", ErrOutOfRange, assess.Plain(MaxBaleKg))}
+	}
+	if err := checkKg("pull.stated_kg", p.StatedKg, false, ErrNonFinite, ErrNegative); err != nil {
 		return err
-	}
-	if p.StatedKg < 0 {
-		return &FieldError{Field: "pull.stated_kg", Value: fnum(p.StatedKg), Err: ErrNegative}
 	}
 	ap, err := assessPull(p, kgKeys)
 	if err != nil {
@@ -343,6 +381,11 @@ func validateSetting(s SettingRecord) error {
 	}
 	if !json.Valid(s.Body) {
 		return &FieldError{Field: "setting.body", Err: ErrBadSetting}
+	}
+	// A repeated key reads differently in different readers; a control
+	// character in a name or description reaches a terminal later.
+	if err := assess.CheckJSON(s.Body); err != nil {
+		return &FieldError{Field: "setting.body", Err: fmt.Errorf("%w: %w", ErrBadSetting, err)}
 	}
 	// The same readers the audit and the yield use, so that a setting
 	// that would not load is refused on save and on import alike.

@@ -137,14 +137,14 @@ func TestValidateStructure(t *testing.T) {
 		{"no entity", mod(func(e *record.Event) { e.Entity = record.EntityID{} }), record.ErrMissingID},
 		{"no device", mod(func(e *record.Event) { e.Device = record.DeviceID{} }), record.ErrMissingID},
 		{"unknown kind", mod(func(e *record.Event) { e.Kind = 9 }), record.ErrKind},
-		{"zero clock", mod(func(e *record.Event) { e.Clock = record.HLC{} }), record.ErrNotPositive},
+		{"zero clock", mod(func(e *record.Event) { e.Clock = record.HLC{} }), record.ErrOutOfRange},
 		{"payload of another kind", mod(func(e *record.Event) { e.Kind = record.KindBale }), record.ErrPayload},
 		{"two payloads", mod(func(e *record.Event) { e.Bale = &record.BaleRecord{} }), record.ErrPayload},
 		{"tombstone without supersedes", mod(func(e *record.Event) { e.Site, e.Deleted = nil, true }), record.ErrTombstone},
 		{"tombstone with payload", mod(func(e *record.Event) { e.Deleted, e.Supersedes = true, []record.EventID{{1}} }), record.ErrTombstone},
 		{"duplicate supersedes", mod(func(e *record.Event) { e.Supersedes = []record.EventID{{1}, {1}} }), record.ErrInvalid},
 		{"empty name", mod(func(e *record.Event) { e.Site.Name = "  " }), record.ErrRequired},
-		{"bad setting json", record.Event{Version: 1, Entity: testkit.Ent(5), Kind: record.KindSetting, Device: testkit.DevA, Clock: record.HLC{WallMs: 1},
+		{"bad setting json", record.Event{Version: 1, Entity: testkit.Ent(5), Kind: record.KindSetting, Device: testkit.DevA, Clock: record.HLC{WallMs: now.UnixMilli()},
 			Setting: &record.SettingRecord{Kind: record.SettingSpec, Name: "x", Body: []byte("{")}}, record.ErrBadSetting},
 	}
 	for _, c := range cases {
@@ -152,7 +152,7 @@ func TestValidateStructure(t *testing.T) {
 			t.Errorf("%s: err = %v, want %v", c.name, err, c.err)
 		}
 	}
-	tomb := record.Event{Version: 1, Entity: testkit.Ent(1), Kind: record.KindSite, Device: testkit.DevA, Clock: record.HLC{WallMs: 1}, Deleted: true, Supersedes: []record.EventID{{1}}}
+	tomb := record.Event{Version: 1, Entity: testkit.Ent(1), Kind: record.KindSite, Device: testkit.DevA, Clock: record.HLC{WallMs: now.UnixMilli()}, Deleted: true, Supersedes: []record.EventID{{1}}}
 	if _, err := record.ValidateEventAt(tomb, now); err != nil {
 		t.Errorf("valid tombstone refused: %v", err)
 	}
@@ -177,7 +177,7 @@ func TestValidateTextAndSettingBoundaries(t *testing.T) {
 		return e
 	}
 	setting := func(kind string, body []byte) record.Event {
-		return record.Event{Version: 1, Entity: testkit.Ent(5), Kind: record.KindSetting, Device: testkit.DevA, Clock: record.HLC{WallMs: 1},
+		return record.Event{Version: 1, Entity: testkit.Ent(5), Kind: record.KindSetting, Device: testkit.DevA, Clock: record.HLC{WallMs: now.UnixMilli()},
 			Setting: &record.SettingRecord{Kind: kind, Name: "glycol feed", Body: body}}
 	}
 	// A spec document of exactly n bytes, its description padded.

@@ -9,17 +9,17 @@ import (
 
 // Sentinel errors of the store.
 var (
-	ErrNeedsConfirm = errors.New("data: save has warnings that need confirming")
-	ErrStoreInUse   = errors.New("data: store in use by another process")
-	ErrStoreFailed  = errors.New("data: store stopped after a write failure")
-	ErrClosed       = errors.New("data: store is closed")
-	ErrNotFound     = errors.New("data: not found")
-	ErrMetaKey      = errors.New("data: meta key outside the allowed prefix")
+	ErrNeedsConfirm = errors.New("save has warnings that need confirming")
+	ErrStoreInUse   = errors.New("store in use by another process")
+	ErrStoreFailed  = errors.New("store stopped after a write failure")
+	ErrClosed       = errors.New("store is closed")
+	ErrNotFound     = errors.New("not found")
+	ErrMetaKey      = errors.New("meta key outside the allowed prefix")
 	ErrDemoRecords  = errors.New("demo records refused")
-	ErrAmbiguousID  = errors.New("data: id prefix matches more than one entity")
-	ErrDamaged      = errors.New("data: the store is damaged")
-	ErrReadOnly     = errors.New("data: the store was opened read-only")
-	ErrNoStore      = errors.New("data: no records store in this folder")
+	ErrAmbiguousID  = errors.New("id prefix matches more than one entity")
+	ErrDamaged      = errors.New("the store is damaged")
+	ErrReadOnly     = errors.New("the store was opened read-only")
+	ErrNoStore      = errors.New("no records store in this folder")
 )
 
 // WarningsError refuses a save whose events have warnings the user has

@@ -55,8 +55,11 @@ func putCounts(tx *bolt.Tx, c counts) error {
 	return tx.Bucket(bMeta).Put(k, sealCRC(bMeta, k, c.encode()))
 }
 
-// verifyMeta reads every meta key: each value must verify, keys must come
-// in order and their number must match the counts record.
+// verifyMeta walks every meta key: keys must come in order and their
+// number must match the counts record. Values are checked where they are
+// read (metaGet, ForEachMeta), not here: the transfer side keeps
+// authorship proofs of some hundred kilobytes each in meta, and reading
+// them all at every open would cost more than the open itself.
 func verifyMeta(tx *bolt.Tx) (counts, error) {
 	for _, name := range allBuckets {
 		if tx.Bucket(name) == nil {
@@ -75,8 +78,8 @@ func verifyMeta(tx *bolt.Tx) (counts, error) {
 			return c, damagef("meta keys out of order at %q", k)
 		}
 		prev = append(prev[:0], k...)
-		if _, ok := openCRC(bMeta, k, v); !ok {
-			return c, damagef("meta value %q does not verify", k)
+		if v == nil || len(v) < 4 {
+			return c, damagef("meta value %q is cut short", k)
 		}
 		if string(k) != metaCounts {
 			n++

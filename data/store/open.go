@@ -23,10 +23,10 @@ func openOnce(dir string, o Options) (*Store, error) {
 	}
 	if !exists {
 		if err := os.MkdirAll(dir, 0o700); err != nil {
-			return nil, fmt.Errorf("data: create store folder: %w", err)
+			return nil, fmt.Errorf("create store folder: %w", err)
 		}
 	}
-	s := &Store{dir: dir, now: o.Now, hook: o.beforeCommit, noEntityCheck: o.noEntityCheck, timeout: o.Timeout, readFirst: o.ReadFirst && !o.ReadOnly}
+	s := &Store{dir: dir, now: o.Now, hook: o.beforeCommit, noEntityCheck: o.noEntityCheck, timeout: o.Timeout, readFirst: o.ReadFirst && !o.ReadOnly, newDevice: o.Device}
 	if err := s.attach(o.ReadOnly || (o.ReadFirst && exists)); err != nil {
 		return nil, err
 	}
@@ -61,9 +61,9 @@ func (s *Store) attach(readOnly bool) (err error) {
 		case errors.Is(err, berrors.ErrInvalid), errors.Is(err, berrors.ErrChecksum), errors.Is(err, berrors.ErrVersionMismatch):
 			return damagef("bbolt refused the file: %v", err)
 		case !readOnly && (errors.Is(err, syscall.EROFS) || errors.Is(err, os.ErrPermission)):
-			return fmt.Errorf("data: the store at %s cannot be written (read-only media or no permission): %w", s.dir, err)
+			return fmt.Errorf("the store at %s cannot be written (read-only media or no permission): %w", s.dir, err)
 		}
-		return fmt.Errorf("data: open store %s: %w", s.dir, err)
+		return fmt.Errorf("open store %s: %w", s.dir, err)
 	}
 	defer func() {
 		if err != nil {
@@ -87,8 +87,8 @@ func (s *Store) attach(readOnly bool) (err error) {
 	case layout == 0 && readOnly:
 		return fmt.Errorf("%w: %s holds an empty file", ErrNoStore, s.dir)
 	case layout == 0:
-		if err := db.Update(func(tx *bolt.Tx) error { return initStore(tx, s.now()) }); err != nil {
-			return fmt.Errorf("data: make store %s: %w", s.dir, err)
+		if err := db.Update(func(tx *bolt.Tx) error { return initStore(tx, s.now(), s.newDevice) }); err != nil {
+			return fmt.Errorf("make store %s: %w", s.dir, err)
 		}
 	}
 	var dev record.DeviceID
@@ -121,7 +121,7 @@ func (s *Store) attach(readOnly bool) (err error) {
 		if errors.Is(err, ErrDamaged) {
 			return err
 		}
-		return fmt.Errorf("data: prepare store %s: %w", s.dir, err)
+		return fmt.Errorf("prepare store %s: %w", s.dir, err)
 	}
 	if s.clock != nil && dev != s.device {
 		return damagef("the store's device id changed while it was open")

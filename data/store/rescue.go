@@ -289,4 +289,4 @@ func readTree(f *os.File, m [2]rawMeta, size int64, ids func(seq uint64, id reco
 }
 
 // ErrRescueTarget refuses a rescue into the damaged store's own folder.
-var ErrRescueTarget = errors.New("data: rescue into a new folder, not the damaged store's own")
+var ErrRescueTarget = errors.New("rescue into a new folder, not the damaged store's own")

@@ -26,6 +26,10 @@ type Options struct {
 	Now func() time.Time
 	// Timeout overrides OpenTimeout when positive.
 	Timeout time.Duration
+	// Device is the device id a new store takes (the transfer layer
+	// derives it from the device's signing key); zero means random. An
+	// existing store keeps the id it has.
+	Device record.DeviceID
 	// ReadOnly opens an existing store for reading only: the file is
 	// opened read-only (a store on read-only media can be read), other
 	// readers may have it open at the same time, and every write fails
@@ -64,7 +68,8 @@ type Store struct {
 	clock         *record.Clock
 	now           func() time.Time
 	hook          func() error
-	noEntityCheck bool // Options.noEntityCheck
+	noEntityCheck bool            // Options.noEntityCheck
+	newDevice     record.DeviceID // Options.Device: the id a new store takes
 
 	wmu    sync.Mutex // serialises writes; guards failed and closed
 	failed error
@@ -117,7 +122,7 @@ func OpenWith(dir string, o Options) (s *Store, err error) {
 	return s, err
 }
 
-var errNeedsUpgrade = errors.New("data: store of the previous layout")
+var errNeedsUpgrade = errors.New("store of the previous layout")
 
 // layoutOf tells the layout of an open file: 0 for an empty file, 1 for
 // the first layout (bucket "events"), 2 for this one.
@@ -136,8 +141,9 @@ func layoutOf(tx *bolt.Tx) int {
 	return layoutVersion // buckets are checked one by one by verifyMeta and the reads
 }
 
-// initStore makes the buckets and the first meta of a new store.
-func initStore(tx *bolt.Tx, now time.Time) error {
+// initStore makes the buckets and the first meta of a new store, with
+// device id dev (a random one when zero).
+func initStore(tx *bolt.Tx, now time.Time, dev record.DeviceID) error {
 	for _, name := range allBuckets {
 		if _, err := tx.CreateBucket(name); err != nil {
 			return err
@@ -145,9 +151,11 @@ func initStore(tx *bolt.Tx, now time.Time) error {
 	}
 	b := tx.Bucket(bLog)
 	b.FillPercent = logFill
-	dev, err := record.NewDeviceID()
-	if err != nil {
-		return err
+	if dev == (record.DeviceID{}) {
+		var err error
+		if dev, err = record.NewDeviceID(); err != nil {
+			return err
+		}
 	}
 	var c counts
 	m := tx.Bucket(bMeta)

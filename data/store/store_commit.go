@@ -297,7 +297,7 @@ func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *Ap
 		if !ep.stored {
 			newKinds = append(newKinds, kindKey(rec.Kind, e))
 			if int(rec.Kind) >= maxKinds {
-				return fmt.Errorf("data: kind %d is beyond what the store counts", rec.Kind)
+				return fmt.Errorf("kind %d is beyond what the store counts", rec.Kind)
 			}
 			c.Entities[rec.Kind]++
 		}

@@ -50,7 +50,7 @@ func (s *Store) Resolve(ent record.EntityID, keep record.EventID) (record.EventI
 	}
 	for _, h := range st.Heads {
 		if h.ID == keep {
-			ev := record.Event{Deleted: h.Deleted, Site: h.Site, Bale: h.Bale, Pull: h.Pull, Setting: h.Setting}
+			ev := record.PayloadOf(h.Event)
 			return s.Supersede(ent, ev, SaveOptions{Confirm: true})
 		}
 	}

@@ -36,7 +36,7 @@ func upgrade(dir string, o Options) error {
 		if errors.Is(err, berrors.ErrTimeout) {
 			return &StoreInUseError{Path: dir}
 		}
-		return fmt.Errorf("data: the store at %s has the previous layout and must be upgraded by a writing command, but opening it for writing failed: %w", dir, err)
+		return fmt.Errorf("the store at %s has the previous layout and must be upgraded by a writing command, but opening it for writing failed: %w", dir, err)
 	}
 	defer old.Close()
 	src := rebuildSource{meta: map[string][]byte{}, drafts: map[string][]byte{}}
@@ -86,7 +86,7 @@ func upgrade(dir string, o Options) error {
 	}
 	rep, err := rebuild(tmp, src, o.Now)
 	if err != nil {
-		return fmt.Errorf("data: upgrading the store at %s: %w", dir, err)
+		return fmt.Errorf("upgrading the store at %s: %w", dir, err)
 	}
 	if len(lost)+len(rep.Refused) > 0 {
 		os.RemoveAll(tmp)
@@ -108,7 +108,7 @@ func upgrade(dir string, o Options) error {
 	})
 }
 
-var errReopen = errors.New("data: store replaced, reopen")
+var errReopen = errors.New("store replaced, reopen")
 
 // syncDir makes a rename in dir durable.
 func syncDir(dir string) error {

@@ -41,8 +41,8 @@ type TrustFunc func(Fingerprint) (name string, ok bool)
 
 // OpenedBundle is a bundle that passed every check short of the store:
 // signature by a trusted key, strict decoding, deterministic encoding,
-// event ids. Raws are sub-slices of the file bytes (not copies), in
-// bundle order.
+// event ids, and a proof of its author for every event. Raws are
+// sub-slices of the file bytes (not copies), in bundle order.
 type OpenedBundle struct {
 	Header     BundleHeader
 	Signer     Fingerprint
@@ -50,27 +50,36 @@ type OpenedBundle struct {
 	Hash       [32]byte // SHA-256 of the complete file
 	Raws       [][]byte
 	IDs        []record.EventID // IDs[i] is the SHA-256 of Raws[i], checked against the id the bundle states
+	Proofs     []*AuthorProof   // in bundle order; together they cover every event
 }
 
-// buildBody returns the deterministic encoding of [header, [[id, event]...]].
-func buildBody(h BundleHeader, raws [][]byte) ([]byte, error) {
+// buildBody returns the deterministic encoding of
+// [header, [proof...], [[id, event]...]]; proofs must be sorted.
+func buildBody(h BundleHeader, proofs [][]byte, raws [][]byte, ids []record.EventID) ([]byte, error) {
 	hdr, err := encodeHeader(h)
 	if err != nil {
 		return nil, err
 	}
-	size := 2 + len(hdr) + 9
+	size := 2 + len(hdr) + 18
+	for _, p := range proofs {
+		size += 9 + len(p)
+	}
 	for _, r := range raws {
 		size += 1 + 34 + 9 + len(r)
 	}
 	out := make([]byte, 0, size)
-	out = appendHead(out, majArray, 2)
+	out = appendHead(out, majArray, 3)
 	out = append(out, hdr...)
+	out = appendHead(out, majArray, uint64(len(proofs)))
+	for _, p := range proofs {
+		out = appendHead(out, majBytes, uint64(len(p)))
+		out = append(out, p...)
+	}
 	out = appendHead(out, majArray, uint64(len(raws)))
-	for _, r := range raws {
-		id := sha256.Sum256(r)
+	for i, r := range raws {
 		out = appendHead(out, majArray, 2)
 		out = appendHead(out, majBytes, 32)
-		out = append(out, id[:]...)
+		out = append(out, ids[i][:]...)
 		out = appendHead(out, majBytes, uint64(len(r)))
 		out = append(out, r...)
 	}
@@ -82,12 +91,37 @@ func bodyOverhead(rawLen int) int {
 	return 1 + 34 + len(appendHead(nil, majBytes, uint64(rawLen)))
 }
 
-// SealBundle encodes h and the events' stored bytes as a bundle body and
-// signs it with key. It fills h.Key and h.Count.
-func SealBundle(key *DeviceKey, h BundleHeader, raws [][]byte) ([]byte, error) {
+// proofOverhead is the encoded size of a proof entry beyond its bytes.
+func proofOverhead(n int) int { return len(appendHead(nil, majBytes, uint64(n))) }
+
+// SealBundle encodes h, the proofs and the events' stored bytes as a
+// bundle body and signs it with key. It fills h.Device, h.Key and
+// h.Count, and proves the events whose author is key's device with a
+// new proof; relayed holds the proofs of the other events' authors (as
+// stored by an import), never one of key's device.
+func SealBundle(key *DeviceKey, h BundleHeader, raws [][]byte, relayed [][]byte) ([]byte, error) {
 	h.Key = key.Fingerprint()
+	h.Device = key.DeviceID()
 	h.Count = uint64(len(raws))
-	body, err := buildBody(h, raws)
+	ids := make([]record.EventID, len(raws))
+	var own []record.EventID
+	for i, r := range raws {
+		ids[i] = record.IDOf(r)
+		if dev, ok := record.AuthorOf(r); ok && dev == h.Device {
+			own = append(own, ids[i])
+		}
+	}
+	proofs := slices.Clone(relayed)
+	if len(own) > 0 {
+		p, err := NewAuthorProof(key, own)
+		if err != nil {
+			return nil, err
+		}
+		proofs = append(proofs, p)
+	}
+	slices.SortFunc(proofs, bytes.Compare)
+	proofs = slices.CompactFunc(proofs, bytes.Equal)
+	body, err := buildBody(h, proofs, raws, ids)
 	if err != nil {
 		return nil, err
 	}
@@ -127,12 +161,16 @@ func OpenBundle(raw []byte, trusted TrustFunc) (*OpenedBundle, error) {
 	if err := verifySign1(env, env.kid); err != nil {
 		return nil, err
 	}
-	h, raws, ids, err := decodeBody(env.payload, env.payloadOff)
+	h, proofRaws, raws, ids, err := decodeBody(env.payload, env.payloadOff)
 	if err != nil {
 		return nil, err
 	}
-	if h.Key != fp {
-		return nil, bundleErr(ErrBundleHeader, "header.key", env.payloadOff, "header names key %s, bundle is signed by %s", h.Key, fp)
+	if err := checkSigner(h, fp, env.payloadOff); err != nil {
+		return nil, err
+	}
+	proofs, err := checkAuthorship(h.Device, proofRaws, raws, ids)
+	if err != nil {
+		return nil, err
 	}
 	var sum [32]byte
 	if hashed != nil {
@@ -140,63 +178,114 @@ func OpenBundle(raw []byte, trusted TrustFunc) (*OpenedBundle, error) {
 	} else {
 		sum = sha256.Sum256(raw)
 	}
-	return &OpenedBundle{Header: h, Signer: fp, SignerName: name, Hash: sum, Raws: raws, IDs: ids}, nil
+	return &OpenedBundle{Header: h, Signer: fp, SignerName: name, Hash: sum, Raws: raws, IDs: ids, Proofs: proofs}, nil
+}
+
+// checkSigner checks that the header names the signing key and that
+// key's device: a bundle speaks only for the device whose key signed it.
+func checkSigner(h BundleHeader, fp Fingerprint, off int) error {
+	if h.Key != fp {
+		return bundleErr(ErrBundleHeader, "header.key", off, "header names key %s, bundle is signed by %s", h.Key, fp)
+	}
+	if h.Device != fp.Device() {
+		return bundleErr(ErrBundleDevice, "header.device", off, "header claims device %s, but the bundle is signed by the key of device %s", h.Device, fp.Device())
+	}
+	return nil
 }
 
 // decodeBody walks a verified payload: the body array, the header (via
-// the strict decoder) and each [id, event] pair (sliced, not copied).
-func decodeBody(p []byte, base int) (BundleHeader, [][]byte, []record.EventID, error) {
-	var h BundleHeader
+// the strict decoder), the proofs and each [id, event] pair (all sliced,
+// not copied). The header's format and version are checked before the
+// body's shape, so a file of another version says so.
+func decodeBody(p []byte, base int) (h BundleHeader, proofs [][]byte, raws [][]byte, ids []record.EventID, err error) {
 	w := &wire{buf: p, base: base, part: "body"}
-	if n, err := w.expect(majArray, "the body array"); err != nil {
-		return h, nil, nil, err
-	} else if n != 2 {
-		return h, nil, nil, bundleErr(ErrBundleMalformed, "body", base, "body array has %d items, want [header, events]", n)
+	items, err := w.expect(majArray, "the body array")
+	if err != nil {
+		return h, nil, nil, nil, err
+	}
+	if items == 0 {
+		return h, nil, nil, nil, bundleErr(ErrBundleMalformed, "body", base, "body array is empty, want [header, proofs, events]")
 	}
 	hStart := w.off
 	var item cbor.RawMessage
 	rest, err := headerDec.UnmarshalFirst(p[hStart:], &item)
 	if err != nil {
-		return h, nil, nil, cborErr(err, "header", base+hStart)
+		return h, nil, nil, nil, cborErr(err, "header", base+hStart)
 	}
 	w.off = len(p) - len(rest)
 	if h, err = decodeHeader(p[hStart:w.off], base+hStart); err != nil {
-		return h, nil, nil, err
+		return h, nil, nil, nil, err
+	}
+	if items != 3 {
+		return h, nil, nil, nil, bundleErr(ErrBundleMalformed, "body", base, "body array has %d items, want [header, proofs, events]", items)
+	}
+	if proofs, err = readProofs(w); err != nil {
+		return h, nil, nil, nil, err
 	}
 	w.part = "events"
 	at := w.off
 	n, err := w.expect(majArray, "the events array")
 	if err != nil {
-		return h, nil, nil, err
+		return h, nil, nil, nil, err
 	}
 	if n > MaxBundleEvents {
-		return h, nil, nil, bundleErr(ErrBundleTooMany, "events", base+at, "array claims %d events, limit %d", n, MaxBundleEvents)
+		return h, nil, nil, nil, bundleErr(ErrBundleTooMany, "events", base+at, "array claims %d events, limit %d", n, MaxBundleEvents)
 	}
 	if n*minEntryBytes > uint64(len(p)-w.off) {
-		return h, nil, nil, bundleErr(ErrBundleTruncated, "events", base+at, "array claims %d events, only %d bytes remain", n, len(p)-w.off)
+		return h, nil, nil, nil, bundleErr(ErrBundleTruncated, "events", base+at, "array claims %d events, only %d bytes remain", n, len(p)-w.off)
 	}
 	if n != h.Count {
-		return h, nil, nil, bundleErr(ErrBundleEventCount, "events", base+at, "header says %d events, array has %d", h.Count, n)
+		return h, nil, nil, nil, bundleErr(ErrBundleEventCount, "events", base+at, "header says %d events, array has %d", h.Count, n)
 	}
-	raws := make([][]byte, 0, n)
-	ids := make([]record.EventID, 0, n)
+	raws = make([][]byte, 0, n)
+	ids = make([]record.EventID, 0, n)
 	for i := range int(n) {
 		if err := readEntry(w, i, &raws, &ids); err != nil {
 			var be *BundleError
 			if errors.As(err, &be) {
 				be.Part, be.Event = fmt.Sprintf("events[%d]", i), i
 			}
-			return h, nil, nil, err
+			return h, nil, nil, nil, err
 		}
 	}
 	w.part = "body"
 	if err := w.end(); err != nil {
-		return h, nil, nil, err
+		return h, nil, nil, nil, err
 	}
 	if i, ok := firstRepeat(ids); ok {
-		return h, nil, nil, bundleErr(ErrBundleDupEvent, "events", -1, "event %s appears twice", hex.EncodeToString(ids[i][:]))
+		return h, nil, nil, nil, bundleErr(ErrBundleDupEvent, "events", -1, "event %s appears twice", hex.EncodeToString(ids[i][:]))
 	}
-	return h, raws, ids, nil
+	return h, proofs, raws, ids, nil
+}
+
+// readProofs reads the proofs array: byte strings in strictly ascending
+// bytewise order (so a set of proofs has one encoding), at most
+// MaxBundleProofs. Their content is checked by checkAuthorship.
+func readProofs(w *wire) ([][]byte, error) {
+	w.part = "proofs"
+	at := w.off
+	n, err := w.expect(majArray, "the proofs array")
+	if err != nil {
+		return nil, err
+	}
+	if n > MaxBundleProofs {
+		return nil, bundleErr(ErrBundleTooMany, "proofs", w.base+at, "array claims %d proofs, limit %d", n, MaxBundleProofs)
+	}
+	if n > uint64(len(w.buf)-w.off) {
+		return nil, bundleErr(ErrBundleTruncated, "proofs", w.base+at, "array claims %d proofs, only %d bytes remain", n, len(w.buf)-w.off)
+	}
+	proofs := make([][]byte, 0, n)
+	for k := range int(n) {
+		b, off, err := w.bytes("a proof")
+		if err != nil {
+			return nil, err
+		}
+		if k > 0 && bytes.Compare(proofs[k-1], b) >= 0 {
+			return nil, bundleErr(ErrBundleNonCanon, fmt.Sprintf("proofs[%d]", k), w.base+off, "proofs are listed once each, in ascending bytewise order")
+		}
+		proofs = append(proofs, b)
+	}
+	return proofs, nil
 }
 
 // firstRepeat finds an id that appears twice, if any, and the index of

@@ -7,6 +7,7 @@ package transfer
 import (
 	"baleassay/data/internal/testkit"
 	"baleassay/data/record"
+	"baleassay/data/store"
 	"crypto/sha256"
 	"encoding/json"
 	"fmt"
@@ -38,9 +39,9 @@ func xSetup100k(b *testing.B) *xBenchSetup {
 	if xBenchCache != nil {
 		return xBenchCache
 	}
-	raws, evs := testkit.BenchRaws(b, 100_000, 1)
 	key := xKey(b, 0x11)
-	bundle, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws)
+	raws, evs := testkit.BenchRawsBy(b, 100_000, 1, testkit.XferNow.AddDate(-1, 0, 0).UnixMilli(), key.DeviceID())
+	bundle, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws, nil)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -55,7 +56,7 @@ func xSetup100k(b *testing.B) *xBenchSetup {
 			size += bodyOverhead(len(raws[j])) + len(raws[j])
 			j++
 		}
-		p, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: seq, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws[i:j])
+		p, err := SealBundle(key, BundleHeader{Device: evs[0].Device, Seq: seq, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws[i:j], nil)
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -93,7 +94,7 @@ func BenchmarkTransfer100k(b *testing.B) {
 	b.Run("seal", func(b *testing.B) {
 		b.SetBytes(int64(len(st.bundle)))
 		for b.Loop() {
-			if _, err := SealBundle(st.key, BundleHeader{Seq: 1, Part: 1, Parts: 1}, st.raws); err != nil {
+			if _, err := SealBundle(st.key, BundleHeader{Seq: 1, Part: 1, Parts: 1}, st.raws, nil); err != nil {
 				b.Fatal(err)
 			}
 		}
@@ -101,14 +102,19 @@ func BenchmarkTransfer100k(b *testing.B) {
 	})
 	b.Run("export", func(b *testing.B) {
 		dir := b.TempDir()
-		s := xferStore(b, dir, testkit.XferNow)
+		// A store of st.key's device, holding its own 100,000 events.
+		s, err := store.OpenWith(dir, store.Options{Now: func() time.Time { return testkit.XferNow }, Device: st.key.DeviceID()})
+		if err != nil {
+			b.Fatal(err)
+		}
+		defer s.Close()
 		if _, err := s.ApplyRaw(st.raws, nil); err != nil {
 			b.Fatal(err)
 		}
 		out := filepath.Join(dir, "x.bale")
 		b.SetBytes(int64(len(st.bundle)))
 		for b.Loop() {
-			if _, err := Export(s, st.key, out, ExportOptions{}); err != nil {
+			if _, err := Export(s, st.key, out, ExportOptions{Force: true}); err != nil {
 				b.Fatal(err)
 			}
 		}
@@ -137,6 +143,30 @@ func BenchmarkTransfer100k(b *testing.B) {
 			}
 		}
 		xReport(b, n)
+	})
+	b.Run("authorship", func(b *testing.B) { // the share of open that checks the authors' proofs, timed in the same iterations
+		env, err := parseSign1(st.bundle)
+		if err != nil {
+			b.Fatal(err)
+		}
+		h, proofs, raws, ids, err := decodeBody(env.payload, env.payloadOff)
+		if err != nil {
+			b.Fatal(err)
+		}
+		var whole, auth time.Duration
+		for b.Loop() {
+			t0 := time.Now()
+			if _, err := OpenBundle(st.bundle, trust); err != nil {
+				b.Fatal(err)
+			}
+			t1 := time.Now()
+			if _, err := checkAuthorship(h.Device, proofs, raws, ids); err != nil {
+				b.Fatal(err)
+			}
+			whole, auth = whole+t1.Sub(t0), auth+time.Since(t1)
+		}
+		b.ReportMetric(auth.Seconds()/whole.Seconds(), "authorship/open")
+		b.ReportMetric(float64(auth.Milliseconds())/float64(b.N), "authorship-ms")
 	})
 	b.Run("ratios", func(b *testing.B) { // the three decodes timed in the same iterations
 		var plain, check, serial, js time.Duration
@@ -236,6 +266,7 @@ func xPlainDecode(b *testing.B, bundle []byte) {
 	var body struct {
 		_      struct{} `cbor:",toarray"`
 		Header map[int]any
+		Proofs [][]byte
 		Events [][2][]byte
 	}
 	if err := cbor.Unmarshal(env.payload, &body); err != nil {
@@ -303,14 +334,14 @@ func xPeakMemory(t *testing.T, n, perPart int, checkOnly, timeOrdered bool) {
 	wall := testkit.XferNow.AddDate(-1, 0, 0).UnixMilli()
 	for done := 0; done < n; {
 		k := min(n-done, perPart)
-		raws, evs := testkit.BenchRawsFrom(t, k, seq+100, wall) // a seed per part: no duplicates
+		raws, evs := testkit.BenchRawsBy(t, k, seq+100, wall, key.DeviceID()) // a seed per part: no duplicates
 		raws = raws[:k]
 		if timeOrdered {
 			wall = evs[len(evs)-1].Clock.WallMs + 1
 		}
 		seq++
 		h := BundleHeader{Device: evs[0].Device, Seq: seq, Prev: prev, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}
-		b, err := SealBundle(key, h, raws)
+		b, err := SealBundle(key, h, raws, nil)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -1,6 +1,7 @@
 package transfer
 
 import (
+	"baleassay/data/record"
 	"errors"
 	"fmt"
 )
@@ -9,29 +10,34 @@ import (
 // one of them, so callers and tests tell failure modes apart with
 // errors.Is; the typed errors below add where it happened.
 var (
-	ErrBundleEmpty       = errors.New("data: bundle file is empty")
-	ErrBundleTooLarge    = errors.New("data: bundle file is larger than the import limit")
-	ErrBundleTruncated   = errors.New("data: bundle is truncated")
-	ErrBundleTrailing    = errors.New("data: bytes after the end of the bundle")
-	ErrBundleNotCOSE     = errors.New("data: not a COSE_Sign1 message (tag 18)")
-	ErrBundleMalformed   = errors.New("data: malformed CBOR in bundle")
-	ErrBundleNonCanon    = errors.New("data: bundle is not in deterministic encoding")
-	ErrAlgUnprotected    = errors.New("data: algorithm given only in the unprotected header")
-	ErrUnexpectedAlg     = errors.New("data: unexpected signature algorithm")
-	ErrBadHeaderParam    = errors.New("data: unexpected COSE header parameter")
-	ErrUnknownSigner     = errors.New("data: bundle signed by a key that is not trusted")
-	ErrBadSignature      = errors.New("data: signature does not verify: bundle was altered (tampered)")
-	ErrBundleFormat      = errors.New("data: not a baleassay bundle")
-	ErrBundleVersion     = errors.New("data: unsupported bundle format version")
-	ErrBundleHeader      = errors.New("data: invalid bundle header")
-	ErrBundleEventID     = errors.New("data: event id does not match the event's bytes")
-	ErrBundleEventCount  = errors.New("data: event count does not match the header")
-	ErrBundleTooMany     = errors.New("data: bundle claims more events than the limit")
-	ErrBundleDupEvent    = errors.New("data: event appears twice in one bundle")
-	ErrBundleEvent       = errors.New("data: event in bundle refused")
-	ErrTrustName         = errors.New("data: invalid trust entry")
-	ErrFingerprintFormat = errors.New("data: not a key fingerprint (64 hex digits)")
-	ErrKeyFile           = errors.New("data: device key file unreadable")
+	ErrBundleEmpty       = errors.New("bundle file is empty")
+	ErrBundleNotFile     = errors.New("not a regular file")
+	ErrBundleTooLarge    = errors.New("bundle file is larger than the import limit")
+	ErrBundleTruncated   = errors.New("bundle is truncated")
+	ErrBundleTrailing    = errors.New("bytes after the end of the bundle")
+	ErrBundleNotCOSE     = errors.New("not a COSE_Sign1 message (tag 18)")
+	ErrBundleMalformed   = errors.New("malformed CBOR in bundle")
+	ErrBundleNonCanon    = errors.New("bundle is not in deterministic encoding")
+	ErrAlgUnprotected    = errors.New("algorithm given only in the unprotected header")
+	ErrUnexpectedAlg     = errors.New("unexpected signature algorithm")
+	ErrBadHeaderParam    = errors.New("unexpected COSE header parameter")
+	ErrUnknownSigner     = errors.New("bundle signed by a key that is not trusted")
+	ErrBadSignature      = errors.New("signature does not verify: bundle was altered (tampered)")
+	ErrBundleFormat      = errors.New("not a baleassay bundle")
+	ErrBundleVersion     = errors.New("unsupported bundle format version")
+	ErrBundleHeader      = errors.New("invalid bundle header")
+	ErrBundleEventID     = errors.New("event id does not match the event's bytes")
+	ErrBundleEventCount  = errors.New("event count does not match the header")
+	ErrBundleTooMany     = errors.New("bundle claims more events than the limit")
+	ErrBundleDupEvent    = errors.New("event appears twice in one bundle")
+	ErrBundleEvent       = errors.New("event in bundle refused")
+	ErrBundleDevice      = errors.New("device id does not belong to the signing key")
+	ErrBundleProof       = errors.New("authorship proof refused")
+	ErrAuthorUnproven    = errors.New("event's author has not signed it")
+	ErrDeviceKey         = errors.New("this store's device id is not derived from its signing key")
+	ErrTrustName         = errors.New("invalid trust entry")
+	ErrFingerprintFormat = errors.New("not a key fingerprint (64 hex digits)")
+	ErrKeyFile           = errors.New("device key file unreadable")
 )
 
 // BundleError locates a refusal inside a bundle: the byte offset where
@@ -100,7 +106,12 @@ type EventRefusedError struct {
 }
 
 func (e *EventRefusedError) Error() string {
-	return fmt.Sprintf("%v: events[%d] (id %.16s…): %v", ErrBundleEvent, e.Index, e.ID, e.Err)
+	cause := e.Err
+	var ee *record.EventError
+	if errors.As(cause, &ee) { // its index and id are said here already
+		cause = ee.Err
+	}
+	return fmt.Sprintf("%v: event %d of the bundle (id %.16s…): %v", ErrBundleEvent, e.Index+1, e.ID, cause)
 }
 
 // Unwrap exposes both ErrBundleEvent and the underlying cause.

@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"errors"
 	"math"
+	"slices"
+	"time"
 
 	"baleassay/assess"
 	"baleassay/data/internal/testkit"
@@ -23,6 +25,9 @@ type fixCase struct {
 	want  []error
 	as    func(error) bool
 	noop  bool
+	// accept > 0 marks a file that must be accepted with that many new
+	// events.
+	accept int
 }
 
 func asType[T error](err error) bool {
@@ -37,12 +42,12 @@ func asType[T error](err error) bool {
 func fixCases() []fixCase {
 	hdrWith := func(mod func([]kv) []kv) func(g *fixGen) []byte {
 		return func(g *fixGen) []byte {
-			return g.signed(bodyOf(mapOf(mod(g.headerKVs(3))), entriesOf(g.next)))
+			return g.signed(g.body(mapOf(mod(g.headerKVs(3))), entriesOf(g.next)))
 		}
 	}
 	hdrBytes := func(mod func(h []byte) []byte) func(g *fixGen) []byte {
 		return func(g *fixGen) []byte {
-			return g.signed(bodyOf(mod(mapOf(g.headerKVs(3))), entriesOf(g.next)))
+			return g.signed(g.body(mod(mapOf(g.headerKVs(3))), entriesOf(g.next)))
 		}
 	}
 	evRaw := func(mod func(g *fixGen, raw []byte) []byte) func(g *fixGen) []byte {
@@ -161,7 +166,7 @@ func fixCases() []fixCase {
 		{name: "payload-byte-flipped-in-event", build: func(g *fixGen) []byte { b := g.good(); return flip(b, len(b)-100, 0x10) }, want: []error{ErrBadSignature}},
 		// The body (signed, so these reach the body reader).
 		{name: "body-not-an-array", build: func(g *fixGen) []byte { return g.signed([]byte{0xa0}) }, want: []error{ErrBundleMalformed}},
-		{name: "body-array-of-three", build: func(g *fixGen) []byte { return g.signed(append(flip(g.goodBody(g.next), 0, 0x82^0x83), 0x80)) }, want: []error{ErrBundleMalformed}},
+		{name: "body-array-of-four", build: func(g *fixGen) []byte { return g.signed(append(flip(g.goodBody(g.next), 0, 0x83^0x84), 0x80)) }, want: []error{ErrBundleMalformed}},
 		{name: "body-trailing-bytes", build: func(g *fixGen) []byte { return g.signed(append(g.goodBody(g.next), 0x00)) }, want: []error{ErrBundleTrailing}},
 		{name: "header-duplicate-key", build: hdrWith(func(k []kv) []kv { return append(k, kv{hdrSeq, []byte{0x02}}) }), want: []error{ErrBundleMalformed}, as: isDup},
 		{name: "header-indefinite-map", build: hdrBytes(func(h []byte) []byte { return append(append([]byte{0xbf}, h[1:]...), 0xff) }), want: []error{ErrBundleMalformed}, as: isIndef},
@@ -182,7 +187,13 @@ func fixCases() []fixCase {
 			return set(k, hdrFormat, append([]byte{0x70}, "baleassay-bundl\xff"...))
 		}), want: []error{ErrBundleMalformed}},
 		{name: "header-format-other", build: hdrWith(func(k []kv) []kv { return set(k, hdrFormat, append([]byte{0x68}, "otherfmt"...)) }), want: []error{ErrBundleFormat}},
-		{name: "header-version-2", build: hdrWith(func(k []kv) []kv { return set(append(k, kv{10, []byte{0x01}}), hdrVersion, []byte{0x02}) }), want: []error{ErrBundleVersion}},
+		{name: "header-version-3", build: hdrWith(func(k []kv) []kv { return set(append(k, kv{10, []byte{0x01}}), hdrVersion, []byte{0x03}) }), want: []error{ErrBundleVersion}},
+		// A file of the format before authorship proofs: [header, events]
+		// with version 1. Refused as an older version, not as damaged.
+		{name: "header-version-1-without-proofs", build: func(g *fixGen) []byte {
+			h := mapOf(set(g.headerKVs(3), hdrVersion, []byte{0x01}))
+			return g.signed(append(append(appendHead(nil, majArray, 2), h...), eventsArray(entriesOf(g.next))...))
+		}, want: []error{ErrBundleVersion}},
 		{name: "header-version-0", build: hdrWith(func(k []kv) []kv { return set(k, hdrVersion, []byte{0x00}) }), want: []error{ErrBundleVersion}},
 		{name: "header-unknown-field", build: hdrWith(func(k []kv) []kv { return append(k, kv{10, []byte{0x01}}) }), want: []error{ErrBundleHeader}, as: asType[*cbor.UnknownFieldError]},
 		{name: "header-missing-seq", build: hdrWith(func(k []kv) []kv { return drop(k, hdrSeq) }), want: []error{ErrBundleHeader}},
@@ -191,53 +202,44 @@ func fixCases() []fixCase {
 		{name: "header-device-short", build: hdrWith(func(k []kv) []kv { return set(k, hdrDevice, []byte{0x43, 1, 2, 3}) }), want: []error{ErrBundleHeader}},
 		{name: "header-key-not-signer", build: func(g *fixGen) []byte {
 			k := set(g.headerKVs(3), hdrKey, g.cbor(func() []byte { f := g.stranger.Fingerprint(); return f[:] }()))
-			return g.signed(bodyOf(mapOf(k), entriesOf(g.next)))
+			return g.signed(g.body(mapOf(k), entriesOf(g.next)))
 		}, want: []error{ErrBundleHeader}},
 		{name: "header-part-3-of-2", build: hdrWith(func(k []kv) []kv { return set(k, hdrPart, []byte{0x82, 0x03, 0x02}) }), want: []error{ErrBundleHeader}},
 		{name: "header-clock-negative", build: hdrWith(func(k []kv) []kv { return set(k, hdrClock, []byte{0x82, 0x20, 0x00}) }), want: []error{ErrBundleHeader}},
 		// The events array.
 		{name: "events-count-mismatch", build: func(g *fixGen) []byte {
-			return g.signed(bodyOf(mapOf(g.headerKVs(2)), entriesOf(g.next)))
+			return g.signed(g.body(mapOf(g.headerKVs(2)), entriesOf(g.next)))
 		}, want: []error{ErrBundleEventCount}},
 		{name: "events-array-claims-2e32", build: func(g *fixGen) []byte {
-			b := g.goodBody(g.next)
-			h := mapOf(g.headerKVs(3))
-			out := append(append([]byte{0x82}, h...), appendHead(nil, majArray, 1<<32)...)
-			return g.signed(append(out, b[1+len(h)+1:]...))
+			out := append(g.prefix(3, g.next), appendHead(nil, majArray, 1<<32)...)
+			return g.signed(append(out, eventsArray(entriesOf(g.next))[1:]...))
 		}, want: []error{ErrBundleTooMany}},
 		{name: "events-array-claims-1e6", build: func(g *fixGen) []byte {
-			b := g.goodBody(g.next)
-			h := mapOf(g.headerKVs(1_000_000))
-			out := append(append([]byte{0x82}, h...), appendHead(nil, majArray, 1_000_000)...)
-			return g.signed(append(out, b[1+len(mapOf(g.headerKVs(3)))+1:]...))
+			out := append(g.prefix(1_000_000, g.next), appendHead(nil, majArray, 1_000_000)...)
+			return g.signed(append(out, eventsArray(entriesOf(g.next))[1:]...))
 		}, want: []error{ErrBundleTruncated}},
 		{name: "events-array-nonminimal-head", build: func(g *fixGen) []byte {
-			b := g.goodBody(g.next)
-			n := 1 + len(mapOf(g.headerKVs(3)))
-			return g.signed(append(append(bytes.Clone(b[:n]), 0x98, 0x03), b[n+1:]...))
+			return g.signed(append(append(g.prefix(3, g.next), 0x98, 0x03), eventsArray(entriesOf(g.next))[1:]...))
 		}, want: []error{ErrBundleNonCanon}},
 		{name: "events-array-indefinite", build: func(g *fixGen) []byte {
-			b := g.goodBody(g.next)
-			n := 1 + len(mapOf(g.headerKVs(3)))
-			return g.signed(append(append(append(bytes.Clone(b[:n]), 0x9f), b[n+1:]...), 0xff))
+			return g.signed(append(append(append(g.prefix(3, g.next), 0x9f), eventsArray(entriesOf(g.next))[1:]...), 0xff))
 		}, want: []error{ErrBundleMalformed}},
 		{name: "event-id-mismatch", build: func(g *fixGen) []byte {
 			es := entriesOf(g.next)
 			es[1].id = es[2].id
-			return g.signed(bodyOf(mapOf(g.headerKVs(3)), es))
+			return g.signed(g.body(mapOf(g.headerKVs(3)), es))
 		}, want: []error{ErrBundleEventID}},
 		{name: "event-id-short", build: func(g *fixGen) []byte {
 			es := entriesOf(g.next)
 			es[0].id = es[0].id[:31]
-			return g.signed(bodyOf(mapOf(g.headerKVs(3)), es))
+			return g.signed(g.body(mapOf(g.headerKVs(3)), es))
 		}, want: []error{ErrBundleMalformed}},
 		{name: "event-twice-in-bundle", build: func(g *fixGen) []byte {
 			return g.signed(g.goodBody([][]byte{g.next[0], g.next[1], g.next[0]}))
 		}, want: []error{ErrBundleDupEvent}},
 		{name: "event-entry-not-a-pair", build: func(g *fixGen) []byte {
-			b := g.goodBody(g.next[:1])
-			n := 1 + len(mapOf(g.headerKVs(1))) + 1
-			return g.signed(append(append(bytes.Clone(b[:n]), 0x83), append(b[n+1:], 0x00)...))
+			ev := eventsArray(entriesOf(g.next[:1]))
+			return g.signed(append(append(append(g.prefix(1, g.next[:1]), ev[0], 0x83), ev[2:]...), 0x00))
 		}, want: []error{ErrBundleMalformed}},
 		// Events inside a valid envelope: the records' strict decoding
 		// and validation refuse them, and with them the whole bundle.
@@ -277,6 +279,154 @@ func fixCases() []fixCase {
 			bad := testkit.Enc(g.t, g.mk.Site(g.mk.Entity(), "", 1, 1))
 			return g.signed(g.goodBody(append(append([][]byte(nil), g.next...), bad)))
 		}, want: []error{ErrBundleEvent, record.ErrRequired}},
+		// Authorship: the header and every event speak only for devices
+		// whose keys signed them (bundle_doc.go, "Authorship").
+		{name: "header-device-of-stranger", build: hdrWith(func(k []kv) []kv { return set(k, hdrDevice, cborOf(devBytes(seedKey(0x22)))) }), want: []error{ErrBundleDevice}},
+		{name: "header-device-of-lab-claims-its-numbers", build: hdrWith(func(k []kv) []kv { return set(k, hdrDevice, cborOf(devBytes(seedKey(0x33)))) }), want: []error{ErrBundleDevice}},
+		{name: "event-impersonates-lab-no-proof", build: func(g *fixGen) []byte {
+			return g.signed(g.body(mapOf(g.headerKVs(2)), entriesOf([][]byte{g.next[1], g.labEdit()})))
+		}, want: []error{ErrBundleEvent, ErrAuthorUnproven}},
+		{name: "event-impersonates-lab-proof-signed-by-tablet", build: func(g *fixGen) []byte {
+			es := entriesOf([][]byte{g.next[1], g.labEdit()})
+			forged := g.signStmt(g.trusted, stmtOf(AuthorshipFormat, 1, g.lab.DeviceID(), [][]byte{es[1].id}))
+			return g.signed(bodyOf(mapOf(g.headerKVs(2)), sortedProofs(g.proofBy(g.trusted, es[:1]), forged), es))
+		}, want: []error{ErrBundleProof, ErrBundleDevice}},
+		{name: "event-impersonates-lab-listed-in-tablet-proof", build: func(g *fixGen) []byte {
+			es := entriesOf([][]byte{g.next[1], g.labEdit()})
+			return g.signed(bodyOf(mapOf(g.headerKVs(2)), [][]byte{g.proofBy(g.trusted, es)}, es))
+		}, want: []error{ErrBundleProof}},
+		{name: "event-impersonates-lab-beside-real-lab-event", build: func(g *fixGen) []byte {
+			real := testkit.Enc(g.t, g.makerOf(g.lab).Site(g.siteID, "Northgate scrap yard (lab survey)", 53.48, -2.24, record.IDOf(g.base[0])))
+			es := entriesOf([][]byte{g.next[1], real, g.labEdit()})
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), sortedProofs(g.proofBy(g.trusted, es[:1]), g.proofBy(g.lab, es[1:2])), es))
+		}, want: []error{ErrBundleEvent, ErrAuthorUnproven}},
+		{name: "proofs-missing", build: func(g *fixGen) []byte {
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), nil, entriesOf(g.next)))
+		}, want: []error{ErrBundleEvent, ErrAuthorUnproven}},
+		{name: "proof-own-lists-too-few", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.proofBy(g.trusted, es[:2])}, es))
+		}, want: []error{ErrBundleProof}},
+		{name: "proof-own-split-in-two", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), sortedProofs(g.proofBy(g.trusted, es[:1]), g.proofBy(g.trusted, es[1:])), es))
+		}, want: []error{ErrBundleProof}},
+		{name: "proof-signature-byte-flipped", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			p := g.proofBy(g.trusted, es)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{flip(p, len(p)-7, 0x40)}, es))
+		}, want: []error{ErrBundleProof, ErrBadSignature}},
+		{name: "proof-signed-by-stranger-for-tablet", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			stmt := stmtOf(AuthorshipFormat, 1, g.trusted.DeviceID(), idsOf(es))
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.signStmt(g.stranger, stmt)}, es))
+		}, want: []error{ErrBundleProof, ErrBundleDevice}},
+		{name: "proof-ids-unsorted", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			ids := idsOf(es)
+			slices.SortFunc(ids, func(a, b []byte) int { return bytes.Compare(b, a) })
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.signStmt(g.trusted, stmtOf(AuthorshipFormat, 1, g.trusted.DeviceID(), ids))}, es))
+		}, want: []error{ErrBundleProof, ErrBundleNonCanon}},
+		{name: "proof-id-listed-twice", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			ids := idsOf(es)
+			slices.SortFunc(ids, bytes.Compare)
+			ids = append(ids[:1], ids...)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.signStmt(g.trusted, stmtOf(AuthorshipFormat, 1, g.trusted.DeviceID(), ids))}, es))
+		}, want: []error{ErrBundleProof, ErrBundleNonCanon}},
+		{name: "proof-no-ids", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.signStmt(g.trusted, stmtOf(AuthorshipFormat, 1, g.trusted.DeviceID(), nil))}, es))
+		}, want: []error{ErrBundleProof, ErrBundleMalformed}},
+		{name: "proof-format-other", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.signStmt(g.trusted, stmtOf("baleassay-bundle", 1, g.trusted.DeviceID(), idsOf(es)))}, es))
+		}, want: []error{ErrBundleProof, ErrBundleFormat}},
+		{name: "proof-version-2", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.signStmt(g.trusted, stmtOf(AuthorshipFormat, 2, g.trusted.DeviceID(), idsOf(es)))}, es))
+		}, want: []error{ErrBundleProof, ErrBundleVersion}},
+		{name: "proof-is-the-bundle-body", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.signStmt(g.trusted, g.goodBody(g.next))}, es))
+		}, want: []error{ErrBundleProof, ErrBundleMalformed}},
+		{name: "proof-not-cose", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), sortedProofs([]byte("not a proof"), g.proofBy(g.trusted, es)), es))
+		}, want: []error{ErrBundleProof, ErrBundleNotCOSE}},
+		{name: "proof-algorithm-eddsa-minus-8", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			p := g.proofBy(g.trusted, es)
+			p[6] = 0x27 // d2 84 58 27 a2 01 32: {1: -19, ...} → {1: -8, ...}; the signature no longer matters
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{p}, es))
+		}, want: []error{ErrBundleProof, ErrUnexpectedAlg}},
+		{name: "proof-covers-no-event", build: func(g *fixGen) []byte {
+			es := entriesOf(g.next)
+			junk := g.proofBy(g.stranger, entriesOf(g.base))
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), sortedProofs(g.proofBy(g.trusted, es), junk), es))
+		}, want: []error{ErrBundleProof}},
+		{name: "proofs-unsorted", build: func(g *fixGen) []byte {
+			es := entriesOf(append([][]byte{g.next[1]}, g.southEvents()...))
+			ps := sortedProofs(g.proofBy(g.trusted, es[:1]), g.proofBy(g.south, es[1:]))
+			ps[0], ps[1] = ps[1], ps[0]
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), ps, es))
+		}, want: []error{ErrBundleNonCanon}},
+		{name: "proofs-array-claims-2e20", build: func(g *fixGen) []byte {
+			out := append(appendHead(nil, majArray, 3), mapOf(g.headerKVs(3))...)
+			out = append(appendHead(out, majArray, 1<<20), proofsArray(g.ownProofs(entriesOf(g.next)))[1:]...)
+			return g.signed(append(out, eventsArray(entriesOf(g.next))...))
+		}, want: []error{ErrBundleTooMany}},
+		{name: "relayed-south-without-proof", build: func(g *fixGen) []byte {
+			es := entriesOf(append([][]byte{g.next[1]}, g.southEvents()...))
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), [][]byte{g.proofBy(g.trusted, es[:1])}, es))
+		}, want: []error{ErrBundleEvent, ErrAuthorUnproven}},
+		// Times and values outside their physical range (data/record/ranges.go).
+		{name: "header-clock-year-2100", build: hdrWith(func(k []kv) []kv { return set(k, hdrClock, cborOf([]int64{record.MaxTimeMs, 0})) }), want: []error{ErrBundleHeader}},
+		{name: "header-clock-2e62", build: hdrWith(func(k []kv) []kv { return set(k, hdrClock, cborOf([]int64{1 << 62, 0})) }), want: []error{ErrBundleHeader}},
+		{name: "event-clock-2e62", build: evOf(func(g *fixGen) record.Event {
+			e := g.mk.Pull(g.mk.Entity(), g.baleID, "P9", 1)
+			e.Clock.WallMs = 1 << 62
+			return e
+		}), want: []error{ErrBundleEvent, record.ErrOutOfRange}},
+		{name: "event-clock-1970", build: evOf(func(g *fixGen) record.Event {
+			e := g.mk.Pull(g.mk.Entity(), g.baleID, "P9", 1)
+			e.Clock.WallMs = 86_400_000
+			return e
+		}), want: []error{ErrBundleEvent, record.ErrOutOfRange}},
+		{name: "event-pull-masses-sum-to-infinity", build: evOf(func(g *fixGen) record.Event {
+			e := g.mk.Pull(g.mk.Entity(), g.baleID, "P9", 1e308)
+			e.Pull.Kg["pvc"] = 1e308
+			return e
+		}), want: []error{ErrBundleEvent, record.ErrOutOfRange}},
+		{name: "event-bale-gross-1e9-kg", build: evOf(func(g *fixGen) record.Event { return g.mk.Bale(g.mk.Entity(), g.siteID, 1e9) }), want: []error{ErrBundleEvent, record.ErrOutOfRange}},
+		{name: "event-pieces-2e62", build: evOf(func(g *fixGen) record.Event {
+			e := g.mk.Pull(g.mk.Entity(), g.baleID, "P9", 1)
+			e.Pull.Pieces = map[string]int64{"pet_clear": 1 << 62}
+			return e
+		}), want: []error{ErrBundleEvent, record.ErrOutOfRange}},
+		{name: "event-bale-received-1900", build: evOf(func(g *fixGen) record.Event {
+			e := g.mk.Bale(g.mk.Entity(), g.siteID, 500)
+			e.Bale.ReceivedMs = time.Date(1900, 1, 1, 0, 0, 0, 0, time.UTC).UnixMilli()
+			return e
+		}), want: []error{ErrBundleEvent, record.ErrOutOfRange}},
+		{name: "event-name-terminal-escape", build: evOf(func(g *fixGen) record.Event {
+			return g.mk.Site(g.mk.Entity(), "Yard\x1b]0;owned\x07\x1b[2J", 53.1, -2.1)
+		}), want: []error{ErrBundleEvent, record.ErrControlChar}},
+		{name: "event-notes-newline", build: evOf(func(g *fixGen) record.Event {
+			e := g.mk.Site(g.mk.Entity(), "Yard", 53.1, -2.1)
+			e.Site.Notes = "line one\nbale accepted by the lab"
+			return e
+		}), want: []error{ErrBundleEvent, record.ErrControlChar}},
+		{name: "event-tag-bidi-override", build: evOf(func(g *fixGen) record.Event {
+			e := g.mk.Bale(g.mk.Entity(), g.siteID, 500)
+			e.Bale.Tag = "KL-\u202e7140"
+			return e
+		}), want: []error{ErrBundleEvent, record.ErrControlChar}},
+		// Accepted.
+		{name: "relayed-south-with-proof", build: func(g *fixGen) []byte {
+			es := entriesOf(append([][]byte{g.next[1]}, g.southEvents()...))
+			return g.signed(bodyOf(mapOf(g.headerKVs(3)), sortedProofs(g.proofBy(g.trusted, es[:1]), g.proofBy(g.south, es[1:])), es))
+		}, accept: 3},
 		// Accepted and without effect.
 		{name: "replayed-old-bundle", build: func(g *fixGen) []byte { return bytes.Clone(g.baseFile) }, noop: true},
 	}

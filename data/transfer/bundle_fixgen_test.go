@@ -10,6 +10,7 @@ import (
 	"bytes"
 	"crypto/ed25519"
 	"crypto/sha256"
+	"slices"
 	"testing"
 	"time"
 )
@@ -28,6 +29,8 @@ type fixGen struct {
 	t        testing.TB
 	trusted  *DeviceKey
 	stranger *DeviceKey
+	lab      *DeviceKey // the lab's key: the fixture store's own device is not it, but events may claim it
+	south    *DeviceKey // "tablet-south", untrusted by the lab; its events come relayed with its proof
 	mk       *testkit.Maker
 	siteID   record.EntityID
 	baleID   record.EntityID
@@ -37,14 +40,15 @@ type fixGen struct {
 }
 
 func newFixGen(t testing.TB) *fixGen {
-	g := &fixGen{t: t, trusted: xKey(t, 0x11), stranger: xKey(t, 0x22), mk: testkit.NewMaker(0x5a, 7)}
+	g := &fixGen{t: t, trusted: xKey(t, 0x11), stranger: xKey(t, 0x22), lab: xKey(t, 0x33), south: xKey(t, 0x44), mk: testkit.NewMaker(0x5a, 7)}
 	m := g.mk
+	m.Dev = g.trusted.DeviceID() // the tablet's events are its own: their author is its key's device
 	g.siteID, g.baleID = m.Entity(), m.Entity()
 	site := m.Site(g.siteID, "Northgate scrap yard", 53.48, -2.24)
 	siteRaw := testkit.Enc(t, site)
 	g.base = [][]byte{siteRaw, testkit.Enc(t, m.Bale(g.baleID, g.siteID, 548)), testkit.Enc(t, m.Pull(m.Entity(), g.baleID, "P1", 11.2))}
 	var err error
-	g.baseFile, err = SealBundle(g.trusted, g.header(1), g.base)
+	g.baseFile, err = SealBundle(g.trusted, g.header(1), g.base, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -58,7 +62,7 @@ func newFixGen(t testing.TB) *fixGen {
 
 // header is the header of the tablet's bundle seq.
 func (g *fixGen) header(seq uint64) BundleHeader {
-	h := BundleHeader{Device: g.mk.Dev, Key: g.trusted.Fingerprint(), Seq: seq,
+	h := BundleHeader{Device: g.trusted.DeviceID(), Key: g.trusted.Fingerprint(), Seq: seq,
 		WallMs: testkit.XferNow.Add(-time.Hour).UnixMilli(), Part: 1, Parts: 1}
 	if seq > 1 {
 		h.Prev = sha256.Sum256(g.baseFile)
@@ -136,11 +140,26 @@ func entriesOf(raws [][]byte) []entry {
 	return out
 }
 
-// bodyOf assembles [header, [[id, event]...]] from raw parts.
-func bodyOf(header []byte, es []entry) []byte {
-	out := appendHead(nil, majArray, 2)
+// bodyOf assembles [header, [proof...], [[id, event]...]] from raw parts;
+// proofs are written in the order given.
+func bodyOf(header []byte, proofs [][]byte, es []entry) []byte {
+	out := appendHead(nil, majArray, 3)
 	out = append(out, header...)
-	out = appendHead(out, majArray, uint64(len(es)))
+	out = append(out, proofsArray(proofs)...)
+	return append(out, eventsArray(es)...)
+}
+
+func proofsArray(proofs [][]byte) []byte {
+	out := appendHead(nil, majArray, uint64(len(proofs)))
+	for _, p := range proofs {
+		out = appendHead(out, majBytes, uint64(len(p)))
+		out = append(out, p...)
+	}
+	return out
+}
+
+func eventsArray(es []entry) []byte {
+	out := appendHead(nil, majArray, uint64(len(es)))
 	for _, e := range es {
 		out = appendHead(out, majArray, 2)
 		out = appendHead(out, majBytes, uint64(len(e.id)))
@@ -151,9 +170,51 @@ func bodyOf(header []byte, es []entry) []byte {
 	return out
 }
 
+// proofBy is key's authorship proof over the ids of es.
+func (g *fixGen) proofBy(key *DeviceKey, es []entry) []byte {
+	var ids []record.EventID
+	for _, e := range es {
+		ids = append(ids, record.EventID(e.id))
+	}
+	p, err := NewAuthorProof(key, ids)
+	if err != nil {
+		g.t.Fatal(err)
+	}
+	return p
+}
+
+// ownProofs is the tablet's proof over those of es it authored (the
+// events whose author AuthorOf reads as the tablet), as SealBundle makes
+// it; none when there are none.
+func (g *fixGen) ownProofs(es []entry) [][]byte {
+	var own []entry
+	for _, e := range es {
+		if dev, ok := record.AuthorOf(e.raw); ok && dev == g.trusted.DeviceID() && len(e.id) == 32 {
+			own = append(own, e)
+		}
+	}
+	if len(own) == 0 {
+		return nil
+	}
+	return [][]byte{g.proofBy(g.trusted, own)}
+}
+
+// body is bodyOf with the tablet's own proof.
+func (g *fixGen) body(header []byte, es []entry) []byte {
+	return bodyOf(header, g.ownProofs(es), es)
+}
+
+// prefix is the body up to the events array: the body head, the
+// header (stating count events) and the tablet's proof over raws.
+func (g *fixGen) prefix(count int, raws [][]byte) []byte {
+	out := appendHead(nil, majArray, 3)
+	out = append(out, mapOf(g.headerKVs(count))...)
+	return append(out, proofsArray(g.ownProofs(entriesOf(raws)))...)
+}
+
 // goodBody is the valid body of bundle 2 with the given events.
 func (g *fixGen) goodBody(raws [][]byte) []byte {
-	return bodyOf(mapOf(g.headerKVs(len(raws))), entriesOf(raws))
+	return g.body(mapOf(g.headerKVs(len(raws))), entriesOf(raws))
 }
 
 // stdProtected is {1: -19, 4: public key} of key.
@@ -212,4 +273,92 @@ func flip(b []byte, i int, x byte) []byte {
 	c := bytes.Clone(b)
 	c[i] ^= x
 	return c
+}
+
+// seedKey is the key of a 32-byte seed of b (the fixture keys: 0x11 the
+// tablet, 0x22 a stranger, 0x33 the lab, 0x44 tablet-south).
+func seedKey(b byte) *DeviceKey {
+	k, err := NewDeviceKeyFromSeed(bytes.Repeat([]byte{b}, 32))
+	if err != nil {
+		panic(err)
+	}
+	return k
+}
+
+func devBytes(k *DeviceKey) []byte { d := k.DeviceID(); return d[:] }
+
+// cborOf is the deterministic encoding of v.
+func cborOf(v any) []byte {
+	b, err := detEnc.Marshal(v)
+	if err != nil {
+		panic(err)
+	}
+	return b
+}
+
+// makerOf makes events authored by key's device.
+func (g *fixGen) makerOf(key *DeviceKey) *testkit.Maker {
+	m := testkit.NewMaker(key.Public()[0], 11)
+	m.Dev = key.DeviceID()
+	return m
+}
+
+// labEdit is an event that claims the lab as its author and supersedes
+// the tablet's site: the impersonation a bundle must not carry.
+func (g *fixGen) labEdit() []byte {
+	return testkit.Enc(g.t, g.makerOf(g.lab).Site(g.siteID, "Northgate scrap yard (closed, per lab)", 53.48, -2.24, record.IDOf(g.base[0])))
+}
+
+// southEvents are a site and a bale by tablet-south, which the lab does
+// not trust; tablet-north relays them.
+func (g *fixGen) southEvents() [][]byte {
+	m := g.makerOf(g.south)
+	site := m.Entity()
+	return [][]byte{
+		testkit.Enc(g.t, m.Site(site, "Southmere depot", 51.9, -1.2)),
+		testkit.Enc(g.t, m.Bale(m.Entity(), site, 612)),
+	}
+}
+
+// stmtOf encodes an authorship statement with the given fields, ids in
+// the order given (so a case can break the order).
+func stmtOf(format string, version uint64, dev record.DeviceID, ids [][]byte) []byte {
+	out := appendHead(nil, majMap, 4)
+	out = appendHead(out, majUint, 1)
+	out = appendHead(out, majText, uint64(len(format)))
+	out = append(out, format...)
+	out = appendHead(out, majUint, 2)
+	out = appendHead(out, majUint, version)
+	out = appendHead(out, majUint, 3)
+	out = appendHead(out, majBytes, 16)
+	out = append(out, dev[:]...)
+	out = appendHead(out, majUint, 4)
+	out = appendHead(out, majArray, uint64(len(ids)))
+	for _, id := range ids {
+		out = appendHead(out, majBytes, uint64(len(id)))
+		out = append(out, id...)
+	}
+	return out
+}
+
+// signStmt wraps a statement (or any payload) in a COSE_Sign1 of key.
+func (g *fixGen) signStmt(key *DeviceKey, stmt []byte) []byte {
+	p := stdProtected(key)
+	return sign1(p, []byte{0xa0}, stmt, sigOver(key, p, stmt))
+}
+
+// idsOf lists the entries' ids, ascending.
+func idsOf(es []entry) [][]byte {
+	var ids [][]byte
+	for _, e := range es {
+		ids = append(ids, e.id)
+	}
+	slices.SortFunc(ids, bytes.Compare)
+	return ids
+}
+
+// sortedProofs lists proofs in the bytewise order a bundle requires.
+func sortedProofs(ps ...[]byte) [][]byte {
+	slices.SortFunc(ps, bytes.Compare)
+	return ps
 }

@@ -2,6 +2,7 @@ package transfer
 
 import (
 	"baleassay/data/internal/testkit"
+	"baleassay/data/record"
 	"baleassay/data/store"
 	"bytes"
 	"errors"
@@ -75,10 +76,35 @@ func TestBundleFixturesGenerate(t *testing.T) {
 	}
 }
 
+// fixClass sorts a fixture into the class of hostile input it tries,
+// for the figures of the report (DEVELOPERS.md).
+func fixClass(name string) string {
+	switch {
+	case strings.HasPrefix(name, "header-device-") || strings.HasPrefix(name, "event-impersonates-") ||
+		strings.HasPrefix(name, "proof") || strings.HasPrefix(name, "relayed-"):
+		return "authorship"
+	case strings.HasPrefix(name, "header-clock-year") || strings.HasPrefix(name, "header-clock-2e") || strings.HasPrefix(name, "event-clock-"):
+		return "clock"
+	case strings.Contains(name, "terminal-escape") || strings.Contains(name, "newline") || strings.Contains(name, "bidi"):
+		return "text"
+	case strings.HasPrefix(name, "event-") && (strings.Contains(name, "mass") || strings.Contains(name, "kg") || strings.Contains(name, "pieces") ||
+		strings.Contains(name, "latitude") || strings.Contains(name, "longitude") || strings.Contains(name, "received") || strings.Contains(name, "parts")):
+		return "values"
+	case strings.HasPrefix(name, "event-"):
+		return "event encoding"
+	}
+	return "file, envelope, header, body"
+}
+
+// fixTally counts, per class, the fixtures tried, refused with their
+// specific error (or accepted as they must be), panics, hangs and lost
+// events.
+type fixTally struct{ tried, specific, panics, hangs, lost int }
+
 // TestBundleFixtures imports every committed fixture into a fresh lab
 // store: each is refused with its specific error (or, for the replay,
 // accepted as a no-op), the store's content hash does not change, and
-// nothing panics.
+// nothing panics or hangs.
 func TestBundleFixtures(t *testing.T) {
 	g := newFixGen(t)
 	cases := fixCases()
@@ -87,8 +113,15 @@ func TestBundleFixtures(t *testing.T) {
 	}
 	var slowest time.Duration
 	var slowName string
+	tally := map[string]*fixTally{}
 	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
+		cl := tally[fixClass(c.name)]
+		if cl == nil {
+			cl = &fixTally{}
+			tally[fixClass(c.name)] = cl
+		}
+		cl.tried++
+		ok := t.Run(c.name, func(t *testing.T) {
 			raw, err := os.ReadFile(filepath.Join(fixtureDir, c.name+BundleExt))
 			if err != nil {
 				t.Fatalf("%v (run go test ./data/transfer -run Fixtures -update)", err)
@@ -96,9 +129,47 @@ func TestBundleFixtures(t *testing.T) {
 			s, im := fixtureStore(t, g)
 			before := xContentHash(t, s)
 			start := time.Now()
-			fr := im.ImportBytes(raw)
+			type outcome struct {
+				fr    FileReport
+				panic any
+			}
+			done := make(chan outcome, 1)
+			go func() {
+				defer func() {
+					if p := recover(); p != nil {
+						done <- outcome{panic: p}
+					}
+				}()
+				done <- outcome{fr: im.ImportBytes(raw)}
+			}()
+			var fr FileReport
+			select {
+			case o := <-done:
+				if o.panic != nil {
+					cl.panics++
+					t.Fatalf("panic: %v", o.panic)
+				}
+				fr = o.fr
+			case <-time.After(10 * time.Second):
+				cl.hangs++
+				t.Fatal("import hung for 10 s")
+			}
 			if d := time.Since(start); d > slowest {
 				slowest, slowName = d, c.name
+			}
+			if c.accept > 0 {
+				raws, _ := fixEvents(raw)
+				for _, r := range raws {
+					if has, _ := s.Has(record.IDOf(r)); !has {
+						cl.lost++
+					}
+				}
+			}
+			if c.accept > 0 {
+				if fr.Err != nil || fr.New != c.accept {
+					t.Fatalf("want accepted with %d new events, got %+v", c.accept, fr)
+				}
+				return
 			}
 			if after := xContentHash(t, s); after != before {
 				t.Errorf("store content changed (err %v)", fr.Err)
@@ -121,8 +192,31 @@ func TestBundleFixtures(t *testing.T) {
 				t.Errorf("error %q lacks the expected decoder error type", fr.Err)
 			}
 		})
+		if ok {
+			cl.specific++
+		}
 	}
 	t.Logf("%d fixtures; slowest import %v (%s)", len(cases), slowest, slowName)
+	classes := make([]string, 0, len(tally))
+	for k := range tally {
+		classes = append(classes, k)
+	}
+	sort.Strings(classes)
+	for _, k := range classes {
+		c := tally[k]
+		t.Logf("class %-28s tried %3d, refused with the specific error (or accepted as required) %3d, panics %d, hangs %d, events lost %d", k, c.tried, c.specific, c.panics, c.hangs, c.lost)
+	}
+}
+
+// fixEvents slices the events out of a bundle without any check, to see
+// what an accepted fixture carried.
+func fixEvents(raw []byte) ([][]byte, error) {
+	env, err := parseSign1(raw)
+	if err != nil {
+		return nil, err
+	}
+	_, _, raws, _, err := decodeBody(env.payload, env.payloadOff)
+	return raws, err
 }
 
 // TestBundleFixtureNames checks that fixture names say the failure mode

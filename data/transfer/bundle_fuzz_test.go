@@ -44,7 +44,13 @@ func FuzzBundleDecode(f *testing.F) {
 			}
 			return
 		}
-		again, err := SealBundle(g.trusted, ob.Header, ob.Raws)
+		var relayed [][]byte
+		for _, p := range ob.Proofs {
+			if p.Device != ob.Header.Device {
+				relayed = append(relayed, p.Raw)
+			}
+		}
+		again, err := SealBundle(g.trusted, ob.Header, ob.Raws, relayed)
 		if err != nil {
 			t.Fatalf("re-sealing an accepted bundle: %v", err)
 		}
@@ -110,6 +116,7 @@ func FuzzVerifySign1(f *testing.F) {
 // v1" and a []byte literal).
 func writeFuzzSeeds(t *testing.T, cases []fixCase) {
 	keep := map[string]bool{"replayed-old-bundle": true, "truncated-in-payload": true, "header-duplicate-key": true,
+		"relayed-south-with-proof": true, "event-impersonates-lab-no-proof": true, "proof-ids-unsorted": true, "proof-own-lists-too-few": true,
 		"unknown-signer": true, "events-array-claims-2e32": true, "event-nan-mass": true, "signature-byte-flipped": true,
 		"header-nonminimal-seq": true, "event-id-mismatch": true, "algorithm-only-unprotected": true}
 	for _, target := range []string{"FuzzBundleDecode", "FuzzImportBundle", "FuzzVerifySign1"} {

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"sort"
 
 	"github.com/fxamacker/cbor/v2"
@@ -12,7 +13,7 @@ import (
 
 // BundleVersion is the version of the bundle format this code writes
 // and the only one it reads.
-const BundleVersion = 1
+const BundleVersion = 2
 
 // Header labels of the bundle body (see bundle.cddl).
 const (
@@ -189,6 +190,8 @@ func decodeHeader(b []byte, off int) (BundleHeader, error) {
 		return h, field("prev", "previous-bundle hash has %d bytes, want 32", len(w.Prev))
 	case w.Clock[0] < 0 || w.Clock[1] < 0:
 		return h, field("clock", "clock stamp [%d, %d] is negative", w.Clock[0], w.Clock[1])
+	case w.Clock[0] < record.MinTimeMs || w.Clock[0] >= record.MaxTimeMs || w.Clock[1] > math.MaxUint32:
+		return h, field("clock", "clock stamp [%d, %d] lies outside 2000–2099 (the exporting device's clock is wrong)", w.Clock[0], w.Clock[1])
 	case w.Part[0] < 1 || w.Part[1] < w.Part[0]:
 		return h, field("part", "part [%d, %d] is not 1 ≤ part ≤ parts", w.Part[0], w.Part[1])
 	}
@@ -199,7 +202,7 @@ func decodeHeader(b []byte, off int) (BundleHeader, error) {
 	h.Count, h.Part, h.Parts = w.Count, uint64(w.Part[0]), uint64(w.Part[1])
 	canon, err := encodeHeader(h)
 	if err != nil {
-		return h, fmt.Errorf("data: re-encoding header: %w", err)
+		return h, fmt.Errorf("re-encoding header: %w", err)
 	}
 	if string(canon) != string(b) {
 		return h, bundleErr(ErrBundleNonCanon, "header", off, "header does not re-encode to the same bytes (RFC 8949 §4.2)")

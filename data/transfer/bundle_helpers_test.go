@@ -6,13 +6,14 @@ package transfer
 
 import (
 	"baleassay/data/store"
+	"crypto/sha256"
 	"testing"
 	"time"
 )
 
 func xferStore(t testing.TB, dir string, now time.Time) *store.Store {
 	t.Helper()
-	s, err := store.OpenWith(dir, store.Options{Now: func() time.Time { return now }})
+	s, _, err := OpenStore(dir, store.Options{Now: func() time.Time { return now }})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -30,7 +31,23 @@ func xMergeHash(t testing.TB, s *store.Store) [32]byte {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return h
+	// The stored authorship proofs are a function of the bundles
+	// imported as well.
+	sum := sha256.New()
+	sum.Write(h[:])
+	n := 0
+	err = s.ForEachMeta(metaProof, func(k string, v []byte) error {
+		n++
+		sum.Write([]byte(k))
+		sum.Write(v)
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out [32]byte
+	copy(out[:], sum.Sum(nil))
+	return out
 }
 
 func xContentHash(t testing.TB, s *store.Store) [32]byte {

@@ -20,23 +20,42 @@ const debianPython = "/usr/bin/python3"
 // implementation, and prints what it sees as JSON.
 const interopScript = `
 import sys, json, hashlib, cbor2
+from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PublicKey
+
+def verify(cose):
+  # RFC 9052 §4.4: Sig_structure = ["Signature1", protected, external_aad, payload]
+  assert isinstance(cose, cbor2.CBORTag) and cose.tag == 18, "tag 18"
+  prot, unprot, payload, sig = cose.value
+  p = cbor2.loads(prot)
+  tbs = cbor2.dumps(["Signature1", prot, b"", payload])
+  Ed25519PublicKey.from_public_bytes(p[4]).verify(sig, tbs)  # raises if the signature is wrong
+  return p, unprot, payload, sig
+
 raw = open(sys.argv[1], "rb").read()
 msg = cbor2.loads(raw)
-assert isinstance(msg, cbor2.CBORTag) and msg.tag == 18, "outer tag"
-prot, unprot, payload, sig = msg.value
-p = cbor2.loads(prot)
-header, events = cbor2.loads(payload)
+p, unprot, payload, sig = verify(msg)
+header, proofs, events = cbor2.loads(payload)
 out = {
   "alg": p[1], "kid": p[4].hex(), "unprotected": len(unprot), "siglen": len(sig),
   "header": {"format": header[1], "version": header[2], "device": header[3].hex(), "key": header[4].hex(),
              "seq": header[5], "prev": header[6].hex(), "clock": header[7], "count": header[8], "part": header[9]},
-  "events": [],
+  "signer_device": hashlib.sha256(p[4]).digest()[:16].hex(),
+  "proofs": [], "events": [],
 }
+listed = {}
+for pr in proofs:
+  pp, _, st, _ = verify(cbor2.loads(pr))
+  st = cbor2.loads(st)
+  dev = hashlib.sha256(pp[4]).digest()[:16].hex()
+  out["proofs"].append({"format": st[1], "version": st[2], "device": st[3].hex(), "key_device": dev, "ids": len(st[4])})
+  for i in st[4]:
+    listed.setdefault(i.hex(), set()).add(dev)
 for ident, evbytes in events:
   ev = cbor2.loads(evbytes)
   out["events"].append({"id": ident.hex(), "sha256": hashlib.sha256(evbytes).hexdigest(),
     "version": ev[0], "entity": ev[1].hex(), "kind": ev[2], "device": ev[3].hex(), "clock": ev[4],
-    "supersedes": [s.hex() for s in ev.get(5, [])], "deleted": ev.get(6, False)})
+    "supersedes": [s.hex() for s in ev.get(5, [])], "deleted": ev.get(6, False),
+    "proven": ev[3].hex() in listed.get(hashlib.sha256(evbytes).hexdigest(), set())})
 print(json.dumps(out))
 `
 
@@ -56,6 +75,14 @@ type interopOut struct {
 		Count   int      `json:"count"`
 		Part    []uint64 `json:"part"`
 	} `json:"header"`
+	SignerDevice string `json:"signer_device"`
+	Proofs       []struct {
+		Format    string `json:"format"`
+		Version   int    `json:"version"`
+		Device    string `json:"device"`
+		KeyDevice string `json:"key_device"`
+		IDs       int    `json:"ids"`
+	} `json:"proofs"`
 	Events []struct {
 		ID         string   `json:"id"`
 		SHA256     string   `json:"sha256"`
@@ -66,20 +93,21 @@ type interopOut struct {
 		Clock      []int64  `json:"clock"`
 		Supersedes []string `json:"supersedes"`
 		Deleted    bool     `json:"deleted"`
+		Proven     bool     `json:"proven"`
 	} `json:"events"`
 }
 
-// needPython returns Debian's python3 with cbor2, or stops the test: in
+// needPython returns Debian's python3 with cbor2 and cryptography, or stops the test: in
 // CI (env CI set) a missing module is a failure, elsewhere a skip that
 // says what to install.
 func needPython(t *testing.T) string {
 	t.Helper()
-	out, err := exec.Command(debianPython, "-c", "import cbor2").CombinedOutput()
+	out, err := exec.Command(debianPython, "-c", "import cbor2, cryptography.hazmat.primitives.asymmetric.ed25519").CombinedOutput()
 	if err == nil {
 		return debianPython
 	}
 	msg := "independent CBOR decoder missing: " + strings.TrimSpace(string(out)) + " " + err.Error() +
-		"; install it with: apt-get install python3-cbor2 (or run scripts/deps.sh)"
+		"; install it with: apt-get install python3-cbor2 python3-cryptography (or run scripts/deps.sh)"
 	if os.Getenv("CI") != "" {
 		t.Fatal(msg)
 	}
@@ -88,8 +116,12 @@ func needPython(t *testing.T) string {
 }
 
 // TestBundleInteropCBOR2 exports a bundle with every event kind, an edit
-// and a deletion, decodes it with python3-cbor2 and checks that it sees
-// the same envelope, header and events as this package.
+// and a deletion, decodes it with python3-cbor2, verifies the bundle's
+// and the authorship proofs' Ed25519 signatures with python3-cryptography
+// (OpenSSL), and checks that it sees the same envelope, header, proofs
+// and events as this package, every event listed by a proof of the
+// device its author field names, and the device id as the first 16
+// bytes of SHA-256 of the key.
 func TestBundleInteropCBOR2(t *testing.T) {
 	py := needPython(t)
 	dir := t.TempDir()
@@ -138,6 +170,10 @@ func TestBundleInteropCBOR2(t *testing.T) {
 		len(gh.Clock) != 2 || gh.Clock[0] != h.WallMs || len(gh.Part) != 2 || gh.Part[0] != 1 || gh.Part[1] != 1 {
 		t.Errorf("header seen by cbor2 %+v, this package %+v", gh, h)
 	}
+	if got.SignerDevice != h.Device.String() || len(got.Proofs) != 1 || got.Proofs[0].Device != h.Device.String() ||
+		got.Proofs[0].KeyDevice != h.Device.String() || got.Proofs[0].Format != AuthorshipFormat || got.Proofs[0].IDs != len(raws) {
+		t.Errorf("authorship seen by cbor2: signer device %s, proofs %+v; header device %s", got.SignerDevice, got.Proofs, h.Device)
+	}
 	if len(got.Events) != len(raws) || !got.Events[4].Deleted {
 		t.Fatalf("cbor2 saw %d events (last deleted: %v), want %d ending in a deletion", len(got.Events), len(got.Events) == 5 && got.Events[4].Deleted, len(raws))
 	}
@@ -153,7 +189,7 @@ func TestBundleInteropCBOR2(t *testing.T) {
 		}
 		if ge.ID != id.String() || ge.SHA256 != id.String() || ge.Entity != hex.EncodeToString(e.Entity[:]) ||
 			ge.Kind != int(e.Kind) || ge.Device != e.Device.String() || ge.Version != int(e.Version) ||
-			len(ge.Clock) != 2 || ge.Clock[0] != e.Clock.WallMs || ge.Deleted != e.Deleted || strings.Join(ge.Supersedes, ",") != strings.Join(sup, ",") {
+			len(ge.Clock) != 2 || ge.Clock[0] != e.Clock.WallMs || ge.Deleted != e.Deleted || strings.Join(ge.Supersedes, ",") != strings.Join(sup, ",") || !ge.Proven {
 			t.Errorf("event %d seen by cbor2 %+v, this package %+v", i, ge, e)
 		}
 	}

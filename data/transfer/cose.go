@@ -63,7 +63,7 @@ func sealSign1(priv ed25519.PrivateKey, payload []byte) ([]byte, error) {
 	msg.Headers.Protected[cose.HeaderLabelKeyID] = []byte(priv.Public().(ed25519.PublicKey))
 	msg.Payload = payload
 	if err := msg.Sign(nil, nil, ed25519Signer{priv}); err != nil {
-		return nil, fmt.Errorf("data: signing bundle: %w", err)
+		return nil, fmt.Errorf("signing bundle: %w", err)
 	}
 	return msg.MarshalCBOR()
 }

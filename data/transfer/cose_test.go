@@ -1,6 +1,7 @@
 package transfer
 
 import (
+	"baleassay/data/internal/testkit"
 	"baleassay/data/record"
 	"bytes"
 	"crypto/ed25519"
@@ -113,8 +114,10 @@ func xTrustOnly(keys ...*DeviceKey) TrustFunc {
 func TestSealOpenRoundTrip(t *testing.T) {
 	k := xKey(t, 1)
 	h := BundleHeader{Device: record.DeviceID{1, 2, 3}, Seq: 2, Prev: [32]byte{9}, WallMs: 1_780_000_000_000, Logical: 3, Part: 1, Parts: 1}
-	raws := [][]byte{[]byte("first"), []byte("second event bytes")}
-	b, err := SealBundle(k, h, raws)
+	m := testkit.NewMaker(1, 1)
+	m.Dev = k.DeviceID()
+	raws := [][]byte{testkit.Enc(t, m.Site(m.Entity(), "First yard", 50, 1)), testkit.Enc(t, m.Site(m.Entity(), "Second yard", 51, 1))}
+	b, err := SealBundle(k, h, raws, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -122,18 +125,24 @@ func TestSealOpenRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	h.Key, h.Count = k.Fingerprint(), 2
+	// SealBundle writes the key's own device, whatever the header said.
+	h.Key, h.Count, h.Device = k.Fingerprint(), 2, k.DeviceID()
 	if ob.Header != h {
 		t.Fatalf("header %+v, want %+v", ob.Header, h)
 	}
 	if len(ob.Raws) != 2 || !bytes.Equal(ob.Raws[1], raws[1]) {
 		t.Fatalf("raws %q", ob.Raws)
 	}
+	if len(ob.Proofs) != 1 || ob.Proofs[0].Device != k.DeviceID() || ob.Proofs[0].Len() != 2 || !ob.Proofs[0].Has(record.IDOf(raws[0])) {
+		t.Fatalf("proofs %+v", ob.Proofs)
+	}
 }
 
 func TestOpenRefusesSigners(t *testing.T) {
 	k, other := xKey(t, 1), xKey(t, 2)
-	b, err := SealBundle(k, BundleHeader{Seq: 1, Part: 1, Parts: 1}, [][]byte{[]byte("x")})
+	m := testkit.NewMaker(1, 1)
+	m.Dev = k.DeviceID()
+	b, err := SealBundle(k, BundleHeader{Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, [][]byte{testkit.Enc(t, m.Site(m.Entity(), "Yard", 50, 1))}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

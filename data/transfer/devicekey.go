@@ -1,6 +1,7 @@
 package transfer
 
 import (
+	"baleassay/data/record"
 	"crypto/ed25519"
 	"crypto/rand"
 	"crypto/x509"
@@ -36,6 +37,24 @@ func (k *DeviceKey) Public() ed25519.PublicKey { return k.priv.Public().(ed25519
 // Fingerprint returns SHA-256 of the public key.
 func (k *DeviceKey) Fingerprint() Fingerprint { return FingerprintOf(k.Public()) }
 
+// DeviceID is the id of the device this key belongs to: see DeviceIDOf.
+func (k *DeviceKey) DeviceID() record.DeviceID { return k.Fingerprint().Device() }
+
+// DeviceIDOf is the device id bound to an Ed25519 public key: the first
+// 16 bytes of SHA-256 of the raw 32-byte key, so the same as the first
+// 32 hex digits of its fingerprint. A device id therefore names exactly
+// one key (finding a second key with the same id takes about 2¹²⁸
+// tries), and anyone holding the key can check the id without asking
+// anybody: an event's author field says whose signature it must carry.
+func DeviceIDOf(pub ed25519.PublicKey) record.DeviceID { return FingerprintOf(pub).Device() }
+
+// Device is the device id bound to the key with this fingerprint.
+func (f Fingerprint) Device() record.DeviceID {
+	var d record.DeviceID
+	copy(d[:], f[:len(d)])
+	return d
+}
+
 // PublicPEM returns the public key as a PEM "PUBLIC KEY" block
 // (SubjectPublicKeyInfo, RFC 8410 §4), the file `bale trust add` reads.
 func (k *DeviceKey) PublicPEM() []byte {
@@ -57,7 +76,7 @@ func LoadOrCreateDeviceKey(dir string) (key *DeviceKey, created bool, err error)
 	}
 	seed := make([]byte, ed25519.SeedSize)
 	if _, err := rand.Read(seed); err != nil {
-		return nil, false, fmt.Errorf("data: no randomness for a device key: %w", err)
+		return nil, false, fmt.Errorf("no randomness for a device key: %w", err)
 	}
 	key, _ = NewDeviceKeyFromSeed(seed)
 	der, err := x509.MarshalPKCS8PrivateKey(key.priv)
@@ -75,17 +94,17 @@ func LoadOrCreateDeviceKey(dir string) (key *DeviceKey, created bool, err error)
 		return key, false, err
 	}
 	if err != nil {
-		return nil, false, fmt.Errorf("data: creating device key: %w", err)
+		return nil, false, fmt.Errorf("creating device key: %w", err)
 	}
 	if _, err := f.Write(block); err != nil {
 		f.Close()
 		os.Remove(path)
-		return nil, false, fmt.Errorf("data: writing device key: %w", err)
+		return nil, false, fmt.Errorf("writing device key: %w", err)
 	}
 	if err := f.Sync(); err != nil {
 		f.Close()
 		os.Remove(path)
-		return nil, false, fmt.Errorf("data: syncing device key: %w", err)
+		return nil, false, fmt.Errorf("syncing device key: %w", err)
 	}
 	if err := f.Close(); err != nil {
 		return nil, false, err
@@ -97,6 +116,9 @@ func LoadOrCreateDeviceKey(dir string) (key *DeviceKey, created bool, err error)
 }
 
 func loadDeviceKey(path string) (*DeviceKey, error) {
+	if err := checkPrivateDir(filepath.Dir(path)); err != nil {
+		return nil, err
+	}
 	st, err := os.Stat(path)
 	if err != nil {
 		return nil, err

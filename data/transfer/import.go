@@ -1,6 +1,7 @@
 package transfer
 
 import (
+	"baleassay/assess"
 	"baleassay/data/record"
 	"baleassay/data/store"
 	"bytes"
@@ -203,18 +204,16 @@ func ReadBundleFile(path string, max int64) ([]byte, error) {
 	if max <= 0 {
 		max = MaxBundleBytes
 	}
-	f, err := os.Open(path)
+	// A FIFO, a device or a folder named *.bale is refused from its
+	// status, before it is opened (opening a FIFO waits for a writer).
+	f, st, err := assess.OpenRegular(path)
+	if errors.Is(err, assess.ErrNotRegular) {
+		return nil, bundleErr(ErrBundleNotFile, "file", -1, "%v: only regular files are read", err)
+	}
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	st, err := f.Stat()
-	if err != nil {
-		return nil, err
-	}
-	if !st.Mode().IsRegular() {
-		return nil, bundleErr(ErrBundleMalformed, "file", -1, "%s is not a regular file", path)
-	}
 	if st.Size() > max {
 		return nil, bundleErr(ErrBundleTooLarge, "file", -1, "%d bytes, limit %d", st.Size(), max)
 	}
@@ -293,7 +292,13 @@ func (im *Importer) apply(p preparedFile, prog func(Progress)) FileReport {
 		fr.Err = err
 		return fr
 	}
+	for _, p := range ob.Proofs {
+		if p.Device != im.Store.DeviceID() { // this device can always prove its own events afresh
+			meta[metaProofKey(p.Raw)] = p.Raw
+		}
+	}
 	fr.Flags, fr.Replay = append(flags, im.skewFlags(ob.Header)...), replay
+	fr.Flags = append(fr.Flags, behindFlags(ob)...)
 	prog(Progress{Step: "applying", Events: fr.Events})
 	res, err := im.Store.ApplyChecked(p.batch, meta, store.ApplyOptions{AllowDemo: im.AllowDemo})
 	if err != nil {
@@ -381,21 +386,48 @@ func (im *Importer) skewFlags(h BundleHeader) []string {
 	if im.Now != nil {
 		now = im.Now
 	}
-	d := time.UnixMilli(h.WallMs).Sub(now())
+	// Both stamps lie in 2000–2100 (the header is checked), so the
+	// difference is far from overflowing; FormatSkew never converts it to
+	// a time.Duration anyway.
+	d := h.WallMs - now().UnixMilli()
 	switch {
-	case d > SkewAhead:
-		return []string{fmt.Sprintf("clock skew: device %s stamped this bundle %s ahead of this device's clock; check that device's date and time", h.Device, roundSkew(d))}
-	case -d > SkewBehind:
-		return []string{fmt.Sprintf("clock skew: bundle stamped %s before this device's clock; an old file, or that device's clock is behind", roundSkew(-d))}
+	case d > SkewAhead.Milliseconds():
+		return []string{fmt.Sprintf("clock skew: device %s stamped this bundle %s ahead of this device's clock; check that device's date and time", h.Device, record.FormatSkew(d))}
+	case -d > SkewBehind.Milliseconds():
+		return []string{fmt.Sprintf("clock skew: bundle stamped %s before this device's clock; an old file, or that device's clock is behind", record.FormatSkew(-d))}
 	}
 	return nil
 }
 
-func roundSkew(d time.Duration) string {
-	if d >= 48*time.Hour {
-		return fmt.Sprintf("%.0f days", d.Hours()/24)
+// behindFlags flags the exporting device's own events stamped more than
+// SkewBehind before the bundle's clock: old records sent again, or
+// records saved while that device's clock was behind, which then sort
+// before edits they may have replaced. One line, with the count and the
+// furthest example. Relayed events of other devices are not flagged
+// (their age says nothing about the exporter's clock).
+func behindFlags(ob *OpenedBundle) []string {
+	h := ob.Header
+	n, worst, worstAt := 0, int64(0), -1
+	for i, raw := range ob.Raws {
+		if dev, _ := record.AuthorOf(raw); dev != h.Device {
+			continue
+		}
+		ms, ok := record.ClockOf(raw)
+		if !ok {
+			continue
+		}
+		if d := h.WallMs - ms.WallMs; d > SkewBehind.Milliseconds() {
+			n++
+			if d > worst {
+				worst, worstAt = d, i
+			}
+		}
 	}
-	return d.Round(time.Minute).String()
+	if n == 0 {
+		return nil
+	}
+	return []string{fmt.Sprintf("clock skew: %d event(s) of device %s stamped more than %s before the bundle's own clock, up to %s (events[%d]): old records sent again, or that device's clock was behind when they were saved",
+		n, h.Device, record.FormatSkew(SkewBehind.Milliseconds()), record.FormatSkew(worst), worstAt)}
 }
 
 // gaps lists missing sequence numbers for the given devices.
@@ -429,8 +461,8 @@ func (f FileReport) SummaryLine() string {
 		return fmt.Sprintf("%s: refused: %v", name, f.Err)
 	}
 	dev := hex.EncodeToString(f.Device[:])
-	s := fmt.Sprintf("%s: bundle %d (part %d of %d) from device %s, signed by %q: %d new, %d already present, %d conflicts created",
-		name, f.Seq, f.Part, f.Parts, dev, f.Signer, f.New, f.Present, f.Conflicts)
+	s := fmt.Sprintf("%s: bundle %d (part %d of %d) from device %s, signed by %q: %d new, %d already present, %d %s created",
+		name, f.Seq, f.Part, f.Parts, dev, f.Signer, f.New, f.Present, f.Conflicts, plural(f.Conflicts, "conflict", "conflicts"))
 	if f.Replay {
 		s += " (imported before: nothing changed)"
 	}

@@ -34,6 +34,7 @@ type simWorld struct {
 	skewed  int // index of the device whose clock is a year ahead, or -1
 	events  map[record.EventID]bool
 	counter int
+	relayed int // events of other devices passed on in exports, with their authors' proofs
 }
 
 func newSimWorld(t testing.TB, n int, skewed int) *simWorld {
@@ -44,15 +45,12 @@ func newSimWorld(t testing.TB, n int, skewed int) *simWorld {
 			d.now = testkit.XferNow.AddDate(1, 0, 0) // Source: issue 5 §4, "clocks skewed by a year"
 		}
 		now := d.now
-		s, err := store.OpenWith(d.dir, store.Options{Now: func() time.Time { return now }})
+		s, key, err := OpenStore(d.dir, store.Options{Now: func() time.Time { return now }})
 		if err != nil {
 			t.Fatal(err)
 		}
 		t.Cleanup(func() { s.Close() }) // also closed by close(); a second Close is a no-op
-		d.store = s
-		if d.key, _, err = LoadOrCreateDeviceKey(d.dir); err != nil {
-			t.Fatal(err)
-		}
+		d.store, d.key = s, key
 		w.keys[d.key.Fingerprint()] = d.name
 		w.devs = append(w.devs, d)
 	}
@@ -117,6 +115,7 @@ func (w *simWorld) step(rt *rapid.T, d *simDevice) {
 			w.t.Fatalf("%s export: %v", d.name, err)
 		}
 		w.files = append(w.files, res.Files...)
+		w.relayed += res.Relayed
 	case op == 6 && len(w.files) > 0: // a file travels to this device
 		f := w.files[rapid.IntRange(0, len(w.files)-1).Draw(rt, "file")]
 		rep := w.importer(d.store, d.now).ImportFiles([]string{f})
@@ -135,6 +134,7 @@ func (w *simWorld) finalExports() {
 			w.t.Fatal(err)
 		}
 		w.files = append(w.files, res.Files...)
+		w.relayed += res.Relayed
 	}
 }
 
@@ -166,7 +166,7 @@ func conflictSet(t testing.TB, s *store.Store) []string {
 // the damaged files. One device's clock runs a year ahead; the stores
 // still converge and its bundles are flagged.
 func TestMergeProperties(t *testing.T) {
-	var runs, withConflicts, withDamage int
+	var runs, withConflicts, withDamage, withRelays int
 	rapid.Check(t, func(rt *rapid.T) {
 		runs++
 		n := rapid.IntRange(2, 8).Draw(rt, "devices")
@@ -232,6 +232,9 @@ func TestMergeProperties(t *testing.T) {
 		if len(damaged) > 0 {
 			withDamage++
 		}
+		if w.relayed > 0 {
+			withRelays++
+		}
 		if len(conflictSet(t, lab1)) > 0 {
 			withConflicts++
 		}
@@ -253,9 +256,9 @@ func TestMergeProperties(t *testing.T) {
 	// The generator must reach the interesting cases, or the checks above
 	// prove little (common practice: guard property tests against a
 	// generator that never hits the case).
-	t.Logf("%d histories, %d with conflicts at the lab, %d with damaged files", runs, withConflicts, withDamage)
-	if runs >= 20 && (withConflicts == 0 || withDamage == 0) {
-		t.Fatalf("in %d histories: %d had conflicts, %d damaged files; the generator misses cases", runs, withConflicts, withDamage)
+	t.Logf("%d histories, %d with conflicts at the lab, %d with damaged files, %d with relayed events", runs, withConflicts, withDamage, withRelays)
+	if runs >= 20 && (withConflicts == 0 || withDamage == 0 || withRelays == 0) {
+		t.Fatalf("in %d histories: %d had conflicts, %d damaged files, %d relays; the generator misses cases", runs, withConflicts, withDamage, withRelays)
 	}
 }
 

@@ -25,8 +25,9 @@ import (
 //	edits  one site and n-1 edits of it, each superseding the one before
 //	heads  one site and n-1 concurrent edits of it (all supersede the
 //	       first: one entity with n-1 heads)
-func oneBundleMix(tb testing.TB, mix string, n int) [][]byte {
+func oneBundleMix(tb testing.TB, mix string, n int, dev record.DeviceID) [][]byte {
 	m := testkit.NewMaker(0x61, uint64(n))
+	m.Dev = dev // the signer's own events: the bundle proves them
 	m.Wall = testkit.XferNow.AddDate(0, -1, 0).UnixMilli()
 	rng := rand.New(rand.NewPCG(uint64(n), 0x61))
 	randomID := func() record.EntityID {
@@ -96,8 +97,8 @@ func BenchmarkImportOneBundle(b *testing.B) {
 	}
 	for _, mix := range []string{"sites", "pulls", "edits", "heads"} {
 		for _, n := range sizes {
-			raws := oneBundleMix(b, mix, n)
-			bundle, err := SealBundle(key, BundleHeader{Device: testkit.DevA, Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws)
+			raws := oneBundleMix(b, mix, n, key.DeviceID())
+			bundle, err := SealBundle(key, BundleHeader{Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, raws, nil)
 			if err != nil {
 				b.Fatal(err)
 			}
@@ -148,7 +149,7 @@ func TestWriteOneBundles(t *testing.T) {
 			t.Fatalf("BALEASSAY_ONE_BUNDLE: %q", f)
 		}
 		for _, mix := range []string{"sites", "pulls", "edits", "heads"} {
-			b, err := SealBundle(key, BundleHeader{Device: testkit.DevA, Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, oneBundleMix(t, mix, n))
+			b, err := SealBundle(key, BundleHeader{Seq: 1, WallMs: testkit.XferNow.UnixMilli(), Part: 1, Parts: 1}, oneBundleMix(t, mix, n, key.DeviceID()), nil)
 			if err != nil {
 				t.Fatal(err)
 			}

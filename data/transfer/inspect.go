@@ -4,9 +4,7 @@ import (
 	"baleassay/data/record"
 	"encoding/hex"
 	"fmt"
-	"io"
 	"strings"
-	"time"
 
 	"github.com/fxamacker/cbor/v2"
 )
@@ -22,9 +20,19 @@ type Inspection struct {
 	SignatureOK bool  // verifies with the key in the file, trusted or not
 	SigErr      error // why not
 	Header      BundleHeader
-	BodyErr     error  // the strict body reader
-	Events      int    // events in the body
+	BodyErr     error // the strict body reader
+	Events      int   // events in the body
+	Proofs      []ProofInfo
 	Diagnostic  string // payload in CBOR diagnostic notation (RFC 8949 §8)
+	// Named is the payload with every field named as bundle.cddl names it
+	// (inspect_names.go); empty when the envelope could not be read.
+	Named string
+	// Raws and IDs are the events of the body (sub-slices of raw) with
+	// their checked ids, for checks the body reader does not make
+	// (decoding and validating each event, as an import does); nil when
+	// the body was refused before its events were read.
+	Raws [][]byte
+	IDs  []record.EventID
 }
 
 // diagMode prints byte strings in hex and stops at the bounds the
@@ -64,7 +72,8 @@ func InspectBundle(raw []byte, trust TrustFunc) Inspection {
 	if in.SigErr = verifySign1(env, env.kid); in.SigErr == nil {
 		in.SignatureOK = true
 	}
-	h, raws, _, err := decodeBody(env.payload, env.payloadOff)
+	in.Named = namedBody(env.payload)
+	h, proofRaws, raws, ids, err := decodeBody(env.payload, env.payloadOff)
 	if err != nil {
 		in.BodyErr = err
 		if d, derr := diagMode.Diagnose(env.payload); derr == nil {
@@ -74,12 +83,33 @@ func InspectBundle(raw []byte, trust TrustFunc) Inspection {
 		}
 		return in
 	}
-	in.Header, in.Events = h, len(raws)
-	if h.Key != in.Signer {
-		in.BodyErr = bundleErr(ErrBundleHeader, "header.key", env.payloadOff, "header names key %s, bundle is signed by %s", h.Key, in.Signer)
+	in.Header, in.Events, in.Raws, in.IDs = h, len(raws), raws, ids
+	in.BodyErr = checkSigner(h, in.Signer, env.payloadOff)
+	for _, pr := range proofRaws {
+		pi := ProofInfo{Size: len(pr)}
+		if p, err := ParseAuthorProof(pr); err != nil {
+			pi.Err = err
+		} else {
+			pi.Device, pi.Key, pi.Lists = p.Device, p.Key, p.Len()
+		}
+		in.Proofs = append(in.Proofs, pi)
+	}
+	if in.BodyErr == nil {
+		if _, err := checkAuthorship(h.Device, proofRaws, raws, ids); err != nil {
+			in.BodyErr = err
+		}
 	}
 	in.Diagnostic = bodyDiagnostic(env.payload, raws)
 	return in
+}
+
+// ProofInfo is one authorship proof as Inspect found it.
+type ProofInfo struct {
+	Size   int
+	Device record.DeviceID // the author it speaks for
+	Key    Fingerprint
+	Lists  int   // event ids it lists
+	Err    error // why it does not count, if it does not
 }
 
 // bodyDiagnostic writes [header, [[h'id', <<event>>], ...]] one event
@@ -96,6 +126,22 @@ func bodyDiagnostic(payload []byte, raws [][]byte) string {
 		hd = "(" + err.Error() + ")"
 	}
 	b.WriteString("[\n  " + hd + ",\n  [")
+	w.off = len(payload) - len(rest)
+	if proofs, err := readProofs(w); err == nil {
+		for i, pr := range proofs {
+			pd, err := diagMode.Diagnose(pr)
+			if err != nil {
+				pd = "h'" + hex.EncodeToString(pr) + "'"
+			} else {
+				pd = "<<" + pd + ">>"
+			}
+			if i > 0 {
+				b.WriteByte(',')
+			}
+			b.WriteString("\n    " + pd)
+		}
+	}
+	b.WriteString("\n  ],\n  [")
 	for i, r := range raws {
 		id := record.IDOf(r)
 		ed, err := diagMode.Diagnose(r)
@@ -111,43 +157,4 @@ func bodyDiagnostic(payload []byte, raws [][]byte) string {
 	}
 	b.WriteString("\n  ]\n]")
 	return b.String()
-}
-
-// WriteText prints the inspection for people.
-func (in Inspection) WriteText(w io.Writer) error {
-	p := func(format string, args ...any) { fmt.Fprintf(w, format+"\n", args...) }
-	p("size:       %d bytes", in.Size)
-	if in.EnvelopeErr != nil {
-		p("envelope:   NOT a valid bundle: %v", in.EnvelopeErr)
-		if in.Diagnostic != "" {
-			p("as CBOR (RFC 8949 §8 diagnostic notation):\n%s", in.Diagnostic)
-		}
-		return nil
-	}
-	p("envelope:   COSE_Sign1 (tag 18), algorithm %d (Ed25519)", AlgEd25519)
-	trust := "NOT trusted here (bale trust add FILE --name NAME, after checking the fingerprint with the sender)"
-	if in.Trusted {
-		trust = fmt.Sprintf("trusted as %q", in.SignerName)
-	}
-	p("signer:     %s, %s", in.Signer, trust)
-	if in.SignatureOK {
-		p("signature:  verifies")
-	} else {
-		p("signature:  DOES NOT VERIFY: %v", in.SigErr)
-	}
-	if in.BodyErr != nil {
-		p("body:       refused: %v", in.BodyErr)
-	} else {
-		h := in.Header
-		p("format:     %s version %d", BundleFormat, BundleVersion)
-		p("device:     %s", h.Device)
-		p("bundle:     %d (part %d of %d)", h.Seq, h.Part, h.Parts)
-		if h.Seq > 1 {
-			p("previous:   %s", hex.EncodeToString(h.Prev[:]))
-		}
-		p("clock:      %s+%d", time.UnixMilli(h.WallMs).UTC().Format(time.RFC3339), h.Logical)
-		p("events:     %d", in.Events)
-	}
-	p("payload (RFC 8949 §8 diagnostic notation):\n%s", in.Diagnostic)
-	return nil
 }

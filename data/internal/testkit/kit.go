@@ -21,21 +21,32 @@ var (
 	T0 = time.Date(2026, 3, 2, 8, 0, 0, 0, time.UTC)
 )
 
+// stamp turns the small clock values tests like to write (1000, 2100)
+// into times after T0, so that events stay inside the records' time range
+// (2000–2100): a wallMs below 10⁹ (before 1970-01-12) counts in
+// milliseconds from T0; larger values are taken as they are.
+func stamp(wallMs int64) int64 {
+	if wallMs >= 0 && wallMs < 1e9 {
+		return T0.UnixMilli() + wallMs
+	}
+	return wallMs
+}
+
 func Ent(b byte) record.EntityID { return record.EntityID{0x01, 0x90, b, 0, 0, 0, 0x70, 0, 0x80, b} }
 
 func SiteEv(e record.EntityID, dev record.DeviceID, wallMs int64, name string, lat, lon float64, sup ...record.EventID) record.Event {
-	return record.Event{Version: record.FormatVersion, Entity: e, Kind: record.KindSite, Device: dev, Clock: record.HLC{WallMs: wallMs},
+	return record.Event{Version: record.FormatVersion, Entity: e, Kind: record.KindSite, Device: dev, Clock: record.HLC{WallMs: stamp(wallMs)},
 		Supersedes: sup, Site: &record.SiteRecord{Name: name, Kind: record.SiteYard, Lat: lat, Lon: lon}}
 }
 
 func PullEv(e, bale record.EntityID, dev record.DeviceID, wallMs int64, kg map[string]float64) record.Event {
-	return record.Event{Version: record.FormatVersion, Entity: e, Kind: record.KindPull, Device: dev, Clock: record.HLC{WallMs: wallMs},
+	return record.Event{Version: record.FormatVersion, Entity: e, Kind: record.KindPull, Device: dev, Clock: record.HLC{WallMs: stamp(wallMs)},
 		Pull: &record.PullRecord{Bale: bale, Label: "P1", Kg: kg}}
 }
 
 func BaleEv(e, site record.EntityID, dev record.DeviceID, wallMs int64, kg float64) record.Event {
-	return record.Event{Version: record.FormatVersion, Entity: e, Kind: record.KindBale, Device: dev, Clock: record.HLC{WallMs: wallMs},
-		Bale: &record.BaleRecord{Site: site, ReceivedMs: wallMs, GrossKg: kg, LengthM: 1.22, WidthM: 0.76, HeightM: 1.52}}
+	return record.Event{Version: record.FormatVersion, Entity: e, Kind: record.KindBale, Device: dev, Clock: record.HLC{WallMs: stamp(wallMs)},
+		Bale: &record.BaleRecord{Site: site, ReceivedMs: stamp(wallMs), GrossKg: kg, LengthM: 1.22, WidthM: 0.76, HeightM: 1.52}}
 }
 
 func MustEncode(t testing.TB, e record.Event) []byte {
@@ -143,8 +154,17 @@ func BenchRaws(tb testing.TB, n int, seed uint64) ([][]byte, []record.Event) {
 // xBenchRawsFrom is xBenchRaws with the first clock stamp (and so the
 // UUIDv7 entity ids) starting at wallMs.
 func BenchRawsFrom(tb testing.TB, n int, seed uint64, wallMs int64) ([][]byte, []record.Event) {
+	return BenchRawsBy(tb, n, seed, wallMs, record.DeviceID{})
+}
+
+// BenchRawsBy is BenchRawsFrom with the events' author set to dev (the
+// invented device 0x42's id when dev is zero).
+func BenchRawsBy(tb testing.TB, n int, seed uint64, wallMs int64, dev record.DeviceID) ([][]byte, []record.Event) {
 	m := NewMaker(0x42, seed)
 	m.Wall = wallMs
+	if dev != (record.DeviceID{}) {
+		m.Dev = dev
+	}
 	raws := make([][]byte, 0, n)
 	evs := make([]record.Event, 0, n)
 	var site, bale record.EntityID

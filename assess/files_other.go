@@ -1,0 +1,6 @@
+//go:build !unix
+
+package assess
+
+// openNonblock: no FIFOs to block on.
+const openNonblock = 0

@@ -1,0 +1,78 @@
+package ui
+
+import (
+	"testing"
+
+	"gioui.org/io/key"
+
+	"baleassay/data/desk"
+	"baleassay/ui/kit"
+)
+
+// Source: invented test inputs.
+
+// A bad coordinate keeps what was typed and says what to fix; a good one
+// lists the nearest sites.
+func TestSitesNearestAndBadValue(t *testing.T) {
+	d, _ := testDesk(t)
+	a, dr := newTestApp(t, d)
+	dr.focus(&a.sites.coords.Editor)
+	dr.typeText("95, 4")
+	dr.press(key.NameReturn, 0)
+	if a.sites.coords.Text() != "95, 4" || a.sites.coords.Problem == "" {
+		t.Fatalf("bad point: text %q, problem %q; want the text kept and a sentence", a.sites.coords.Text(), a.sites.coords.Problem)
+	}
+	dr.focus(&a.sites.coords.Editor)
+	for range "95, 4" {
+		dr.press(key.NameDeleteBackward, 0)
+	}
+	dr.typeText("52.4, -1.5")
+	acts := dr.press(key.NameReturn, 0)
+	if !hasAction(acts, FindNear{Lat: 52.4, Lon: -1.5}) {
+		t.Fatalf("Enter returned %v, want FindNear 52.4, -1.5", acts)
+	}
+	waitFor(t, dr, func() bool { return a.m.near.Has && !a.m.near.Busy })
+	if h := a.m.near.Value; len(h) != 1 || h[0].Name != "Wrenfield Lane Yard" {
+		t.Fatalf("nearest = %+v, want the one site", h)
+	}
+}
+
+// A bale typed on the form: a light one asks to confirm its density, and
+// is saved once confirmed; the app then opens the Tally on it.
+func TestIntakeConfirmsLightBale(t *testing.T) {
+	d, _ := testDesk(t)
+	a, dr := newTestApp(t, d)
+	dr.a.Apply([]Action{SelectSite{ID: a.m.sites.Value[0].ID}})
+	dr.press("2", key.ModShortcut)
+	if a.intake.site.IsZero() {
+		t.Fatal("the bale form did not open on the chosen site")
+	}
+	for _, f := range []struct {
+		f    *kit.Field
+		text string
+	}{{a.intake.gross, "150"}, {a.intake.l, "1.2"}, {a.intake.w, "0.8"}, {a.intake.h, "1.6"}, {a.intake.tag, "WL-2"}} {
+		dr.focus(&f.f.Editor)
+		dr.typeText(f.text)
+	}
+	acts := dr.press(key.NameReturn, 0)
+	if len(acts) == 0 {
+		t.Fatal("Enter on the form returned no action")
+	}
+	waitFor(t, dr, func() bool { return a.m.saveBale.Has && !a.m.saveBale.Busy })
+	if _, ok := isConfirm(a.m.saveBale.Err); !ok || len(a.intake.checks) == 0 {
+		t.Fatalf("a 98 kg/m³ bale: error %v, checks %v; want a confirmation asked", a.m.saveBale.Err, a.intake.checks)
+	}
+	if rows, _ := d.Bales(desk.BaleFilter{}); len(rows) != 1 {
+		t.Fatalf("a bale awaiting confirmation was saved: %d bales", len(rows))
+	}
+	dr.click("The values are right: receive it anyway")
+	waitFor(t, dr, func() bool { return a.m.saveBale.Has && !a.m.saveBale.Busy && a.m.saveBale.Err == nil })
+	dr.settle()
+	rows, err := d.Bales(desk.BaleFilter{})
+	if err != nil || len(rows) != 2 {
+		t.Fatalf("after confirming: %d bales (%v), want 2", len(rows), err)
+	}
+	if a.Screen() != ScreenTally || a.m.bale != a.m.saveBale.Value {
+		t.Fatalf("after the save: screen %v, current bale %v; want the Tally on the new bale", a.Screen(), a.m.bale)
+	}
+}

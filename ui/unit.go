@@ -1,0 +1,5 @@
+package ui
+
+import "gioui.org/unit"
+
+func unitDp(v float32) unit.Dp { return unit.Dp(v) }
