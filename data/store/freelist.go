@@ -11,12 +11,7 @@ import (
 // first write: bbolt would otherwise take a page that a damaged list
 // calls free, and overwrite live records with the next save.
 func checkFreelist(path string) error {
-	f, err := os.Open(path)
-	if err != nil {
-		return err
-	}
-	defer f.Close()
-	m, size, err := readHeaderCopies(f)
+	m, size, err := readHeaderFile(path)
 	if err != nil {
 		return err
 	}
@@ -27,6 +22,11 @@ func checkFreelist(path string) error {
 	if cur.Err != "" {
 		return damagef("no header copy verifies")
 	}
+	f, err := os.Open(path)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
 	w := newPageWalk(f, cur, size, false)
 	ids := w.readFree()
 	w.free = slices.Clone(ids)

@@ -63,18 +63,25 @@ func (s *Store) Has(id record.EventID) (bool, error) {
 	return ok, err
 }
 
+// rawByID reads an event's checked bytes (valid during the transaction),
+// ErrNotFound if absent.
+func rawByID(tx *bolt.Tx, id record.EventID) ([]byte, error) {
+	seq, ok, err := findSeq(tx, id)
+	if err != nil {
+		return nil, err
+	}
+	if !ok {
+		return nil, fmt.Errorf("%w: event %s", ErrNotFound, id.Short())
+	}
+	_, raw, err := logEntry(tx, seq, id)
+	return raw, err
+}
+
 // Raw returns a copy of an event's stored bytes, ErrNotFound if absent.
 func (s *Store) Raw(id record.EventID) ([]byte, error) {
 	var out []byte
 	err := s.view(func(tx *bolt.Tx) error {
-		seq, ok, err := findSeq(tx, id)
-		if err != nil {
-			return err
-		}
-		if !ok {
-			return fmt.Errorf("%w: event %s", ErrNotFound, id.Short())
-		}
-		_, raw, err := logEntry(tx, seq, id)
+		raw, err := rawByID(tx, id)
 		out = bytes.Clone(raw)
 		return err
 	})
@@ -85,14 +92,7 @@ func (s *Store) Raw(id record.EventID) ([]byte, error) {
 func (s *Store) Event(id record.EventID) (record.Stamped, error) {
 	var e record.Stamped
 	err := s.view(func(tx *bolt.Tx) error {
-		seq, ok, err := findSeq(tx, id)
-		if err != nil {
-			return err
-		}
-		if !ok {
-			return fmt.Errorf("%w: event %s", ErrNotFound, id.Short())
-		}
-		_, raw, err := logEntry(tx, seq, id)
+		raw, err := rawByID(tx, id)
 		if err != nil {
 			return err
 		}

@@ -63,6 +63,16 @@ func parseMeta(page []byte) rawMeta {
 	return r
 }
 
+// readHeaderFile reads both header copies of the bbolt file at path.
+func readHeaderFile(path string) ([2]rawMeta, int64, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return [2]rawMeta{}, 0, err
+	}
+	defer f.Close()
+	return readHeaderCopies(f)
+}
+
 // readHeaderCopies reads both header copies of a bbolt file.
 func readHeaderCopies(f *os.File) ([2]rawMeta, int64, error) {
 	var out [2]rawMeta
@@ -96,12 +106,7 @@ func readHeaderCopies(f *os.File) ([2]rawMeta, int64, error) {
 // header is 64 bytes at the start of a page, inside one disk sector, so
 // a power cut does not tear it: a copy that does not verify is damage.
 func checkHeaderCopies(path string) error {
-	f, err := os.Open(path)
-	if err != nil {
-		return err
-	}
-	defer f.Close()
-	m, size, err := readHeaderCopies(f)
+	m, size, err := readHeaderFile(path)
 	if err != nil {
 		return err
 	}

@@ -3,6 +3,7 @@ package store
 import (
 	"baleassay/data/record"
 	"bytes"
+	"cmp"
 	"crypto/sha256"
 	"encoding/binary"
 	"errors"
@@ -123,9 +124,9 @@ func Rescue(src, dst string, now func() time.Time) (RescueReport, error) {
 	slices.SortFunc(locs, func(a, b evLoc) int {
 		switch {
 		case a.seq != b.seq:
-			return cmpU64(a.seq, b.seq)
+			return cmp.Compare(a.seq, b.seq)
 		case a.page != b.page:
-			return cmpU64(a.page, b.page)
+			return cmp.Compare(a.page, b.page)
 		}
 		return a.elem - b.elem
 	})
@@ -182,16 +183,6 @@ func Rescue(src, dst string, now func() time.Time) (RescueReport, error) {
 	rep.Events, rep.Refused = built.Events, built.Refused
 	rep.Took = time.Since(start)
 	return rep, err
-}
-
-func cmpU64(a, b uint64) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
-	}
-	return 0
 }
 
 // findEvents reads every page of the file and returns where the log
