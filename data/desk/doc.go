@@ -71,7 +71,11 @@
 //	          every event decoded and validated, demo records; the payload
 //	          plain and with the field names of bundle.cddl)
 //	demo      MakeDemo (refuses a folder of real records; replaces a demo
-//	          store only with Force)
+//	          store only with Force); Generate (a season of any size, into
+//	          a store or as the signed bundles of its devices)
+//	store     CheckStore (every page, event and index), RescueStore (what
+//	          still verifies of a damaged store, into a new one); every
+//	          store opens read-only until its first write
 //	lab       ImportPaths (folders of bundles: a summary per device, gaps,
 //	          every refusal); ReportBale, ReportSites (what data/report
 //	          renders as HTML); ExportCSV (bales, pulls, sites), ExportGeoJSON;
