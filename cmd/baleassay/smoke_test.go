@@ -33,32 +33,6 @@ func need(t *testing.T, tools ...string) {
 	}
 }
 
-// xvfb starts a virtual X server on a free display and returns it.
-func xvfb(t *testing.T) string {
-	t.Helper()
-	for n := 91; n < 140; n++ {
-		if _, err := os.Stat(fmt.Sprintf("/tmp/.X%d-lock", n)); err == nil {
-			continue
-		}
-		disp := fmt.Sprintf(":%d", n)
-		cmd := exec.Command("Xvfb", disp, "-screen", "0", "1280x800x24", "-nolisten", "tcp")
-		if err := cmd.Start(); err != nil {
-			t.Fatal(err)
-		}
-		t.Cleanup(func() { cmd.Process.Kill(); cmd.Wait() })
-		sock := fmt.Sprintf("/tmp/.X11-unix/X%d", n)
-		for i := 0; i < 100; i++ {
-			if _, err := os.Stat(sock); err == nil {
-				return disp
-			}
-			time.Sleep(50 * time.Millisecond)
-		}
-		t.Fatalf("Xvfb on %s did not come up in 5 s", disp)
-	}
-	t.Fatal("no free X display between :91 and :139")
-	return ""
-}
-
 type smoke struct {
 	t          *testing.T
 	disp, dir  string
@@ -205,7 +179,7 @@ func TestSmokeRealWindow(t *testing.T) {
 	dir := t.TempDir()
 	s := &smoke{t: t, dir: dir, store: filepath.Join(dir, "store")}
 	s.app, s.bale = build(t, dir)
-	s.disp = xvfb(t)
+	s.disp = startXvfb(t)
 	s.run("sites", "add", "--store", s.store, "--name", "Smoke Hollow Yard", "--lat", "51.5", "--lon", "-2.6", "--kind", "yard")
 	s.run("bales", "add", "--store", s.store, "--site", "Smoke Hollow Yard", "--kg", "480", "--tag", "SM-1")
 

@@ -8,7 +8,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"time"
 )
 
 // BenchmarkStartToFirstFrame starts the real app under Xvfb on a fresh
@@ -29,7 +28,7 @@ func BenchmarkStartToFirstFrame(b *testing.B) {
 			b.Fatalf("%v %s", err, out)
 		}
 	}
-	disp := benchXvfb(b)
+	disp := startXvfb(b)
 	b.Run("baseline-bale-help", func(b *testing.B) {
 		for i := 0; i < b.N; i++ {
 			if err := exec.Command(bale, "help").Run(); err != nil {
@@ -62,26 +61,4 @@ func BenchmarkStartToFirstFrame(b *testing.B) {
 		}
 		b.ReportMetric(appMs/float64(b.N), "ms-to-first-frame")
 	})
-}
-
-func benchXvfb(b *testing.B) string {
-	for n := 141; n < 180; n++ {
-		if _, err := os.Stat("/tmp/.X" + strconv.Itoa(n) + "-lock"); err == nil {
-			continue
-		}
-		disp := ":" + strconv.Itoa(n)
-		cmd := exec.Command("Xvfb", disp, "-screen", "0", "1280x800x24", "-nolisten", "tcp")
-		if err := cmd.Start(); err != nil {
-			b.Fatal(err)
-		}
-		b.Cleanup(func() { cmd.Process.Kill(); cmd.Wait() })
-		for i := 0; i < 100; i++ {
-			if _, err := os.Stat("/tmp/.X11-unix/X" + strconv.Itoa(n)); err == nil {
-				return disp
-			}
-			time.Sleep(50 * time.Millisecond)
-		}
-	}
-	b.Fatal("no X display")
-	return ""
 }
