@@ -338,8 +338,10 @@ func ValidatePullValues(p PullRecord) error {
 		if _, ok := assess.CategoryIndex(k); !ok {
 			return &FieldError{Field: "pull.kg." + k, Err: fmt.Errorf("%w (valid keys: %s)", assess.ErrUnknownCategory, strings.Join(assess.CategoryKeys(), ", "))}
 		}
-		if err := checkKg("pull.kg."+k, p.Kg[k], false, assess.ErrNonFiniteMass, assess.ErrNegativeMass); err != nil {
-			return err
+		// The field name is built only for a bad value: this loop runs for
+		// every category of every pull an import checks.
+		if x := p.Kg[k]; !(x >= 0 && x <= MaxBaleKg) {
+			return checkKg("pull.kg."+k, x, false, assess.ErrNonFiniteMass, assess.ErrNegativeMass)
 		}
 	}
 	// Each part is at most MaxBaleKg, so the sum of at most 24 parts is
