@@ -23,8 +23,8 @@ func (s *Store) PutDraft(name string, p record.PullRecord) error {
 	if err != nil {
 		return err
 	}
-	return s.writeTx(func(tx *bolt.Tx, c *counts) error {
-		b, k := tx.Bucket(bDrafts), []byte(name)
+	return s.writeTx(func(w wtx, c *counts) error {
+		b, k := w.bucket(bDrafts), []byte(name)
 		if b.Get(k) == nil {
 			c.Drafts++
 		}
@@ -33,8 +33,8 @@ func (s *Store) PutDraft(name string, p record.PullRecord) error {
 }
 
 // deleteDraft removes a draft inside a write, keeping the count.
-func deleteDraft(tx *bolt.Tx, c *counts, name string) error {
-	b, k := tx.Bucket(bDrafts), []byte(name)
+func deleteDraft(w wtx, c *counts, name string) error {
+	b, k := w.bucket(bDrafts), []byte(name)
 	if b.Get(k) != nil {
 		c.Drafts--
 	}
@@ -87,7 +87,7 @@ func (s *Store) DraftNames() ([]string, error) {
 
 // DiscardDraft removes a draft.
 func (s *Store) DiscardDraft(name string) error {
-	return s.writeTx(func(tx *bolt.Tx, c *counts) error { return deleteDraft(tx, c, name) })
+	return s.writeTx(func(w wtx, c *counts) error { return deleteDraft(w, c, name) })
 }
 
 // SaveDraft validates the draft as a new pull, saves it and removes the
@@ -100,8 +100,8 @@ func (s *Store) SaveDraft(name string, opt SaveOptions) (record.EntityID, record
 	if !ok {
 		return record.EntityID{}, record.EventID{}, fmt.Errorf("%w: draft %q", ErrNotFound, name)
 	}
-	ids, evs, err := s.save([]record.Event{{Kind: record.KindPull, Pull: &p}}, opt, func(tx *bolt.Tx, c *counts) error {
-		return deleteDraft(tx, c, name)
+	ids, evs, err := s.save([]record.Event{{Kind: record.KindPull, Pull: &p}}, opt, func(w wtx, c *counts) error {
+		return deleteDraft(w, c, name)
 	})
 	if err != nil {
 		return record.EntityID{}, record.EventID{}, err
@@ -111,7 +111,7 @@ func (s *Store) SaveDraft(name string, opt SaveOptions) (record.EntityID, record
 
 // writeTx runs a write transaction outside the event path, with the same
 // failure rule: a disk-side error stops the store.
-func (s *Store) writeTx(fn func(tx *bolt.Tx, c *counts) error) (err error) {
+func (s *Store) writeTx(fn func(w wtx, c *counts) error) (err error) {
 	s.wmu.Lock()
 	defer s.wmu.Unlock()
 	if err := s.writableLocked(); err != nil {
@@ -120,15 +120,15 @@ func (s *Store) writeTx(fn func(tx *bolt.Tx, c *counts) error) (err error) {
 	defer s.nameDamage(&err)
 	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
 	defer recoverDamage(&err)
-	err = s.db.Update(func(tx *bolt.Tx) error {
-		c, err := loadCounts(tx)
+	err = updateGuarded(s.db, s.noPathGuard, func(w wtx) error {
+		c, err := loadCounts(w.Tx)
 		if err != nil {
 			return err
 		}
-		if err := fn(tx, &c); err != nil {
+		if err := fn(w, &c); err != nil {
 			return err
 		}
-		if err := putCounts(tx, c); err != nil {
+		if err := putCounts(w, c); err != nil {
 			return err
 		}
 		if s.hook != nil {

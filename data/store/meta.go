@@ -30,7 +30,7 @@ func metaGet(m *bolt.Bucket, key string) ([]byte, bool, error) {
 }
 
 // metaPut writes a meta value, counting a new key in c.
-func metaPut(m *bolt.Bucket, c *counts, key string, val []byte) error {
+func metaPut(m guardedBucket, c *counts, key string, val []byte) error {
 	k := []byte(key)
 	if m.Get(k) == nil {
 		c.Meta++
@@ -50,9 +50,9 @@ func loadCounts(tx *bolt.Tx) (counts, error) {
 	return c, nil
 }
 
-func putCounts(tx *bolt.Tx, c counts) error {
+func putCounts(w wtx, c counts) error {
 	k := []byte(metaCounts)
-	return tx.Bucket(bMeta).Put(k, sealCRC(bMeta, k, c.encode()))
+	return w.bucket(bMeta).Put(k, sealCRC(bMeta, k, c.encode()))
 }
 
 // verifyMeta walks every meta key: keys must come in order and their

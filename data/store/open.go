@@ -26,7 +26,7 @@ func openOnce(dir string, o Options) (*Store, error) {
 			return nil, fmt.Errorf("create store folder: %w", err)
 		}
 	}
-	s := &Store{dir: dir, now: o.Now, hook: o.beforeCommit, noEntityCheck: o.noEntityCheck, timeout: o.Timeout, readFirst: o.ReadFirst && !o.ReadOnly, newDevice: o.Device}
+	s := &Store{dir: dir, now: o.Now, hook: o.beforeCommit, noEntityCheck: o.noEntityCheck, noPathGuard: o.noPathGuard, timeout: o.Timeout, readFirst: o.ReadFirst && !o.ReadOnly, newDevice: o.Device}
 	if err := s.attach(o.ReadOnly || (o.ReadFirst && exists)); err != nil {
 		return nil, err
 	}
@@ -87,7 +87,7 @@ func (s *Store) attach(readOnly bool) (err error) {
 	case layout == 0 && readOnly:
 		return fmt.Errorf("%w: %s holds an empty file", ErrNoStore, s.dir)
 	case layout == 0:
-		if err := db.Update(func(tx *bolt.Tx) error { return initStore(tx, s.now(), s.newDevice) }); err != nil {
+		if err := updateGuarded(db, false, func(w wtx) error { return initStore(w, s.now(), s.newDevice) }); err != nil {
 			return fmt.Errorf("make store %s: %w", s.dir, err)
 		}
 	}

@@ -181,6 +181,49 @@ func parsePageHeader(buf []byte) (rawPage, error) {
 	return p, nil
 }
 
+// checkTreePage checks branch or leaf page p, found as page id at depth
+// in its tree, against where it was found and against its contents.
+// bbolt's node.spill gives a page ⌈size/pageSize⌉ pages, size being the
+// header, the element array and every key and value (bbolt before 1.4
+// gave ⌊size/pageSize⌋+1: one more when size is a whole number of
+// pages), and its commit frees as many as the header's overflow count
+// says: a count that does not fit the contents is damage.
+func checkTreePage(p rawPage, id uint64, depth int, hwm uint64, pageSize int) error {
+	switch {
+	case p.ID != id:
+		return fmt.Errorf("page %d calls itself page %d", id, p.ID)
+	case p.Flags != rawBranch && p.Flags != rawLeaf:
+		return fmt.Errorf("page %d is neither a branch nor a leaf (flags %#x)", id, p.Flags)
+	case p.Count == 0 && (p.Flags == rawBranch || depth > 0):
+		return fmt.Errorf("page %d is empty", id)
+	case id+uint64(p.Overflow) >= hwm:
+		return fmt.Errorf("page %d (+%d) runs past the file's pages 2..%d", id, p.Overflow, hwm-1)
+	}
+	size := p.declaredSize()
+	want := (size+pageSize-1)/pageSize - 1
+	if int(p.Overflow) != want && (size%pageSize != 0 || int(p.Overflow) != want+1) {
+		return fmt.Errorf("page %d says it runs over %d more pages, its contents need %d", id, p.Overflow, want)
+	}
+	return nil
+}
+
+// declaredSize is the size p's element array gives it: the header, the
+// array, and every key and value. parsePageHeader has checked that the
+// array lies in p.buf; the keys and values need not.
+func (p rawPage) declaredSize() int {
+	le := binary.LittleEndian
+	size := rawPageHeader + p.Count*rawElemSize
+	for i := 0; i < p.Count; i++ {
+		e := p.buf[rawPageHeader+i*rawElemSize:]
+		if p.Flags&rawBranch != 0 {
+			size += int(le.Uint32(e[4:]))
+		} else {
+			size += int(le.Uint32(e[8:])) + int(le.Uint32(e[12:]))
+		}
+	}
+	return size
+}
+
 // rawElem is one element of a branch or leaf page.
 type rawElem struct {
 	Key, Value []byte // Value is empty on a branch page

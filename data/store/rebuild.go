@@ -5,8 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"time"
-
-	bolt "go.etcd.io/bbolt"
 )
 
 // rebuildSource is what a new store is built from: the upgrade of a
@@ -76,8 +74,8 @@ func rebuild(dir string, src rebuildSource, now func() time.Time) (rebuildReport
 	if err != nil {
 		return rep, err
 	}
-	err = s.writeTx(func(tx *bolt.Tx, c *counts) error {
-		m := tx.Bucket(bMeta)
+	err = s.writeTx(func(w wtx, c *counts) error {
+		m := w.bucket(bMeta)
 		for _, k := range record.SortedKeys(src.meta) {
 			if k == metaCounts || k == metaLayout {
 				continue
@@ -90,7 +88,7 @@ func rebuild(dir string, src rebuildSource, now func() time.Time) (rebuildReport
 				return err
 			}
 		}
-		d := tx.Bucket(bDrafts)
+		d := w.bucket(bDrafts)
 		for _, name := range record.SortedKeys(src.drafts) {
 			k := []byte(name)
 			if d.Get(k) == nil {

@@ -52,6 +52,9 @@ type Options struct {
 	// noEntityCheck (benchmarks only) skips the check of every touched
 	// entity before a commit, to measure what it costs.
 	noEntityCheck bool
+	// noPathGuard (benchmarks only) writes without checking the pages a
+	// write changes (guard.go), to measure what the check costs.
+	noPathGuard bool
 }
 
 // Store is an open records store: one bbolt file in a directory. Its
@@ -69,6 +72,7 @@ type Store struct {
 	now           func() time.Time
 	hook          func() error
 	noEntityCheck bool            // Options.noEntityCheck
+	noPathGuard   bool            // Options.noPathGuard
 	newDevice     record.DeviceID // Options.Device: the id a new store takes
 
 	wmu    sync.Mutex // serialises writes; guards failed and closed
@@ -143,13 +147,13 @@ func layoutOf(tx *bolt.Tx) int {
 
 // initStore makes the buckets and the first meta of a new store, with
 // device id dev (a random one when zero).
-func initStore(tx *bolt.Tx, now time.Time, dev record.DeviceID) error {
+func initStore(w wtx, now time.Time, dev record.DeviceID) error {
 	for _, name := range allBuckets {
-		if _, err := tx.CreateBucket(name); err != nil {
+		if _, err := w.CreateBucket(name); err != nil {
 			return err
 		}
 	}
-	b := tx.Bucket(bLog)
+	b := w.Bucket(bLog)
 	b.FillPercent = logFill
 	if dev == (record.DeviceID{}) {
 		var err error
@@ -158,7 +162,7 @@ func initStore(tx *bolt.Tx, now time.Time, dev record.DeviceID) error {
 		}
 	}
 	var c counts
-	m := tx.Bucket(bMeta)
+	m := w.bucket(bMeta)
 	for _, kv := range []struct{ k, v string }{
 		{metaDevice, string(dev[:])},
 		{metaCreated, now.UTC().Format(time.RFC3339)},
@@ -168,7 +172,7 @@ func initStore(tx *bolt.Tx, now time.Time, dev record.DeviceID) error {
 			return err
 		}
 	}
-	return putCounts(tx, c)
+	return putCounts(w, c)
 }
 
 // recoverDamage turns a panic inside bbolt or the store (a page that does

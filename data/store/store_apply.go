@@ -4,8 +4,6 @@ import (
 	"baleassay/data/record"
 	"fmt"
 	"strings"
-
-	bolt "go.etcd.io/bbolt"
 )
 
 // ApplyResult counts what a write did.
@@ -112,7 +110,7 @@ func (s *Store) Save(evs []record.Event, opt SaveOptions) ([]record.EventID, err
 }
 
 // save is Save with an extra step run inside the transaction.
-func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(tx *bolt.Tx, c *counts) error) ([]record.EventID, []record.Event, error) {
+func (s *Store) save(evs []record.Event, opt SaveOptions, extra func(w wtx, c *counts) error) ([]record.EventID, []record.Event, error) {
 	items := make([]record.Checked, len(evs))
 	var warns []record.Warning
 	now := s.now()

@@ -9,8 +9,10 @@ import (
 	"baleassay/data/record"
 	"encoding/binary"
 	"fmt"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"syscall"
 	"testing"
 	"time"
@@ -219,4 +221,70 @@ func cpuTime() time.Duration {
 		return 0
 	}
 	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
+}
+
+// BenchmarkPathGuardCost measures what the check of the pages a write
+// changes (guard.go) costs, guarded and unguarded in every iteration:
+//
+//	apply     200,000 events in 40 writes of 5,000 into an empty store
+//	spread    the same events shuffled, so each write touches pages all
+//	          over the entity bucket (devices sending old weeks)
+//	save-one  one site saved per transaction into a store of 20,000
+//
+// Compare within a pair: the ratio is the guard's price.
+func BenchmarkPathGuardCost(b *testing.B) {
+	const n, per = 200_000, 5_000
+	raws, _ := testkit.BenchRawsFrom(b, n, 7, testkit.XferNow.AddDate(-1, 0, 0).UnixMilli())
+	spread := slices.Clone(raws)
+	rand.New(rand.NewPCG(3, 3)).Shuffle(len(spread), func(i, j int) { spread[i], spread[j] = spread[j], spread[i] })
+	open := func(b *testing.B, off bool) *Store {
+		s, err := OpenWith(b.TempDir(), Options{Now: func() time.Time { return testkit.XferNow }, noPathGuard: off, NoSiteIndex: true})
+		if err != nil {
+			b.Fatal(err)
+		}
+		return s
+	}
+	apply := func(b *testing.B, s *Store, raws [][]byte) {
+		for i := 0; i < len(raws); i += per {
+			if _, err := s.ApplyRaw(raws[i:min(i+per, len(raws))], nil); err != nil {
+				b.Fatal(err)
+			}
+		}
+	}
+	pair := func(name string, setup func(b *testing.B, s *Store), run func(b *testing.B, s *Store) int) {
+		b.Run(name, func(b *testing.B) {
+			var took, cpu [2]time.Duration // guarded, unguarded
+			count := 0
+			for i := 0; b.Loop(); i++ {
+				for _, off := range [][2]bool{{false, true}, {true, false}}[i%2] {
+					s := open(b, off)
+					setup(b, s)
+					t0, c0 := time.Now(), cpuTime()
+					k := run(b, s)
+					took[btoi(off)] += time.Since(t0)
+					cpu[btoi(off)] += cpuTime() - c0
+					s.Close()
+					if !off {
+						count += k
+					}
+				}
+			}
+			b.ReportMetric(float64(took[0].Nanoseconds())/float64(count), "guarded-ns/op")
+			b.ReportMetric(float64(took[1].Nanoseconds())/float64(count), "unguarded-ns/op")
+			b.ReportMetric(float64(took[0])/float64(took[1]), "guarded/unguarded")
+			b.ReportMetric(float64(cpu[0])/float64(cpu[1]), "cpu-guarded/unguarded")
+		})
+	}
+	none := func(*testing.B, *Store) {}
+	pair("apply", none, func(b *testing.B, s *Store) int { apply(b, s, raws); return n })
+	pair("spread", func(b *testing.B, s *Store) { apply(b, s, raws[:n/2]) }, func(b *testing.B, s *Store) int { apply(b, s, spread); return n })
+	pair("save-one", func(b *testing.B, s *Store) { apply(b, s, raws[:20_000]) }, func(b *testing.B, s *Store) int {
+		for i := range 200 {
+			ev := record.Event{Kind: record.KindSite, Site: &record.SiteRecord{Name: fmt.Sprint("s", i), Lat: 1, Lon: 2}}
+			if _, err := s.Save([]record.Event{ev}, SaveOptions{}); err != nil {
+				b.Fatal(err)
+			}
+		}
+		return 200
+	})
 }

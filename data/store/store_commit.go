@@ -87,7 +87,7 @@ func planWrite(tx *bolt.Tx, items []record.Checked) (plan, int, error) {
 // its key order, and every entity the write touched is checked whole
 // before the commit (verifyEntity), so a damaged page is reported, not
 // written over.
-func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe bool, extra func(tx *bolt.Tx, c *counts) error) (res ApplyResult, err error) {
+func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe bool, extra func(w wtx, c *counts) error) (res ApplyResult, err error) {
 	s.wmu.Lock()
 	defer s.wmu.Unlock()
 	if err := s.writableLocked(); err != nil {
@@ -98,7 +98,8 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 	defer s.nameDamage(&err)
 	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
 	defer recoverDamage(&err)
-	err = s.db.Update(func(tx *bolt.Tx) error {
+	err = updateGuarded(s.db, s.noPathGuard, func(w wtx) error {
+		tx := w.Tx
 		res = ApplyResult{}
 		siteUpdates = siteUpdates[:0]
 		c, err := loadCounts(tx)
@@ -113,7 +114,7 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 			return err
 		}
 		res.Present = present
-		if err := writeEvents(tx, items, p, &c, &res); err != nil {
+		if err := writeEvents(w, items, p, &c, &res); err != nil {
 			return err
 		}
 		if observe {
@@ -122,7 +123,7 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 			}
 		}
 		res.New = len(p.fresh)
-		m := tx.Bucket(bMeta)
+		m := w.bucket(bMeta)
 		for _, k := range record.SortedKeys(meta) {
 			if err := metaPut(m, &c, k, meta[k]); err != nil {
 				return err
@@ -157,16 +158,16 @@ func (s *Store) commit(items []record.Checked, meta map[string][]byte, observe b
 		// page's entries at every insert: quadratic within one write).
 		slices.SortFunc(siteUpdates, func(a, b geo.Update) int { return bytes.Compare(a.Site.ID[:], b.Site.ID[:]) })
 		for _, u := range siteUpdates {
-			if err := putSiteCache(tx, &c, u); err != nil {
+			if err := putSiteCache(w, &c, u); err != nil {
 				return err
 			}
 		}
 		if extra != nil {
-			if err := extra(tx, &c); err != nil {
+			if err := extra(w, &c); err != nil {
 				return err
 			}
 		}
-		if err := putCounts(tx, c); err != nil {
+		if err := putCounts(w, c); err != nil {
 			return err
 		}
 		if s.hook != nil {
@@ -213,11 +214,11 @@ type entOp struct {
 // insert after another would leave it: a new event is a head unless some
 // event (stored, or new in this batch) supersedes it, and every event a
 // new one supersedes stops being a head.
-func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *ApplyResult) error {
+func writeEvents(w wtx, items []record.Checked, p plan, c *counts, res *ApplyResult) error {
 	if len(p.fresh) == 0 {
 		return nil
 	}
-	logB, idB, entB := tx.Bucket(bLog), tx.Bucket(bIDs), tx.Bucket(bEnt)
+	logB, idB, entB := w.bucket(bLog), w.bucket(bIDs), w.bucket(bEnt)
 	logB.FillPercent = logFill
 	var ar arena
 	first := c.Events + 1
@@ -244,7 +245,7 @@ func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *Ap
 		return err
 	}
 	var ops []entOp
-	kindB, confB := tx.Bucket(bKinds), tx.Bucket(bConflicts)
+	kindB, confB := w.bucket(bKinds), w.bucket(bConflicts)
 	cur := entB.Cursor()
 	var newKinds, confPut, confDel [][]byte
 	ents := make([]*entPlan, 0, len(p.ents))
@@ -343,7 +344,7 @@ func writeEvents(tx *bolt.Tx, items []record.Checked, p plan, c *counts, res *Ap
 // putSorted puts keys (with their values) in key order: bbolt inserts in
 // order touch each page once and append within it, where random order
 // moves a node's entries on every insert.
-func putSorted(b *bolt.Bucket, keys [][]byte, vals [][]byte) error {
+func putSorted(b guardedBucket, keys [][]byte, vals [][]byte) error {
 	idx := make([]int, len(keys))
 	for i := range idx {
 		idx[i] = i

@@ -3,8 +3,6 @@ package store
 import (
 	"baleassay/data/record"
 	"time"
-
-	bolt "go.etcd.io/bbolt"
 )
 
 // WriteDemo checks encoded events as at the given time, writes them in one
@@ -15,8 +13,8 @@ func (s *Store) WriteDemo(raws [][]byte, at time.Time, note string) (ApplyResult
 	if err != nil {
 		return ApplyResult{}, err
 	}
-	res, err := s.commit(items, nil, true, func(tx *bolt.Tx, c *counts) error {
-		return metaPut(tx.Bucket(bMeta), c, metaDemo, []byte(note))
+	res, err := s.commit(items, nil, true, func(w wtx, c *counts) error {
+		return metaPut(w.bucket(bMeta), c, metaDemo, []byte(note))
 	})
 	if err == nil {
 		s.demo.Store(true)

@@ -63,8 +63,8 @@ func (s *Store) Resolve(ent record.EntityID, keep record.EventID) (record.EventI
 //
 //	entity id → lat (float64 bits, BE) ‖ lon (float64 bits, BE) ‖ name ‖ crc
 
-func putSiteCache(tx *bolt.Tx, c *counts, u geo.Update) error {
-	b := tx.Bucket(bSites)
+func putSiteCache(w wtx, c *counts, u geo.Update) error {
+	b := w.bucket(bSites)
 	k := u.Site.ID[:]
 	had := b.Get(k) != nil
 	if u.Remove {

@@ -101,18 +101,12 @@ func (w *pageWalk) tree(name []byte, id uint64, lo, hi []byte, depth int) {
 		return
 	}
 	p, err := parsePageHeader(buf)
-	switch {
-	case err != nil:
+	if err == nil {
+		err = checkTreePage(p, id, depth, w.meta.HWM, int(w.rf.pageSize))
+	}
+	if err != nil {
 		w.problem("%s: %v", what, err)
 		return
-	case p.ID != id:
-		w.problem("%s: page %d calls itself page %d", what, id, p.ID)
-		return
-	case p.Flags != rawBranch && p.Flags != rawLeaf:
-		w.problem("%s: page %d is neither a branch nor a leaf (flags %#x)", what, id, p.Flags)
-		return
-	case p.Count == 0 && (p.Flags == rawBranch || depth > 0):
-		w.problem("%s: page %d is empty", what, id)
 	}
 	if !w.use(id, p.Overflow, what) {
 		return
