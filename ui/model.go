@@ -258,12 +258,9 @@ func (a *App) applyData(act Action) {
 	case ImportFrom:
 		a.m.progress = desk.Progress{}
 		a.m.imported.Start(goRun, &a.in, func(ctx context.Context) (transfer.ImportReport, error) {
-			paths, err := transfer.ExpandPaths([]string{act.Dir})
+			paths, err := desk.BundleFiles([]string{act.Dir})
 			if err != nil {
 				return transfer.ImportReport{}, err
-			}
-			if len(paths) == 0 {
-				return transfer.ImportReport{}, fmt.Errorf("%w: no .bale files in %s", desk.ErrUsage, act.Dir)
 			}
 			return d.Import(ctx, paths, desk.ImportOptions{}, func(p desk.Progress) { a.in.post(func() { a.m.progress = p }) })
 		}, func() {
