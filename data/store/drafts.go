@@ -47,7 +47,7 @@ func (s *Store) Draft(name string) (p record.PullRecord, ok bool, err error) {
 		k := []byte(name)
 		sealed := tx.Bucket(bDrafts).Get(k)
 		if sealed == nil {
-			return nil
+			return confirmAbsent(tx.Bucket(bDrafts), bDrafts, k)
 		}
 		raw, good := openCRC(bDrafts, k, sealed)
 		if !good {

@@ -13,6 +13,8 @@ import (
 	"path/filepath"
 	"testing"
 	"time"
+
+	bolt "go.etcd.io/bbolt"
 )
 
 // lastLogLeaf builds a store and returns its folder and the page number
@@ -95,5 +97,71 @@ func TestSaveRefusesDamagedOverflowCount(t *testing.T) {
 		if !bytes.Equal(after, raw) {
 			t.Errorf("overflow count %d on leaf %d: the refused save changed the file", over, leaf)
 		}
+	}
+}
+
+// TestDamagedMetaKeyIsNotAbsent: a byte flip in a leaf's key length
+// turned the key of a bundle sequence record into a longer one, with its
+// value intact and the keys still in order; a lookup of the record then
+// found nothing, and an import reported a bundle missing that the lab
+// had. A lookup that finds nothing must check the entries beside the
+// place the key would be: a key damaged that way (longer, or cut short)
+// does not verify. Drafts are looked up the same way.
+func TestDamagedMetaKeyIsNotAbsent(t *testing.T) {
+	for _, c := range []struct {
+		name   string
+		bucket []byte
+		key    string
+		damage func(k []byte) []byte
+	}{
+		{"meta key longer", bMeta, MetaTransferPrefix + "seen/0123", func(k []byte) []byte { return append(bytes.Clone(k), "0a1b"...) }},
+		{"meta key cut short", bMeta, MetaTransferPrefix + "seen/0123", func(k []byte) []byte { return k[:len(k)-2] }},
+		{"draft key longer", bDrafts, "bay 3", func(k []byte) []byte { return append(bytes.Clone(k), 'x') }},
+	} {
+		dir := t.TempDir()
+		s := xferStore(t, dir, testkit.XferNow)
+		if _, err := s.ApplyRaw(xHistory(t, rand.New(rand.NewPCG(13, 13)), 30), map[string][]byte{MetaTransferPrefix + "seen/0123": {7, 7}}); err != nil {
+			t.Fatal(err)
+		}
+		if err := s.PutDraft("bay 3", *testkit.PullEv(testkit.Ent(1), testkit.Ent(2), testkit.DevA, 1, map[string]float64{"pet_clear": 1}).Pull); err != nil {
+			t.Fatal(err)
+		}
+		s.Close()
+		db, err := bolt.Open(filepath.Join(dir, DBFile), 0o600, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		err = db.Update(func(tx *bolt.Tx) error {
+			b := tx.Bucket(c.bucket)
+			k := []byte(c.key)
+			v := bytes.Clone(b.Get(k))
+			if v == nil {
+				t.Fatalf("%s: no entry %q", c.name, k)
+			}
+			if err := b.Delete(k); err != nil {
+				return err
+			}
+			return b.Put(c.damage(k), v)
+		})
+		db.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		s = xferStore(t, dir, testkit.XferNow)
+		if bytes.Equal(c.bucket, bMeta) {
+			v, err := s.Meta(c.key)
+			if !errors.Is(err, ErrDamaged) {
+				t.Errorf("%s: Meta answered %v, %v; want the store reported damaged", c.name, v, err)
+			}
+		} else {
+			_, ok, err := s.Draft(c.key)
+			if !errors.Is(err, ErrDamaged) {
+				t.Errorf("%s: Draft answered %v, %v; want the store reported damaged", c.name, ok, err)
+			}
+		}
+		if v, err := s.Meta("b-never-written"); err != nil || v != nil { // far from the damaged entry
+			t.Errorf("%s: a key that was never there: %v, %v", c.name, v, err)
+		}
+		s.Close()
 	}
 }

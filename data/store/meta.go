@@ -13,6 +13,30 @@ import (
 // the store opens (verifyMeta reads the whole meta bucket, which holds
 // a few keys per imported bundle).
 
+// confirmAbsent confirms that key is not in b, a bucket whose values are
+// sealed (sealCRC). A damaged key, or key length, leaves its entry
+// between the same neighbours (the keys are checked for order), so were
+// key's entry damaged it would be the entry a seek for key finds or the
+// one before it; both must verify, whose CRC covers the key.
+func confirmAbsent(b *bolt.Bucket, bucket, key []byte) error {
+	c := b.Cursor()
+	k, v := c.Seek(key)
+	if k == nil {
+		k, v = c.Last()
+	} else {
+		if _, ok := openCRC(bucket, k, v); !ok {
+			return damagef("bucket %q: an entry beside %q does not verify", bucket, key)
+		}
+		k, v = c.Prev()
+	}
+	if k != nil {
+		if _, ok := openCRC(bucket, k, v); !ok {
+			return damagef("bucket %q: an entry beside %q does not verify", bucket, key)
+		}
+	}
+	return nil
+}
+
 // metaGet reads a meta value, checking its CRC.
 func metaGet(m *bolt.Bucket, key string) ([]byte, bool, error) {
 	if m == nil {
@@ -20,7 +44,7 @@ func metaGet(m *bolt.Bucket, key string) ([]byte, bool, error) {
 	}
 	sealed := m.Get([]byte(key))
 	if sealed == nil {
-		return nil, false, nil
+		return nil, false, confirmAbsent(m, bMeta, []byte(key))
 	}
 	v, ok := openCRC(bMeta, []byte(key), sealed)
 	if !ok {
