@@ -78,7 +78,11 @@ func Check(dir string) (CheckReport, error) {
 	w.checkFree(w.readFree(), true)
 	r.Pages = w.counts
 	r.Problems = append(r.Problems, w.problems...)
-	r.Problems = append(r.Problems, checkLogical(dir, path, &r)...)
+	if w.loops {
+		r.Problems = append(r.Problems, "the page tree loops back on itself: the records were not read through bbolt (its cursor would never return); 'bale store rescue' reads the pages directly")
+	} else {
+		r.Problems = append(r.Problems, checkLogical(dir, path, &r)...)
+	}
 	r.Took = time.Since(start)
 	return r, nil
 }

@@ -11,6 +11,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 	"time"
 
@@ -163,5 +164,79 @@ func TestDamagedMetaKeyIsNotAbsent(t *testing.T) {
 			t.Errorf("%s: a key that was never there: %v, %v", c.name, v, err)
 		}
 		s.Close()
+	}
+}
+
+// TestBranchLoopIsDamageNotACrash: one damaged page number makes a
+// branch page name itself as its child. bbolt's cursor then recurses
+// until the goroutine stack overflows, a fatal error no recover
+// catches; every command died that way, the store check too. Opening
+// (for reading or writing) must report damage, the check must report the
+// loop without reading through bbolt, and the rescue must still copy
+// every event.
+func TestBranchLoopIsDamageNotACrash(t *testing.T) {
+	dir := t.TempDir()
+	s := xferStore(t, dir, testkit.XferNow)
+	rng := rand.New(rand.NewPCG(14, 14))
+	for range 4 {
+		if _, err := s.ApplyRaw(xHistory(t, rng, 80), nil); err != nil {
+			t.Fatal(err)
+		}
+	}
+	events, err := s.LastSeq()
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.Close()
+	path := filepath.Join(dir, DBFile)
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, size, err := readHeaderFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cur := m[0]
+	if m[1].Txid > cur.Txid {
+		cur = m[1]
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := newPageWalk(f, cur, size, false)
+	w.run()
+	f.Close()
+	ps := int(cur.PageSize)
+	branch := uint64(0)
+	for id := range w.used {
+		at := int(id) * ps
+		if id >= 2 && binary.LittleEndian.Uint16(raw[at+8:]) == rawBranch && binary.LittleEndian.Uint64(raw[at:]) == id {
+			branch = max(branch, id)
+		}
+	}
+	if branch == 0 {
+		t.Fatal("the store has no branch page to damage; make it larger")
+	}
+	binary.LittleEndian.PutUint64(raw[int(branch)*ps+rawPageHeader+8:], branch) // element 0's child: itself
+	if err := os.WriteFile(path, raw, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	for _, ro := range []bool{true, false} {
+		if s, err := OpenWith(dir, Options{ReadOnly: ro}); !errors.Is(err, ErrDamaged) {
+			if err == nil {
+				s.Close()
+			}
+			t.Errorf("open (read-only %v) of a store whose branch page %d loops: %v, want damage", ro, branch, err)
+		}
+	}
+	r, err := Check(dir)
+	if err != nil || r.OK() || !strings.Contains(strings.Join(r.Problems, "\n"), "loops back on itself") {
+		t.Errorf("check: %v, problems %q", err, r.Problems)
+	}
+	rep, err := Rescue(dir, filepath.Join(t.TempDir(), "rescued"), func() time.Time { return testkit.XferNow })
+	if err != nil || rep.Events != int(events) || rep.Lost() != 0 {
+		t.Errorf("rescue: %+v, %v; want all %d events", rep, err, events)
 	}
 }

@@ -50,6 +50,11 @@ func (s *Store) attach(readOnly bool) (err error) {
 		if err := checkHeaderCopies(path); err != nil {
 			return err
 		}
+		if readOnly {
+			if err := checkNoLoops(path); err != nil {
+				return err
+			}
+		}
 	}
 	defer debug.SetPanicOnFault(debug.SetPanicOnFault(true))
 	defer recoverDamage(&err)
