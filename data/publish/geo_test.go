@@ -69,7 +69,7 @@ func TestSpatialQueries(t *testing.T) {
 	s := geoStore(t)
 	rep := mustPublish(t, conn, s, testOptions())
 	if !rep.Schema.PostGIS {
-		t.Skip("PostGIS not available on the test server: " + rep.Schema.Note)
+		pgtest.SkipOrFail(t, "PostGIS not available on the test server: "+rep.Schema.Note)
 	}
 	t.Run("nearest", func(t *testing.T) { checkNearest(t, conn, s) })
 	t.Run("within", func(t *testing.T) { checkWithin(t, conn, s) })

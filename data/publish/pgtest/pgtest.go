@@ -25,6 +25,15 @@ const EnvDSN = "BALEASSAY_PG_DSN"
 // PostGIS must fail the test.
 func InCI() bool { return os.Getenv("CI") != "" }
 
+// SkipOrFail skips the test with msg, or fails it in CI.
+func SkipOrFail(t testing.TB, msg string) {
+	t.Helper()
+	if InCI() {
+		t.Fatal(msg + "; CI is set: a database test may not skip")
+	}
+	t.Skip(msg)
+}
+
 // ServerDSN returns the test server's DSN, or skips (fails in CI).
 func ServerDSN(t testing.TB) string {
 	t.Helper()
