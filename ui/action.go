@@ -39,6 +39,12 @@ func (SetMassUnit) isAction() {}
 // SelectSite shows a site's recent bales.
 type SelectSite struct{ ID record.EntityID }
 
+// AddSite saves a new pickup site; Confirm accepts the checks shown.
+type AddSite struct {
+	Site    record.SiteRecord
+	Confirm bool
+}
+
 // FindNear lists the sites nearest a point typed or pasted.
 type FindNear struct{ Lat, Lon float64 }
 
@@ -89,6 +95,7 @@ type TrustSigner struct{ File, Name string }
 
 func (SelectSite) isAction()   {}
 func (FindNear) isAction()     {}
+func (AddSite) isAction()      {}
 func (OpenBale) isAction()     {}
 func (ReceiveAt) isAction()    {}
 func (SaveBale) isAction()     {}

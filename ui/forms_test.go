@@ -6,6 +6,7 @@ import (
 	"gioui.org/io/key"
 
 	"baleassay/data/desk"
+	"baleassay/data/record"
 	"baleassay/ui/kit"
 )
 
@@ -74,5 +75,84 @@ func TestIntakeConfirmsLightBale(t *testing.T) {
 	}
 	if a.Screen() != ScreenTally || a.m.bale != a.m.saveBale.Value {
 		t.Fatalf("after the save: screen %v, current bale %v; want the Tally on the new bale", a.Screen(), a.m.bale)
+	}
+}
+
+// A new site typed on the Sites screen by keyboard: the form takes the
+// position of the nearest-site search, Enter saves it, and the app lists
+// and selects it. Empty or impossible values keep what was typed and say
+// what to fix.
+func TestNewSiteByKeyboard(t *testing.T) {
+	d, _ := testDesk(t)
+	a, dr := newTestApp(t, d)
+	dr.focus(&a.sites.coords.Editor)
+	dr.typeText("46.21, 5.13")
+	dr.click("New site")
+	if !a.sites.form.open || a.sites.form.where.Text() != "46.21, 5.13" {
+		t.Fatalf("form open %v, position %q; want it open with the searched point", a.sites.form.open, a.sites.form.where.Text())
+	}
+	dr.focus(&a.sites.form.where.Editor)
+	acts := dr.press(key.NameReturn, 0)
+	if len(acts) != 0 || a.sites.form.name.Problem == "" {
+		t.Fatalf("no name: actions %v, problem %q; want no save and a sentence", acts, a.sites.form.name.Problem)
+	}
+	dr.focus(&a.sites.form.name.Editor)
+	dr.typeText("Furze Hill Yard")
+	dr.click("Depot")
+	acts = dr.press(key.NameReturn, 0)
+	want := AddSite{Site: record.SiteRecord{Name: "Furze Hill Yard", Kind: record.SiteDepot, Lat: 46.21, Lon: 5.13}}
+	if !hasAction(acts, want) {
+		t.Fatalf("Enter returned %v, want %+v", acts, want)
+	}
+	waitFor(t, dr, func() bool { return a.m.saveSite.Has && !a.m.saveSite.Busy })
+	dr.settle()
+	rows, err := d.Sites()
+	if err != nil || len(rows) != 2 {
+		t.Fatalf("sites after the save: %d (%v), want 2", len(rows), err)
+	}
+	var made desk.SiteRow
+	for _, r := range rows {
+		if r.Site.Name == "Furze Hill Yard" {
+			made = r
+		}
+	}
+	if made.Site.Kind != record.SiteDepot || made.Site.Lat != 46.21 || made.Site.Lon != 5.13 {
+		t.Fatalf("saved %+v", made.Site)
+	}
+	if a.m.site != made.ID || a.sites.form.open || len(a.m.sites.Value) != 2 {
+		t.Fatalf("after the save: selected %v (want %v), form open %v, %d sites listed", a.m.site, made.ID, a.sites.form.open, len(a.m.sites.Value))
+	}
+}
+
+// A new site 10 m from a known one asks whether it is the same place;
+// nothing is saved until the grader confirms.
+func TestNewSiteNearAnotherAsksToConfirm(t *testing.T) {
+	d, _ := testDesk(t)
+	a, dr := newTestApp(t, d)
+	dr.click("New site")
+	dr.focus(&a.sites.form.name.Editor)
+	dr.typeText("Wrenfield Lane, back gate")
+	dr.focus(&a.sites.form.where.Editor)
+	dr.typeText("95, -1.52")
+	if acts := dr.press(key.NameReturn, 0); len(acts) != 0 || a.sites.form.where.Text() != "95, -1.52" || a.sites.form.where.Problem == "" {
+		t.Fatalf("latitude 95: actions %v, text %q, problem %q; want the text kept and a sentence", acts, a.sites.form.where.Text(), a.sites.form.where.Problem)
+	}
+	for range "95, -1.52" {
+		dr.press(key.NameDeleteBackward, 0)
+	}
+	dr.typeText("52.41009, -1.52")
+	dr.press(key.NameReturn, 0)
+	waitFor(t, dr, func() bool { return a.m.saveSite.Has && !a.m.saveSite.Busy })
+	dr.settle()
+	if _, ok := isConfirm(a.m.saveSite.Err); !ok || len(a.sites.form.checks) == 0 {
+		t.Fatalf("a site 10 m from another: error %v, checks %v; want a confirmation asked", a.m.saveSite.Err, a.sites.form.checks)
+	}
+	if rows, _ := d.Sites(); len(rows) != 1 {
+		t.Fatalf("a site awaiting confirmation was saved: %d sites", len(rows))
+	}
+	dr.click("The values are right: save the site anyway")
+	waitFor(t, dr, func() bool { return a.m.saveSite.Has && !a.m.saveSite.Busy && a.m.saveSite.Err == nil })
+	if rows, _ := d.Sites(); len(rows) != 2 {
+		t.Fatalf("after confirming: %d sites, want 2", len(rows))
 	}
 }

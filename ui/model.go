@@ -29,6 +29,7 @@ type model struct {
 	result Latest[outcome]
 	specs  []string
 
+	saveSite Latest[record.EntityID]
 	saveBale Latest[record.EntityID]
 	savePull Latest[record.EntityID]
 	draft    Latest[struct{}]
@@ -203,6 +204,17 @@ func (a *App) applyData(act Action) {
 	case SelectSite:
 		a.m.site = act.ID
 		a.loadSiteBales()
+	case AddSite:
+		a.m.saveSite.Start(a.owner.do, &a.in, func(context.Context) (record.EntityID, error) {
+			return d.AddSite(act.Site, desk.SaveOptions{Confirm: act.Confirm})
+		}, func() {
+			if a.m.saveSite.Err == nil {
+				a.sites.form.saved()
+				a.m.note = fmt.Sprintf("Site %s saved. Receive its first bale when it comes.", act.Site.Name)
+				a.m.site = a.m.saveSite.Value
+				a.loadLists()
+			}
+		})
 	case FindNear:
 		a.m.near.Start(a.owner.do, &a.in, func(context.Context) ([]geo.Hit, error) {
 			return d.FindSites(desk.Query{Kind: desk.QueryNear, Lat: act.Lat, Lon: act.Lon, K: 5})

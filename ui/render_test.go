@@ -124,3 +124,21 @@ func TestLargeTextRender(t *testing.T) {
 		uitest.Match(t, fmt.Sprintf("%s-1280x800-high-contrast-text150", s), dr.render())
 	}
 }
+
+// The new-site form on the tablet in both palettes, a name typed and the
+// position of the nearest-site search carried over.
+func TestNewSiteFormRender(t *testing.T) {
+	d := demoDesk(t)
+	for _, m := range []theme.Mode{theme.Normal, theme.HighContrast} {
+		a, dr := demoApp(t, d, image.Pt(1280, 800), m)
+		dr.a.Apply([]Action{GoTo{Screen: ScreenSites}})
+		dr.frame()
+		dr.focus(&a.sites.coords.Editor)
+		dr.typeText("44.9031, 4.7702")
+		dr.click("New site")
+		dr.focus(&a.sites.form.name.Editor)
+		dr.typeText("Furze Hill Yard")
+		dr.settle()
+		uitest.Match(t, fmt.Sprintf("sites-new-1280x800-%s", m), dr.render())
+	}
+}

@@ -21,6 +21,8 @@ type sitesScreen struct {
 	coords  *kit.Field
 	findBtn widget.Clickable
 	recvBtn widget.Clickable
+	newBtn  widget.Clickable
+	form    *newSiteForm
 	rows    clicks
 	near    clicks
 	bales   clicks
@@ -29,7 +31,7 @@ type sitesScreen struct {
 }
 
 func newSitesScreen() *sitesScreen {
-	s := &sitesScreen{search: kit.NewField(), coords: kit.NewField(), rows: clicks{}, near: clicks{}, bales: clicks{}}
+	s := &sitesScreen{search: kit.NewField(), coords: kit.NewField(), rows: clicks{}, near: clicks{}, bales: clicks{}, form: newNewSiteForm()}
 	s.list.Axis = layout.Vertical
 	s.bList.Axis = layout.Vertical
 	return s
@@ -42,17 +44,25 @@ func (s *sitesScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimen
 	if submitted(gtx, s.coords) || s.findBtn.Clicked(gtx) {
 		acts = append(acts, s.find()...)
 	}
+	if s.newBtn.Clicked(gtx) {
+		where := ""
+		if _, _, err := desk.ParseCoords(s.coords.Text()); err == nil {
+			where = s.coords.Text()
+		}
+		s.form.start(where)
+	}
+	if s.form.open {
+		acts = append(acts, s.form.update(gtx, a)...)
+	}
 	if s.recvBtn.Clicked(gtx) && !a.m.site.IsZero() {
 		acts = append(acts, ReceiveAt{Site: a.m.site})
 	}
-	for id, c := range s.rows {
-		if c.Clicked(gtx) {
-			acts = append(acts, SelectSite{ID: id})
-		}
-	}
-	for id, c := range s.near {
-		if c.Clicked(gtx) {
-			acts = append(acts, SelectSite{ID: id})
+	for _, cs := range []clicks{s.rows, s.near} {
+		for id, c := range cs {
+			if c.Clicked(gtx) {
+				s.form.open = false
+				acts = append(acts, SelectSite{ID: id})
+			}
 		}
 	}
 	for id, c := range s.bales {
@@ -61,7 +71,12 @@ func (s *sitesScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimen
 		}
 	}
 	left := func(gtx layout.Context) layout.Dimensions { return s.layoutSites(gtx, a) }
-	right := func(gtx layout.Context) layout.Dimensions { return s.layoutBales(gtx, a) }
+	right := func(gtx layout.Context) layout.Dimensions {
+		if s.form.open {
+			return s.form.Layout(gtx, th)
+		}
+		return s.layoutBales(gtx, a)
+	}
 	return acts, columns(gtx, th, left, right)
 }
 
@@ -111,7 +126,11 @@ func (s *sitesScreen) layoutSites(gtx layout.Context, a *App) layout.Dimensions 
 	}
 	hits := a.m.near.Value
 	return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
-		layout.Rigid(title(th, "Pickup sites")),
+		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
+			return layout.Flex{Alignment: layout.Middle}.Layout(gtx,
+				layout.Flexed(1, title(th, "Pickup sites")),
+				layout.Rigid(kit.Button{Th: th, Click: &s.newBtn, Text: "New site"}.Layout))
+		}),
 		vgap(8),
 		layout.Rigid(kit.FieldStyle{Th: th, F: s.search, Label: "Find a site by name", Hint: "part of the name", Width: 300}.Layout),
 		vgap(8),
@@ -170,7 +189,7 @@ func (s *sitesScreen) layoutBales(gtx layout.Context, a *App) layout.Dimensions 
 		return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
 			layout.Rigid(heading(th, "Recent bales")),
 			vgap(8),
-			layout.Rigid(body(th, "Choose a site on the left to see its recent bales and receive a new one.")))
+			layout.Rigid(body(th, "Choose a site on the left to see its recent bales and receive a new one; a site not listed yet: New site.")))
 	}
 	rows := a.m.bales.Value
 	name := a.m.siteName(a.m.site)

@@ -8,7 +8,6 @@ package main
 
 import (
 	"bufio"
-	"context"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -86,12 +85,21 @@ func (s *smoke) start() time.Duration {
 			}
 		}
 	}()
-	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
-	defer cancel()
-	search := exec.CommandContext(ctx, "xdotool", "search", "--sync", "--name", "^baleassay$")
-	search.Env = append(os.Environ(), "DISPLAY="+s.disp)
-	if out, err := search.CombinedOutput(); err != nil {
-		s.t.Fatalf("no baleassay window in 20 s: %v %s", err, out)
+	// Poll for the window rather than one "search --sync": under load a
+	// single xdotool connection was once refused ("Can't open display")
+	// while the server and the app were up.
+	deadline := time.Now().Add(20 * time.Second)
+	for {
+		search := exec.Command("xdotool", "search", "--name", "^baleassay$")
+		search.Env = append(os.Environ(), "DISPLAY="+s.disp)
+		out, err := search.CombinedOutput()
+		if err == nil && len(strings.TrimSpace(string(out))) > 0 {
+			break
+		}
+		if time.Now().After(deadline) {
+			s.t.Fatalf("no baleassay window in 20 s: %v %s", err, out)
+		}
+		time.Sleep(200 * time.Millisecond)
 	}
 	select {
 	case line := <-first:
