@@ -8,6 +8,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"testing"
 )
@@ -106,8 +107,14 @@ func TestReadOnlyMedia(t *testing.T) {
 		}
 	}
 	os.Chmod(filepath.Join(dir, DBFile), 0o444)
-	for p := base; p != "/" && p != "."; p = filepath.Dir(p) {
-		os.Chmod(p, 0o755) // the test's temporary folders, so another user can reach the store
+	// The test's own temporary folders (t.TempDir makes two below the
+	// system's temporary folder), so that another user can reach the
+	// store. Never the system's folder itself: that is /tmp, whose mode
+	// (1777) other programs need (an earlier loop up to / left /tmp 0755
+	// and apt and the PostgreSQL test server could no longer write there).
+	top := filepath.Clean(os.TempDir())
+	for p := base; p != top && p != "/" && p != "." && strings.HasPrefix(p, top); p = filepath.Dir(p) {
+		os.Chmod(p, 0o755)
 	}
 	exe, err := os.Executable()
 	if err != nil {
