@@ -45,6 +45,14 @@ type AddSite struct {
 	Confirm bool
 }
 
+// CorrectSite saves a site's new value, superseding its current one;
+// Confirm accepts the checks shown.
+type CorrectSite struct {
+	ID      record.EntityID
+	Site    record.SiteRecord
+	Confirm bool
+}
+
 // FindNear lists the sites nearest a point typed or pasted.
 type FindNear struct{ Lat, Lon float64 }
 
@@ -96,6 +104,7 @@ type TrustSigner struct{ File, Name string }
 func (SelectSite) isAction()   {}
 func (FindNear) isAction()     {}
 func (AddSite) isAction()      {}
+func (CorrectSite) isAction()  {}
 func (OpenBale) isAction()     {}
 func (ReceiveAt) isAction()    {}
 func (SaveBale) isAction()     {}

@@ -156,3 +156,60 @@ func TestNewSiteNearAnotherAsksToConfirm(t *testing.T) {
 		t.Fatalf("after confirming: %d sites, want 2", len(rows))
 	}
 }
+
+// A site's position typed wrong is corrected from the Sites screen: the
+// form opens on the current value, the correction supersedes it, and the
+// store keeps the first value in the site's history. A confirmation
+// asked by an earlier new-site save does not come back on the form.
+func TestCorrectSiteFromSitesScreen(t *testing.T) {
+	d, _ := testDesk(t)
+	a, dr := newTestApp(t, d)
+	site := a.m.sites.Value[0]
+	// an earlier new site near this one, asked to confirm, then dropped
+	dr.click("New site")
+	dr.focus(&a.sites.form.name.Editor)
+	dr.typeText("Wrenfield Lane, back gate")
+	dr.focus(&a.sites.form.where.Editor)
+	dr.typeText("52.41, -1.52")
+	dr.press(key.NameReturn, 0)
+	waitFor(t, dr, func() bool { return a.m.saveSite.Has && !a.m.saveSite.Busy })
+	dr.settle()
+	if len(a.sites.form.checks) == 0 {
+		t.Fatal("a site at the same place asked no confirmation")
+	}
+	dr.click("Cancel")
+
+	dr.a.Apply([]Action{SelectSite{ID: site.ID}})
+	dr.settle()
+	dr.click("Correct site")
+	f := a.sites.form
+	if !f.open || f.editing != site.ID || f.name.Text() != site.Site.Name || f.where.Text() != "52.41, -1.52" || f.kind != site.Site.Kind {
+		t.Fatalf("form on %v: name %q, position %q, kind %v", f.editing, f.name.Text(), f.where.Text(), f.kind)
+	}
+	if len(f.checks) != 0 || f.problem != "" {
+		t.Fatalf("the correction form shows an earlier save's answer: checks %v, problem %q", f.checks, f.problem)
+	}
+	dr.focus(&f.where.Editor)
+	for range "52.41, -1.52" {
+		dr.press(key.NameDeleteBackward, 0)
+	}
+	dr.typeText("52.43, -1.52")
+	acts := dr.press(key.NameReturn, 0)
+	want := CorrectSite{ID: site.ID, Site: record.SiteRecord{Name: site.Site.Name, Kind: site.Site.Kind, Lat: 52.43, Lon: -1.52}}
+	if !hasAction(acts, want) {
+		t.Fatalf("Enter returned %v, want %+v", acts, want)
+	}
+	waitFor(t, dr, func() bool { return a.m.saveSite.Has && !a.m.saveSite.Busy && a.m.saveSite.Err == nil })
+	dr.settle()
+	rows, err := d.Sites()
+	if err != nil || len(rows) != 1 || rows[0].ID != site.ID || rows[0].Site.Lat != 52.43 {
+		t.Fatalf("sites after the correction: %+v (%v); want the one site at 52.43", rows, err)
+	}
+	det, err := d.Show(site.ID.String())
+	if err != nil || len(det.History) != 2 {
+		t.Fatalf("history of the site: %d events (%v), want the first value and the correction", len(det.History), err)
+	}
+	if f.open || a.m.site != site.ID {
+		t.Fatalf("after the correction: form open %v, selected %v", f.open, a.m.site)
+	}
+}

@@ -215,6 +215,19 @@ func (a *App) applyData(act Action) {
 				a.loadLists()
 			}
 		})
+	case CorrectSite:
+		a.m.saveSite.Start(a.owner.do, &a.in, func(context.Context) (record.EntityID, error) {
+			s := act.Site
+			id, _, err := d.EditSite(act.ID.String(), desk.SiteEdit{Name: &s.Name, Kind: &s.Kind, Lat: &s.Lat, Lon: &s.Lon}, desk.SaveOptions{Confirm: act.Confirm})
+			return id, err
+		}, func() {
+			if a.m.saveSite.Err == nil {
+				a.sites.form.saved()
+				a.m.note = fmt.Sprintf("Site %s corrected; the earlier value stays in its history.", act.Site.Name)
+				a.m.site = a.m.saveSite.Value
+				a.loadLists()
+			}
+		})
 	case FindNear:
 		a.m.near.Start(a.owner.do, &a.in, func(context.Context) ([]geo.Hit, error) {
 			return d.FindSites(desk.Query{Kind: desk.QueryNear, Lat: act.Lat, Lon: act.Lon, K: 5})

@@ -22,6 +22,7 @@ type sitesScreen struct {
 	findBtn widget.Clickable
 	recvBtn widget.Clickable
 	newBtn  widget.Clickable
+	fixBtn  widget.Clickable
 	form    *newSiteForm
 	rows    clicks
 	near    clicks
@@ -50,6 +51,13 @@ func (s *sitesScreen) Layout(gtx layout.Context, a *App) ([]Action, layout.Dimen
 			where = s.coords.Text()
 		}
 		s.form.start(where)
+	}
+	if s.fixBtn.Clicked(gtx) {
+		for _, r := range a.m.sites.Value {
+			if r.ID == a.m.site {
+				s.form.correct(r)
+			}
+		}
 	}
 	if s.form.open {
 		acts = append(acts, s.form.update(gtx, a)...)
@@ -197,6 +205,8 @@ func (s *sitesScreen) layoutBales(gtx layout.Context, a *App) layout.Dimensions 
 		layout.Rigid(func(gtx layout.Context) layout.Dimensions {
 			return layout.Flex{Alignment: layout.Middle}.Layout(gtx,
 				layout.Flexed(1, heading(th, "Recent bales from "+name)),
+				layout.Rigid(kit.Button{Th: th, Click: &s.fixBtn, Text: "Correct site"}.Layout),
+				layout.Rigid(kit.Gap(kit.SpacingDp)),
 				layout.Rigid(kit.Button{Th: th, Click: &s.recvBtn, Text: "Receive a bale here", Role: kit.RolePrimary}.Layout),
 			)
 		}),

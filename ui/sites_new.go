@@ -1,6 +1,7 @@
 package ui
 
 import (
+	"strconv"
 	"strings"
 
 	"gioui.org/layout"
@@ -14,10 +15,13 @@ import (
 
 // newSiteForm: a pickup site the store does not know yet, made where the
 // grader stands — its name, its position typed or pasted as "latitude,
-// longitude", and what kind of place it is. A site close to another, or
-// of another's name, asks to be confirmed, as a light bale does.
+// longitude", and what kind of place it is — or a correction of a known
+// one (a new value that supersedes it; the old stays in its history). A
+// site close to another, or of another's name, asks to be confirmed, as
+// a light bale does.
 type newSiteForm struct {
 	open        bool
+	editing     record.EntityID // the site corrected; zero for a new one
 	name, where *kit.Field
 	kind        record.SiteKind
 	kindBtns    [len(siteKinds)]widget.Clickable
@@ -26,6 +30,7 @@ type newSiteForm struct {
 	cancelBtn   widget.Clickable
 	checks      []desk.Check // a save asked to confirm these
 	problem     string       // a save was refused: why
+	waiting     bool         // a save was asked for; its answer is not read yet
 }
 
 // siteKinds are the kinds offered, in the order shown.
@@ -44,10 +49,21 @@ func newNewSiteForm() *newSiteForm {
 // start opens the form, with the position of the nearest-site search
 // when one was typed.
 func (f *newSiteForm) start(where string) {
-	f.open, f.checks, f.problem = true, nil, ""
+	if !f.editing.IsZero() { // leaving a correction: start afresh
+		f.saved()
+	}
+	f.open, f.checks, f.problem, f.waiting = true, nil, "", false
 	if strings.TrimSpace(f.where.Text()) == "" {
 		f.where.SetText(where)
 	}
+}
+
+// correct opens the form on a known site's current value.
+func (f *newSiteForm) correct(r desk.SiteRow) {
+	f.saved()
+	f.open, f.editing, f.kind = true, r.ID, r.Site.Kind
+	f.name.SetText(r.Site.Name)
+	f.where.SetText(coordsText(r.Site.Lat, r.Site.Lon))
 }
 
 // saved closes and clears the form after the site was saved.
@@ -56,7 +72,7 @@ func (f *newSiteForm) saved() {
 		x.SetText("")
 		x.Problem = ""
 	}
-	f.open, f.checks, f.problem, f.kind = false, nil, "", record.SiteYard
+	f.open, f.checks, f.problem, f.kind, f.editing, f.waiting = false, nil, "", record.SiteYard, record.EntityID{}, false
 }
 
 // read turns the form into a site, setting each bad field's sentence.
@@ -75,15 +91,21 @@ func (f *newSiteForm) read() (record.SiteRecord, bool) {
 // update handles the form's input and returns its actions.
 func (f *newSiteForm) update(gtx layout.Context, a *App) []Action {
 	var acts []Action
-	if submitted(gtx, f.name, f.where) || f.saveBtn.Clicked(gtx) {
-		if s, ok := f.read(); ok {
-			acts = append(acts, AddSite{Site: s})
+	save := func(confirm bool) {
+		s, ok := f.read()
+		switch {
+		case !ok:
+		case f.editing.IsZero():
+			acts, f.waiting = append(acts, AddSite{Site: s, Confirm: confirm}), true
+		default:
+			acts, f.waiting = append(acts, CorrectSite{ID: f.editing, Site: s, Confirm: confirm}), true
 		}
 	}
+	if submitted(gtx, f.name, f.where) || f.saveBtn.Clicked(gtx) {
+		save(false)
+	}
 	if f.anywayBtn.Clicked(gtx) {
-		if s, ok := f.read(); ok {
-			acts = append(acts, AddSite{Site: s, Confirm: true})
-		}
+		save(true)
 	}
 	if f.cancelBtn.Clicked(gtx) {
 		f.open = false
@@ -93,12 +115,12 @@ func (f *newSiteForm) update(gtx layout.Context, a *App) []Action {
 			f.kind = siteKinds[i]
 		}
 	}
-	if err := a.m.saveSite.Err; err != nil && !a.m.saveSite.Busy {
-		f.checks, f.problem = nil, ""
-		if ce, ok := isConfirm(err); ok {
+	if f.waiting && !a.m.saveSite.Busy && a.m.saveSite.Has { // this form's save answered
+		f.waiting, f.checks, f.problem = false, nil, ""
+		if ce, ok := isConfirm(a.m.saveSite.Err); ok {
 			f.checks = ce.Checks
-		} else {
-			f.problem = errText(err)
+		} else if a.m.saveSite.Err != nil {
+			f.problem = errText(a.m.saveSite.Err)
 		}
 	}
 	return acts
@@ -106,10 +128,14 @@ func (f *newSiteForm) update(gtx layout.Context, a *App) []Action {
 
 // Layout draws the form.
 func (f *newSiteForm) Layout(gtx layout.Context, th *theme.Theme) layout.Dimensions {
+	head, help := "New pickup site", "Type each value, Tab to the next; Enter saves the site."
+	if !f.editing.IsZero() {
+		head, help = "Correct this site", "Change what is wrong; Enter saves the correction. The earlier value stays in the site's history."
+	}
 	return layout.Flex{Axis: layout.Vertical}.Layout(gtx,
-		layout.Rigid(heading(th, "New pickup site")),
+		layout.Rigid(heading(th, head)),
 		vgap(4),
-		layout.Rigid(muted(th, "Type each value, Tab to the next; Enter saves the site.")),
+		layout.Rigid(muted(th, help)),
 		vgap(10),
 		layout.Rigid(kit.FieldStyle{Th: th, F: f.name, Label: "Name of the site", Hint: "e.g. Furze Hill Yard", Width: 320}.Layout),
 		vgap(10),
@@ -138,22 +164,35 @@ func (f *newSiteForm) kindRow(th *theme.Theme) layout.Widget {
 }
 
 func (f *newSiteForm) saveRow(gtx layout.Context, th *theme.Theme) layout.Dimensions {
-	buttons := layout.Rigid(func(gtx layout.Context) layout.Dimensions {
-		return layout.Flex{Alignment: layout.Middle}.Layout(gtx,
-			layout.Rigid(kit.Button{Th: th, Click: &f.saveBtn, Text: "Save site", Hint: "Enter", Role: kit.RolePrimary}.Layout),
-			layout.Rigid(kit.Gap(kit.SpacingDp)),
-			layout.Rigid(kit.Button{Th: th, Click: &f.cancelBtn, Text: "Cancel"}.Layout))
-	})
 	var rows []layout.FlexChild
 	if f.problem != "" {
 		rows = append(rows, layout.Rigid(kit.Problem{Th: th, Text: f.problem}.Layout), vgap(6))
 	}
-	if len(f.checks) == 0 {
-		return layout.Flex{Axis: layout.Vertical}.Layout(gtx, append(rows, buttons)...)
-	}
 	for _, c := range f.checks {
 		rows = append(rows, layout.Rigid(kit.Problem{Th: th, Text: c.Message}.Layout), vgap(4))
 	}
-	rows = append(rows, layout.Rigid(kit.Button{Th: th, Click: &f.anywayBtn, Text: "The values are right: save the site anyway"}.Layout))
+	if len(f.checks) > 0 {
+		rows = append(rows, layout.Rigid(kit.Button{Th: th, Click: &f.anywayBtn, Text: "The values are right: save the site anyway"}.Layout), vgap(8))
+	}
+	rows = append(rows, layout.Rigid(func(gtx layout.Context) layout.Dimensions {
+		return layout.Flex{Alignment: layout.Middle}.Layout(gtx,
+			layout.Rigid(kit.Button{Th: th, Click: &f.saveBtn, Text: f.saveWord(), Hint: "Enter", Role: kit.RolePrimary}.Layout),
+			layout.Rigid(kit.Gap(kit.SpacingDp)),
+			layout.Rigid(kit.Button{Th: th, Click: &f.cancelBtn, Text: "Cancel"}.Layout))
+	}))
 	return layout.Flex{Axis: layout.Vertical}.Layout(gtx, rows...)
+}
+
+func (f *newSiteForm) saveWord() string {
+	if f.editing.IsZero() {
+		return "Save site"
+	}
+	return "Save correction"
+}
+
+// coordsText writes a position as the form reads it, digits enough to
+// read back the same numbers (a correction that leaves the position
+// alone does not move the site).
+func coordsText(lat, lon float64) string {
+	return strconv.FormatFloat(lat, 'f', -1, 64) + ", " + strconv.FormatFloat(lon, 'f', -1, 64)
 }
