@@ -1,5 +1,8 @@
 package assess
 
+// Source: invented test inputs; each expected number is computed by our own
+// formula (the rules of Advise and the ratio estimator), not an outside value.
+
 import (
 	"errors"
 	"math"

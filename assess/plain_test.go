@@ -1,5 +1,9 @@
 package assess
 
+// Source: the expected strings are Go's strconv shortest round-trip digits
+// (%g) written out by hand without the exponent: formatting rules of our
+// own, no outside value.
+
 import (
 	"math"
 	"testing"

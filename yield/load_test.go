@@ -1,5 +1,9 @@
 package yield
 
+// Source: invented loads and pulls; the expected figures are computed by
+// our own formulas (Cochran's two-stage estimator as in assess, and the
+// yield model), the tolerances are ours.
+
 import (
 	"fmt"
 	"math"

@@ -1,5 +1,8 @@
 package yield
 
+// Source: invented pulls; the expected shares of the spread are computed
+// by our own model, with tolerances of our own.
+
 import (
 	"math"
 	"testing"

@@ -153,7 +153,7 @@ func WriteDemo(s *store.Store, o DemoOptions) (DemoSummary, error) {
 			rx := day.Add(time.Duration(7*60+r.IntN(9*60)) * time.Minute)
 			bale := newID(rx)
 			tag++
-			gross := clamp(545+80*r.NormFloat64(), 300, 770) // typical 295–770 kg, about 545 (REFERENCE.md "Bales")
+			gross := clamp(545+80*r.NormFloat64(), 300, 770) // typical PET bale 295–770 kg (650–1,700 lb), about 545 kg: from memory of published state container-recycling bale figures
 			l, w, h := 1.22+0.03*r.NormFloat64(), 0.76+0.02*r.NormFloat64(), 1.52+0.04*r.NormFloat64()
 			if _, err := add(record.Event{Entity: bale, Kind: record.KindBale, Device: yard, Clock: ms(rx), Bale: &record.BaleRecord{
 				Site: siteIDs[si], ReceivedMs: rx.UnixMilli(), GrossKg: round2(gross),

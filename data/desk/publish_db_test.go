@@ -1,5 +1,9 @@
 package desk
 
+// Source: invented test inputs (the demo scenario and specs of our own);
+// every expected number is what the desk itself answers for the same
+// store (computed by our own formula), compared with the database's views.
+
 import (
 	"context"
 	"fmt"

@@ -3,8 +3,7 @@ package geo
 import "math"
 
 // EarthRadiusKm is the IUGG mean Earth radius R1 = 6371.0088 km (Moritz,
-// "Geodetic Reference System 1980", Bulletin Géodésique 54 (1980) 395;
-// see REFERENCE.md "Distances").
+// "Geodetic Reference System 1980", Bulletin Géodésique 54 (1980) 395).
 const EarthRadiusKm = 6371.0088
 
 const degToRad = math.Pi / 180

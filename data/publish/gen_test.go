@@ -1,5 +1,8 @@
 package publish
 
+// Source: invented test inputs (a generated scenario of our own); sizes and
+// counts are test parameters, not check values from outside.
+
 import (
 	"fmt"
 	"math/rand/v2"

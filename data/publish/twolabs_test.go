@@ -1,5 +1,8 @@
 package publish
 
+// Source: invented test inputs (two stores of the demo scenario); the
+// expected counts follow from the edits the test makes.
+
 import (
 	"testing"
 

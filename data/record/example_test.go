@@ -1,5 +1,8 @@
 package record_test
 
+// Source: invented test inputs; the printed output is our own encoding of
+// them (RFC 8949 core deterministic CBOR, SHA-256 event id).
+
 import (
 	"baleassay/data/record"
 	"fmt"

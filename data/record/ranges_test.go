@@ -1,5 +1,9 @@
 package record_test
 
+// Source: invented test inputs; the range limits checked are the project's
+// own (record/validate.go: 5000 kg and the others, illustrative), the
+// skew strings our own format.
+
 import (
 	"errors"
 	"math"

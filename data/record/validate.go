@@ -17,8 +17,8 @@ import (
 // Limits used by validation.
 const (
 	// MinBaleDensityKgM3 is the common minimum bale density of trade
-	// specifications for plastic bales, 160 kg/m³ (10 lb/ft³) (scrap
-	// specifications circular; see REFERENCE.md "Bales"). Lighter bales
+	// specifications for plastic bales, 160 kg/m³ (10 lb/ft³) (ISRI,
+	// Scrap Specifications Circular, plastic scrap section). Lighter bales
 	// get a warning.
 	MinBaleDensityKgM3 = 160.0
 	// MaxPlausibleBaleDensityKgM3 is the density above which a bale is

@@ -61,8 +61,8 @@ func TestValidateBoundaries(t *testing.T) {
 		// 0,0 is the classic missing-fix value (common practice).
 		{"null island", site(0, 0), nil, record.WarnNullIsland},
 		{"next to null island", site(0, next(0)), nil, 0},
-		// Bale mass and density: 160 kg/m³ minimum (REFERENCE.md, scrap
-		// specifications circular); 900 kg/m³ ceiling (validate.go, illustrative).
+		// Bale mass and density: 160 kg/m³ minimum (Source: ISRI, Scrap
+		// Specifications Circular, plastic scrap section); 900 kg/m³ ceiling (validate.go, illustrative).
 		{"bale 160 kg/m³", bale(160, 1, 1, 1), nil, 0},
 		{"bale just under 160 kg/m³", bale(prev(160), 1, 1, 1), nil, record.WarnLightBale},
 		{"bale 900 kg/m³", bale(900, 1, 1, 1), nil, 0},

@@ -1,5 +1,8 @@
 package store_test
 
+// Source: invented test inputs (a site of our own); the printed output is
+// the store's own answer.
+
 import (
 	"baleassay/data/record"
 	"baleassay/data/store"

@@ -1,5 +1,9 @@
 package transfer
 
+// Source: invented test inputs; each expectation follows from
+// data/bundle.cddl and the envelope rules of RFC 9052 (COSE_Sign1) named
+// beside the case.
+
 import (
 	"bytes"
 	"errors"
