@@ -100,14 +100,10 @@ type Options struct {
 // run side by side, writes are serialised by the store, and the trust
 // list is guarded by the desk.
 type Desk struct {
-	st  *store.Store
-	loc Location
-	now func() time.Time
-	tmu sync.Mutex // guards the trust list file
-	// imu serialises imports: an import reads a device's bundle
-	// sequence records before its write and writes them with it, so two
-	// at once could lose one's update.
-	imu  sync.Mutex
+	st   *store.Store
+	loc  Location
+	now  func() time.Time
+	tmu  sync.Mutex // guards the trust list file
 	demo bool
 	// created: Open made the store and its key.
 	created bool

@@ -195,7 +195,8 @@ func TestRanges(t *testing.T) {
 // TestConcurrentImportsKeepEverySequenceRecord: four imports of one
 // device's bundles run at once through one desk (the app's import beside
 // a second window's, say). Each import reads the device's seen set before
-// its write; run side by side, one could write over another's. Afterwards
+// its write; run side by side, one could write over another's (they are now
+// read and written inside the write transaction). Afterwards
 // the lab must know all 24 bundles: a later import of the whole folder
 // reports no gap.
 func TestConcurrentImportsKeepEverySequenceRecord(t *testing.T) {

@@ -121,8 +121,6 @@ type ImportOptions struct {
 // between files when ctx is done (files already imported stay) and
 // reports progress (may be nil).
 func (d *Desk) Import(ctx context.Context, paths []string, opt ImportOptions, progress func(Progress)) (transfer.ImportReport, error) {
-	d.imu.Lock()
-	defer d.imu.Unlock()
 	_, trust, err := d.Trust()
 	if err != nil {
 		return transfer.ImportReport{}, err

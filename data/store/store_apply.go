@@ -2,6 +2,8 @@ package store
 
 import (
 	"baleassay/data/record"
+	"bytes"
+	"errors"
 	"fmt"
 	"strings"
 )
@@ -34,6 +36,12 @@ type ApplyOptions struct {
 	// AllowDemo lets a store of real records take events of the demo
 	// scenario; without it they are refused with a *DemoRecordsError.
 	AllowDemo bool
+	// MetaFrom, when set, computes more meta values inside the write
+	// transaction from the values stored there (read returns nil for a
+	// key not stored), so that two writes that each read and change a
+	// value cannot lose one's change. Its keys follow ApplyChecked's rule;
+	// an error from it refuses the write.
+	MetaFrom func(read func(key string) ([]byte, error)) (map[string][]byte, error)
 }
 
 // ApplyRawWithIDs is ApplyRaw with the events' ids when the caller has
@@ -82,14 +90,53 @@ func (s *Store) ApplyChecked(b Checked, meta map[string][]byte, opt ApplyOptions
 			return ApplyResult{}, &DemoRecordsError{N: n}
 		}
 	}
-	for k := range meta {
-		if !strings.HasPrefix(k, MetaTransferPrefix) || len(k) > 200 {
-			return ApplyResult{}, fmt.Errorf("%w: %q (want %q...)", ErrMetaKey, k, MetaTransferPrefix)
-		}
+	if err := checkMetaKeys(meta); err != nil {
+		return ApplyResult{}, err
 	}
-	res, err := s.commit(b.items, meta, true, nil)
+	var extra func(w wtx, c *counts) error
+	if opt.MetaFrom != nil {
+		extra = func(w wtx, c *counts) error { return putMetaFrom(w, c, opt.MetaFrom) }
+	}
+	res, err := s.commit(b.items, meta, true, extra)
 	res.Warnings = b.warns
 	return res, err
+}
+
+// checkMetaKeys refuses meta keys an apply may not write.
+func checkMetaKeys(meta map[string][]byte) error {
+	for k := range meta {
+		if !strings.HasPrefix(k, MetaTransferPrefix) || len(k) > 200 {
+			return fmt.Errorf("%w: %q (want %q...)", ErrMetaKey, k, MetaTransferPrefix)
+		}
+	}
+	return nil
+}
+
+// putMetaFrom runs an ApplyOptions.MetaFrom inside the write and puts
+// what it returns; its refusals are the caller's (dataError), not a
+// failure of the disk.
+func putMetaFrom(w wtx, c *counts, from func(read func(key string) ([]byte, error)) (map[string][]byte, error)) error {
+	m := w.bucket(bMeta)
+	read := func(key string) ([]byte, error) {
+		v, _, err := metaGet(m.Bucket, key)
+		return bytes.Clone(v), err
+	}
+	more, err := from(read)
+	if err == nil {
+		err = checkMetaKeys(more)
+	}
+	if err != nil {
+		if errors.Is(err, ErrDamaged) {
+			return err
+		}
+		return dataError{err}
+	}
+	for _, k := range record.SortedKeys(more) {
+		if err := metaPut(m, c, k, more[k]); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // SaveOptions tune Save.

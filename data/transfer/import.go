@@ -284,23 +284,25 @@ func (im *Importer) eventErr(ob *OpenedBundle, err error) error {
 }
 
 // apply writes a prepared bundle with its sequence records, in one
-// transaction.
+// transaction. The sequence records are read and written inside it
+// (ApplyOptions.MetaFrom), so two imports at once keep both updates.
 func (im *Importer) apply(p preparedFile, prog func(Progress)) FileReport {
 	fr, ob := p.fr, p.ob
-	meta, flags, replay, err := im.seqMeta(ob)
-	if err != nil {
-		fr.Err = err
-		return fr
-	}
+	meta := map[string][]byte{}
 	for _, p := range ob.Proofs {
 		if p.Device != im.Store.DeviceID() { // this device can always prove its own events afresh
 			meta[metaProofKey(p.Raw)] = p.Raw
 		}
 	}
-	fr.Flags, fr.Replay = append(flags, im.skewFlags(ob.Header)...), replay
-	fr.Flags = append(fr.Flags, behindFlags(ob)...)
+	var flags []string
+	seq := func(read func(string) ([]byte, error)) (map[string][]byte, error) {
+		m, f, replay, err := seqMeta(ob, read)
+		flags, fr.Replay = f, replay
+		return m, err
+	}
 	prog(Progress{Step: "applying", Events: fr.Events})
-	res, err := im.Store.ApplyChecked(p.batch, meta, store.ApplyOptions{AllowDemo: im.AllowDemo})
+	res, err := im.Store.ApplyChecked(p.batch, meta, store.ApplyOptions{AllowDemo: im.AllowDemo, MetaFrom: seq})
+	fr.Flags = append(append(flags, im.skewFlags(ob.Header)...), behindFlags(ob)...)
 	if err != nil {
 		fr.Err = im.eventErr(ob, err)
 		return fr
@@ -341,10 +343,10 @@ func warningFlags(ws []record.EventWarning) []string {
 // union, and of two different bundles claiming one (device, seq) the one
 // with the smaller hash is recorded (both are imported; their events are
 // signed and merge by union).
-func (im *Importer) seqMeta(ob *OpenedBundle) (map[string][]byte, []string, bool, error) {
+func seqMeta(ob *OpenedBundle, read func(key string) ([]byte, error)) (map[string][]byte, []string, bool, error) {
 	h := ob.Header
 	var flags []string
-	seenRaw, err := im.Store.Meta(metaSeenKey(h.Device))
+	seenRaw, err := read(metaSeenKey(h.Device))
 	if err != nil {
 		return nil, nil, false, err
 	}
@@ -354,7 +356,7 @@ func (im *Importer) seqMeta(ob *OpenedBundle) (map[string][]byte, []string, bool
 	}
 	rec := append(append([]byte(nil), ob.Hash[:]...), h.Prev[:]...)
 	key := metaBundleKey(h.Device, h.Seq)
-	old, err := im.Store.Meta(key)
+	old, err := read(key)
 	if err != nil {
 		return nil, nil, false, err
 	}
@@ -367,11 +369,11 @@ func (im *Importer) seqMeta(ob *OpenedBundle) (map[string][]byte, []string, bool
 	}
 	// Chain checks against the neighbours already recorded.
 	if h.Seq > 1 {
-		if p, _ := im.Store.Meta(metaBundleKey(h.Device, h.Seq-1)); len(p) == 64 && !bytes.Equal(p[:32], h.Prev[:]) {
+		if p, _ := read(metaBundleKey(h.Device, h.Seq-1)); len(p) == 64 && !bytes.Equal(p[:32], h.Prev[:]) {
 			flags = append(flags, fmt.Sprintf("bundle %d from device %s names a previous bundle other than the bundle %d imported here", h.Seq, h.Device, h.Seq-1))
 		}
 	}
-	if n, _ := im.Store.Meta(metaBundleKey(h.Device, h.Seq+1)); len(n) == 64 && !bytes.Equal(n[32:], ob.Hash[:]) {
+	if n, _ := read(metaBundleKey(h.Device, h.Seq+1)); len(n) == 64 && !bytes.Equal(n[32:], ob.Hash[:]) {
 		flags = append(flags, fmt.Sprintf("bundle %d from device %s does not follow this bundle %d", h.Seq+1, h.Device, h.Seq))
 	}
 	enc, err := encodeSeqSet(seen.Add(h.Seq))
