@@ -3,8 +3,6 @@ package yield
 import (
 	"baleassay/assess"
 	"bytes"
-	"encoding/json"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -131,27 +129,7 @@ func ReadFlakeSpecFile(path string) (FlakeSpec, error) {
 
 // ReadFlakeSpec reads a flake spec in JSON (unknown fields are errors).
 func ReadFlakeSpec(r io.Reader, name string) (FlakeSpec, error) {
-	var s FlakeSpec
-	b, err := readDocument(r)
-	if err != nil {
-		return FlakeSpec{}, fieldErr(name, "", fmt.Errorf("%w: %w", ErrBadSpec, err), "not a valid flake spec: %v", err)
-	}
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&s); err != nil {
-		return FlakeSpec{}, fieldErr(name, "", ErrBadSpec, "not a valid flake spec: %v", jsonMsg(err))
-	}
-	if dec.More() {
-		return FlakeSpec{}, fieldErr(name, "", ErrBadSpec, "text after the spec's closing brace; a file holds one spec")
-	}
-	if err := s.Validate(); err != nil {
-		var fe *FieldError
-		if errors.As(err, &fe) {
-			fe.Where = name + ": " + fe.Where
-		}
-		return FlakeSpec{}, err
-	}
-	return s, nil
+	return readJSON(r, name, "flake spec", "spec", ErrBadSpec, (*FlakeSpec).Validate)
 }
 
 // BuiltinFlakeSpecName names the illustrative built-in flake spec.

@@ -197,27 +197,37 @@ func ReadLineFile(path string) (Line, error) {
 // ReadLine reads a line profile in JSON (unknown fields are errors) and
 // validates it; name labels the messages.
 func ReadLine(r io.Reader, name string) (Line, error) {
-	var l Line
+	return readJSON(r, name, "line profile", "profile", ErrBadLine, (*Line).Validate)
+}
+
+// readJSON reads one JSON document, a what ("line profile") that a file
+// holds one of (short: "profile"), into a T: at most
+// assess.MaxDocumentFileBytes, no repeated key or control character
+// (readDocument), no unknown field, nothing after it; then validate
+// checks it (and may complete it), its field errors prefixed with name. Every failure wraps
+// bad.
+func readJSON[T any](r io.Reader, name, what, short string, bad error, validate func(*T) error) (T, error) {
+	var v, zero T
 	b, err := readDocument(r)
 	if err != nil {
-		return Line{}, fieldErr(name, "", fmt.Errorf("%w: %w", ErrBadLine, err), "not a valid line profile: %v", err)
+		return zero, fieldErr(name, "", fmt.Errorf("%w: %w", bad, err), "not a valid %s: %v", what, err)
 	}
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
-	if err := dec.Decode(&l); err != nil {
-		return Line{}, fieldErr(name, "", ErrBadLine, "not a valid line profile: %v", jsonMsg(err))
+	if err := dec.Decode(&v); err != nil {
+		return zero, fieldErr(name, "", bad, "not a valid %s: %v", what, jsonMsg(err))
 	}
 	if dec.More() {
-		return Line{}, fieldErr(name, "", ErrBadLine, "text after the profile's closing brace; a file holds one profile")
+		return zero, fieldErr(name, "", bad, "text after the %s's closing brace; a file holds one %s", short, short)
 	}
-	if err := l.Validate(); err != nil {
+	if err := validate(&v); err != nil {
 		var fe *FieldError
 		if errors.As(err, &fe) {
 			fe.Where = name + ": " + fe.Where
 		}
-		return Line{}, err
+		return zero, err
 	}
-	return l, nil
+	return v, nil
 }
 
 // readDocument reads a JSON document of at most

@@ -200,26 +200,11 @@ func sortedKeys[V any](m map[string]V) []string {
 	return out
 }
 
-// ReadPriceSheet reads a price sheet in JSON (unknown fields are errors)
-// and validates it.
+// ReadPriceSheet reads a price sheet in JSON (unknown fields, repeated
+// keys and control characters are errors, as in every document this
+// package reads) and validates it.
 func ReadPriceSheet(r io.Reader, name string) (PriceSheet, error) {
-	var p PriceSheet
-	dec := json.NewDecoder(r)
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&p); err != nil {
-		return PriceSheet{}, fieldErr(name, "", ErrBadPrices, "not a valid price sheet: %v", jsonMsg(err))
-	}
-	if dec.More() {
-		return PriceSheet{}, fieldErr(name, "", ErrBadPrices, "text after the sheet's closing brace; a file holds one sheet")
-	}
-	if err := p.Validate(); err != nil {
-		var fe *FieldError
-		if errors.As(err, &fe) {
-			fe.Where = name + ": " + fe.Where
-		}
-		return PriceSheet{}, err
-	}
-	return p, nil
+	return readJSON(r, name, "price sheet", "sheet", ErrBadPrices, (*PriceSheet).Validate)
 }
 
 // ReadPriceSheetFile reads a price sheet from a JSON file.

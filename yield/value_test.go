@@ -8,6 +8,8 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"baleassay/assess"
 )
 
 // TestWorthHandWorked checks the value arithmetic on one outcome against
@@ -153,6 +155,9 @@ func TestPriceSheetRefusals(t *testing.T) {
 		{"negative deduction", `{"name":"a","currency":"EUR","route":"flake","flake_deductions":{"pvc_ppm":-5}}`, ErrOutOfRange},
 		{"window upside down", `{"name":"a","currency":"EUR","route":"flake","hydroxyl_value":{"min":400,"max":200,"deduction_per_t":1}}`, ErrBadPrices},
 		{"two sheets", ok + ok, ErrBadPrices},
+		// as every document of the package: a repeated key, a control character
+		{"repeated price", `{"name":"a","currency":"EUR","route":"flake","flake_per_t":900,"flake_per_t":90}`, assess.ErrDuplicateKey},
+		{"control character", `{"name":"a\u001b[2J","currency":"EUR","route":"flake"}`, assess.ErrControlText},
 	} {
 		_, err := ReadPriceSheet(strings.NewReader(c.json), c.name+".json")
 		if !errors.Is(err, c.want) {
