@@ -133,6 +133,19 @@ func (a *App) loadSiteBales() {
 	}, nil)
 }
 
+// saveSite runs a site's save on the owner; when it succeeds the form
+// closes, the site is selected and the lists reload, with note shown.
+func (a *App) saveSite(note string, save func() (record.EntityID, error)) {
+	a.m.saveSite.Start(a.owner.do, &a.in, func(context.Context) (record.EntityID, error) { return save() }, func() {
+		if a.m.saveSite.Err == nil {
+			a.sites.form.saved()
+			a.m.note = note
+			a.m.site = a.m.saveSite.Value
+			a.loadLists()
+		}
+	})
+}
+
 // setBale makes a bale current and loads its pulls and outcome.
 func (a *App) setBale(id record.EntityID) {
 	if id != a.m.bale {
@@ -205,28 +218,14 @@ func (a *App) applyData(act Action) {
 		a.m.site = act.ID
 		a.loadSiteBales()
 	case AddSite:
-		a.m.saveSite.Start(a.owner.do, &a.in, func(context.Context) (record.EntityID, error) {
+		a.saveSite(fmt.Sprintf("Site %s saved. Receive its first bale when it comes.", act.Site.Name), func() (record.EntityID, error) {
 			return d.AddSite(act.Site, desk.SaveOptions{Confirm: act.Confirm})
-		}, func() {
-			if a.m.saveSite.Err == nil {
-				a.sites.form.saved()
-				a.m.note = fmt.Sprintf("Site %s saved. Receive its first bale when it comes.", act.Site.Name)
-				a.m.site = a.m.saveSite.Value
-				a.loadLists()
-			}
 		})
 	case CorrectSite:
-		a.m.saveSite.Start(a.owner.do, &a.in, func(context.Context) (record.EntityID, error) {
+		a.saveSite(fmt.Sprintf("Site %s corrected; the earlier value stays in its history.", act.Site.Name), func() (record.EntityID, error) {
 			s := act.Site
 			id, _, err := d.EditSite(act.ID.String(), desk.SiteEdit{Name: &s.Name, Kind: &s.Kind, Lat: &s.Lat, Lon: &s.Lon}, desk.SaveOptions{Confirm: act.Confirm})
 			return id, err
-		}, func() {
-			if a.m.saveSite.Err == nil {
-				a.sites.form.saved()
-				a.m.note = fmt.Sprintf("Site %s corrected; the earlier value stays in its history.", act.Site.Name)
-				a.m.site = a.m.saveSite.Value
-				a.loadLists()
-			}
 		})
 	case FindNear:
 		a.m.near.Start(a.owner.do, &a.in, func(context.Context) ([]geo.Hit, error) {
